@@ -1,0 +1,133 @@
+# halostage build. Plain make; sources are discovered by folder so that a new
+# file needs no Makefile edit:
+#   calc/*.c        -> build/libhc.a   (pure science)
+#   protocol/*.c    -> build/libhp.a   (Modbus, MQTT, JSON)
+#   plugin/*.c      -> build/libhs.a and build/halostage.so
+#   plugin/cli/*.c  -> build/halostage
+#   plugin/host/*.c -> build/halostaged
+#   tests/sim/*.c   -> build/halostage-sim
+#   tests/unit/test_*.c  -> build/tests/test_*  (cmocka; each file one binary)
+#   tests/unit/support/*.c are linked into every unit test
+#   tests/bench/bench_*.c -> build/bench/bench_*
+# `make SAN=1` builds the same into build/san with AddressSanitizer and
+# UndefinedBehaviorSanitizer.
+
+CC      ?= cc
+SAN     ?= 0
+PREFIX  ?= /usr/local
+
+ifeq ($(SAN),1)
+BUILD    ?= build/san
+SANFLAGS := -fsanitize=address,undefined -fno-omit-frame-pointer -fno-sanitize-recover=all
+OPT      ?= -O1 -g
+else
+BUILD    ?= build
+SANFLAGS :=
+OPT      ?= -O2 -g
+endif
+
+WARN     := -Wall -Wextra -Werror -Wshadow -Wstrict-prototypes -Wmissing-prototypes -Wcast-qual
+PKG_CFLAGS := $(shell pkg-config --cflags libmodbus jansson inih sqlite3 libsystemd 2>/dev/null)
+PKG_LIBS   := $(shell pkg-config --libs libmodbus jansson inih sqlite3 libsystemd 2>/dev/null)
+CPPFLAGS += -D_GNU_SOURCE -Icalc -Iprotocol -Iplugin -Itests/unit/support $(PKG_CFLAGS)
+CFLAGS   += -std=c11 $(OPT) $(WARN) -fPIC $(SANFLAGS) -MMD -MP
+LDFLAGS  += $(SANFLAGS)
+LIBS     := $(PKG_LIBS) -lpaho-mqtt3as -ldl -lpthread -lm
+
+CALC_SRC   := $(wildcard calc/*.c)
+PROTO_SRC  := $(wildcard protocol/*.c)
+PLUGIN_SRC := $(wildcard plugin/*.c)
+CLI_SRC    := $(wildcard plugin/cli/*.c)
+HOST_SRC   := $(wildcard plugin/host/*.c)
+SIM_SRC    := $(wildcard tests/sim/*.c)
+TEST_SRC   := $(wildcard tests/unit/test_*.c)
+SUPP_SRC   := $(wildcard tests/unit/support/*.c)
+BENCH_SRC  := $(wildcard tests/bench/bench_*.c)
+
+obj = $(patsubst %.c,$(BUILD)/obj/%.o,$(1))
+
+LIBHC := $(BUILD)/libhc.a
+LIBHP := $(BUILD)/libhp.a
+LIBHS := $(BUILD)/libhs.a
+ALL_LIBS := $(LIBHS) $(LIBHP) $(LIBHC)
+
+PROGS :=
+ifneq ($(CLI_SRC),)
+PROGS += $(BUILD)/halostage
+endif
+ifneq ($(HOST_SRC),)
+PROGS += $(BUILD)/halostaged
+endif
+ifneq ($(SIM_SRC),)
+PROGS += $(BUILD)/halostage-sim
+endif
+ifneq ($(PLUGIN_SRC),)
+PROGS += $(BUILD)/halostage.so
+endif
+
+TESTS   := $(patsubst tests/unit/%.c,$(BUILD)/tests/%,$(TEST_SRC))
+BENCHES := $(patsubst tests/bench/%.c,$(BUILD)/bench/%,$(BENCH_SRC))
+
+.PHONY: all libs tests benches check bench demo deps install clean
+.DEFAULT_GOAL := all
+
+all: libs $(PROGS)
+libs: $(ALL_LIBS)
+tests: $(TESTS)
+benches: $(BENCHES)
+
+$(BUILD)/obj/%.o: %.c
+	@mkdir -p $(dir $@)
+	$(CC) $(CPPFLAGS) $(CFLAGS) -c $< -o $@
+
+# An archive may be empty while a layer has no code yet.
+$(LIBHC): $(call obj,$(CALC_SRC))
+	@mkdir -p $(dir $@)
+	rm -f $@ && ar rcs $@ $^
+$(LIBHP): $(call obj,$(PROTO_SRC))
+	@mkdir -p $(dir $@)
+	rm -f $@ && ar rcs $@ $^
+$(LIBHS): $(call obj,$(PLUGIN_SRC))
+	@mkdir -p $(dir $@)
+	rm -f $@ && ar rcs $@ $^
+
+$(BUILD)/halostage: $(call obj,$(CLI_SRC)) $(ALL_LIBS)
+	$(CC) $(LDFLAGS) -o $@ $(call obj,$(CLI_SRC)) $(ALL_LIBS) $(LIBS)
+$(BUILD)/halostaged: $(call obj,$(HOST_SRC)) $(ALL_LIBS)
+	$(CC) $(LDFLAGS) -rdynamic -o $@ $(call obj,$(HOST_SRC)) $(ALL_LIBS) $(LIBS)
+$(BUILD)/halostage-sim: $(call obj,$(SIM_SRC)) $(ALL_LIBS)
+	$(CC) $(LDFLAGS) -o $@ $(call obj,$(SIM_SRC)) $(ALL_LIBS) $(LIBS)
+$(BUILD)/halostage.so: $(call obj,$(PLUGIN_SRC)) $(LIBHP) $(LIBHC)
+	$(CC) $(LDFLAGS) -shared -o $@ $(call obj,$(PLUGIN_SRC)) $(LIBHP) $(LIBHC) $(LIBS)
+
+# A test may add linker flags (e.g. -Wl,--wrap=...) in tests/unit/test_X.ldflags.
+$(BUILD)/tests/%: tests/unit/%.c $(call obj,$(SUPP_SRC)) $(ALL_LIBS)
+	@mkdir -p $(dir $@)
+	$(CC) $(CPPFLAGS) $(CFLAGS) $(LDFLAGS) -o $@ $< $(call obj,$(SUPP_SRC)) \
+	    $(shell cat tests/unit/$*.ldflags 2>/dev/null) $(ALL_LIBS) $(LIBS) -lcmocka
+
+$(BUILD)/bench/%: tests/bench/%.c $(ALL_LIBS)
+	@mkdir -p $(dir $@)
+	$(CC) $(CPPFLAGS) $(CFLAGS) $(LDFLAGS) -o $@ $< $(ALL_LIBS) $(LIBS)
+
+deps:
+	@sh mk/deps.sh
+
+# Every test twice: a plain build, then AddressSanitizer + UBSan.
+check: deps
+	$(MAKE) --no-print-directory all tests SAN=0
+	$(MAKE) --no-print-directory all tests SAN=1
+	@bash tests/run.sh build build/san 2>&1
+
+bench: deps
+	$(MAKE) --no-print-directory all benches SAN=0
+	@bash tests/bench/run.sh build 2>&1
+
+demo: deps
+	$(MAKE) --no-print-directory all SAN=0
+	@bash mk/demo.sh build
+
+clean:
+	rm -rf build
+
+-include $(shell find build -name '*.d' 2>/dev/null)

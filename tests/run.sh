@@ -1,0 +1,60 @@
+#!/usr/bin/env bash
+# Runs every unit test binary and every integration script, for each build
+# folder given (plain, then sanitized), and ends with one closing line:
+#   total: N passed, N failed
+# Unit tests are cmocka binaries (their verdict goes to stderr, so 2>&1).
+# Integration scripts print TAP-style "ok - ..." / "not ok - ..." lines; each
+# such line counts as one test. A script that exits non-zero without a
+# "not ok" line counts as one failure.
+set -u
+cd "$(dirname "$0")/.."
+passed=0
+failed=0
+failures=()
+
+count_cmocka() {  # $1 = output file
+    local p f
+    p=$(sed -n 's/^\[  PASSED  \] \([0-9]*\) test.*/\1/p' "$1" | awk '{s+=$1} END {print s+0}')
+    f=$(sed -n 's/^\[  FAILED  \] \([0-9]*\) test.*/\1/p' "$1" | awk '{s+=$1} END {print s+0}')
+    echo "$p $f"
+}
+
+for build in "$@"; do
+    [ -d "$build/tests" ] || continue
+    echo "=== unit tests ($build)"
+    for t in "$build"/tests/test_*; do
+        [ -x "$t" ] || continue
+        out=$(mktemp)
+        "$t" >"$out" 2>&1
+        rc=$?
+        cat "$out"
+        read -r p f < <(count_cmocka "$out")
+        if [ "$rc" -ne 0 ] && [ "$f" -eq 0 ]; then f=1; fi
+        passed=$((passed + p)); failed=$((failed + f))
+        [ "$f" -gt 0 ] && failures+=("$t")
+        rm -f "$out"
+    done
+done
+
+for build in "$@"; do
+    for s in tests/integration/test_*.sh; do
+        [ -f "$s" ] || continue
+        echo "=== integration $(basename "$s") ($build)"
+        out=$(mktemp)
+        HS_BUILD="$build" timeout 600 bash "$s" >"$out" 2>&1
+        rc=$?
+        cat "$out"
+        p=$(grep -c '^ok ' "$out")
+        f=$(grep -c '^not ok ' "$out")
+        if [ "$rc" -ne 0 ] && [ "$f" -eq 0 ]; then f=1; echo "not ok - $s exited $rc"; fi
+        passed=$((passed + p)); failed=$((failed + f))
+        [ "$f" -gt 0 ] && failures+=("$s ($build)")
+        rm -f "$out"
+    done
+done
+
+if [ "${#failures[@]}" -gt 0 ]; then
+    echo "failing: ${failures[*]}"
+fi
+echo "total: $passed passed, $failed failed"
+[ "$failed" -eq 0 ] && [ "$passed" -gt 0 ]
