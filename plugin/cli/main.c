@@ -1,0 +1,32 @@
+/* halostage: the operator's command. Dispatches to one subcommand. */
+#include <stdio.h>
+#include <string.h>
+
+#include "commands.h"
+
+static void usage(FILE *out)
+{
+    fprintf(out, "usage: halostage COMMAND [OPTIONS]\n\ncommands:\n");
+    for (const struct hs_command *c = hs_commands; c->name != NULL; c++)
+        fprintf(out, "  %-10s %s\n", c->name, c->summary);
+    fprintf(out, "\n`halostage COMMAND --help` describes one command.\n");
+}
+
+int main(int argc, char **argv)
+{
+    if (argc < 2) {
+        usage(stderr);
+        return 2;
+    }
+    if (strcmp(argv[1], "help") == 0 || strcmp(argv[1], "--help") == 0 ||
+        strcmp(argv[1], "-h") == 0) {
+        usage(stdout);
+        return 0;
+    }
+    for (const struct hs_command *c = hs_commands; c->name != NULL; c++)
+        if (strcmp(argv[1], c->name) == 0)
+            return c->run(argc - 1, argv + 1);
+    fprintf(stderr, "halostage: unknown command '%s'\n", argv[1]);
+    usage(stderr);
+    return 2;
+}
