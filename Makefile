@@ -9,6 +9,7 @@
 #   tests/unit/test_*.c  -> build/tests/test_*  (cmocka; each file one binary)
 #   tests/unit/support/*.c are linked into every unit test
 #   tests/bench/bench_*.c -> build/bench/bench_*
+#   tests/tools/*.c -> build/tools/*  (helper programs for integration tests)
 # `make SAN=1` builds the same into build/san with AddressSanitizer and
 # UndefinedBehaviorSanitizer.
 
@@ -43,6 +44,7 @@ SIM_SRC    := $(wildcard tests/sim/*.c)
 TEST_SRC   := $(wildcard tests/unit/test_*.c)
 SUPP_SRC   := $(wildcard tests/unit/support/*.c)
 BENCH_SRC  := $(wildcard tests/bench/bench_*.c)
+TOOL_SRC   := $(wildcard tests/tools/*.c)
 
 obj = $(patsubst %.c,$(BUILD)/obj/%.o,$(1))
 
@@ -67,13 +69,14 @@ endif
 
 TESTS   := $(patsubst tests/unit/%.c,$(BUILD)/tests/%,$(TEST_SRC))
 BENCHES := $(patsubst tests/bench/%.c,$(BUILD)/bench/%,$(BENCH_SRC))
+TOOLS   := $(patsubst tests/tools/%.c,$(BUILD)/tools/%,$(TOOL_SRC))
 
 .PHONY: all libs tests benches check bench demo deps install clean
 .DEFAULT_GOAL := all
 
 all: libs $(PROGS)
 libs: $(ALL_LIBS)
-tests: $(TESTS)
+tests: $(TESTS) $(TOOLS)
 benches: $(BENCHES)
 
 $(BUILD)/obj/%.o: %.c
@@ -105,6 +108,10 @@ $(BUILD)/tests/%: tests/unit/%.c $(call obj,$(SUPP_SRC)) $(ALL_LIBS)
 	@mkdir -p $(dir $@)
 	$(CC) $(CPPFLAGS) $(CFLAGS) $(LDFLAGS) -o $@ $< $(call obj,$(SUPP_SRC)) \
 	    $(shell cat tests/unit/$*.ldflags 2>/dev/null) $(ALL_LIBS) $(LIBS) -lcmocka
+
+$(BUILD)/tools/%: tests/tools/%.c $(ALL_LIBS)
+	@mkdir -p $(dir $@)
+	$(CC) $(CPPFLAGS) $(CFLAGS) $(LDFLAGS) -o $@ $< $(ALL_LIBS) $(LIBS)
 
 $(BUILD)/bench/%: tests/bench/%.c $(ALL_LIBS)
 	@mkdir -p $(dir $@)
