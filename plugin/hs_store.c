@@ -38,7 +38,8 @@ static const char *const migrations[] = {
     "CREATE TABLE alarm_journal(event_id INTEGER PRIMARY KEY, t_ms INTEGER NOT NULL,"
     " pond TEXT NOT NULL, rule TEXT NOT NULL, from_state TEXT NOT NULL,"
     " to_state TEXT NOT NULL, cause TEXT NOT NULL, value REAL, limit_value REAL,"
-    " priority INTEGER NOT NULL, actor TEXT, note TEXT) STRICT;"
+    " priority INTEGER NOT NULL, actor TEXT, note TEXT, episode_id INTEGER NOT NULL,"
+    " shelved_until_ms INTEGER NOT NULL) STRICT;"
     "CREATE INDEX alarm_journal_t ON alarm_journal(t_ms);"
     "CREATE INDEX alarm_journal_pond_rule ON alarm_journal(pond, rule, event_id);"
     "CREATE TABLE transfer_decision(id INTEGER PRIMARY KEY, t_ms INTEGER NOT NULL,"
@@ -80,8 +81,8 @@ static const char *const stmt_sql[SQL_COUNT] = {
         "?15,?16,?17,?18,?19,?20,?21,?22,?23,?24,?25,?26,?27,?28)",
     [SQL_JOURNAL_ADD] =
         "INSERT INTO alarm_journal(event_id, t_ms, pond, rule, from_state, to_state,"
-        " cause, value, limit_value, priority, actor, note)"
-        " VALUES(?1,?2,?3,?4,?5,?6,?7,?8,?9,?10,?11,?12)",
+        " cause, value, limit_value, priority, actor, note, episode_id, shelved_until_ms)"
+        " VALUES(?1,?2,?3,?4,?5,?6,?7,?8,?9,?10,?11,?12,?13,?14)",
     [SQL_JOURNAL_MAX] = "SELECT coalesce(max(event_id), 0) FROM alarm_journal",
     [SQL_TRANSFER_ADD] = "INSERT INTO transfer_decision(transfer, t_ms, advice, reasons,"
                          " actuated) VALUES(?1,?2,?3,?4,?5)",

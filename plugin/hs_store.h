@@ -112,6 +112,8 @@ typedef struct {
     int priority;
     const char *actor;    /* who acknowledged or shelved; NULL for the engine */
     const char *note;
+    uint64_t episode_id;  /* event that raised the alarm's current episode; 0 none */
+    int64_t shelved_until_ms; /* when shelved; 0 otherwise */
 } hs_journal_row;
 
 int hs_store_add_journal(hs_store *st, const hs_journal_row *row);

@@ -135,6 +135,8 @@ int hs_store_add_journal(hs_store *st, const hs_journal_row *r)
     sqlite3_bind_int(s, 10, r->priority);
     bind_text_or_null(s, 11, r->actor);
     bind_text_or_null(s, 12, r->note);
+    sqlite3_bind_int64(s, 13, (int64_t)r->episode_id);
+    sqlite3_bind_int64(s, 14, r->shelved_until_ms);
     return step_write(st, s, "adding a journal row");
 }
 
@@ -166,6 +168,8 @@ static int journal_query(hs_store *st, sqlite3_stmt *s, hs_journal_fn fn, void *
             .priority = sqlite3_column_int(s, 9),
             .actor = (const char *)sqlite3_column_text(s, 10),
             .note = (const char *)sqlite3_column_text(s, 11),
+            .episode_id = (uint64_t)sqlite3_column_int64(s, 12),
+            .shelved_until_ms = sqlite3_column_int64(s, 13),
         };
         fn(ctx, &r);
     }
@@ -175,7 +179,7 @@ static int journal_query(hs_store *st, sqlite3_stmt *s, hs_journal_fn fn, void *
 }
 
 #define JOURNAL_COLS "event_id, t_ms, pond, rule, from_state, to_state, cause, value," \
-                     " limit_value, priority, actor, note"
+                     " limit_value, priority, actor, note, episode_id, shelved_until_ms"
 
 int hs_store_journal_latest(hs_store *st, hs_journal_fn fn, void *ctx)
 {
