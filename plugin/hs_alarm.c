@@ -124,7 +124,7 @@ static void transition(hs_alarm_engine *eng, struct alarm *a, hs_alarm_state to,
     hs_alarm_event ev = {
         .event_id = id, .episode_id = a->episode_id, .t_ms = now_ms, .pond = a->pond,
         .rule = a->rule.name, .kind = a->rule.kind, .from = from, .to = to,
-        .active = a->active, .cause = cause, .value = a->value, .limit = a->limit,
+        .active = a->active, .cause = cause, .quantity = a->rule.quantity, .value = a->value, .limit = a->limit,
         .priority = a->rule.priority, .actor = actor, .note = note,
         .shelved_until_ms = to == HS_ALARM_SHELVED ? a->shelved_until_ms : 0,
     };

@@ -123,6 +123,7 @@ typedef struct {
     hs_alarm_state from, to;
     int active;           /* the condition after this event */
     const char *cause;    /* "condition-raised", "acknowledged", "shelved", ... */
+    hs_alarm_quantity quantity; /* what value and limit measure */
     double value;         /* value at the time; NaN when none */
     double limit;         /* limit crossed or in force; NaN when none */
     hs_alarm_priority priority;
