@@ -6,6 +6,7 @@
 #include <string.h>
 #include <time.h>
 
+#include "hp_state_json.h"
 #include "hs_publish.h"
 
 int hs_topic_level_ok(const char *name)
@@ -54,51 +55,17 @@ void hs_iso8601_ms(char *buf, size_t len, int64_t t_ms)
 /* A number, or JSON null when it is not known. */
 static json_t *num(double v) { return isfinite(v) ? json_real(v) : json_null(); }
 
-static json_t *stage_or_null(hc_stage s)
-{
-    return s == HC_STAGE_NONE ? json_null() : json_string(hc_stage_name(s));
-}
-
 json_t *hs_state_payload(const char *pond, int64_t t_ms, const hc_brine_state *s,
                          const hs_pond_extra *x, hs_quality quality)
 {
     char when[40];
     hs_iso8601_ms(when, sizeof when, t_ms);
-    json_t *o = json_object();
-    json_t *si = json_object();
-    json_t *warn = json_array();
-    if (o == NULL || si == NULL || warn == NULL) {
-        json_decref(o);
-        json_decref(si);
-        json_decref(warn);
+    json_t *o = hp_state_to_json(s); /* the same fields as `halostage calc --json` */
+    if (o == NULL)
         return NULL;
-    }
     json_object_set_new(o, "pond", json_string(pond));
     json_object_set_new(o, "time", json_string(when));
     json_object_set_new(o, "quality", json_string(hs_quality_name(quality)));
-    json_object_set_new(o, "practical_salinity", num(s->practical_salinity));
-    json_object_set_new(o, "salinity_g_kg", num(s->salinity_g_kg));
-    json_object_set_new(o, "density_kg_m3", num(s->density_kg_m3));
-    json_object_set_new(o, "temperature_c", num(s->temperature_c));
-    json_object_set_new(o, "specific_gravity", num(s->specific_gravity));
-    json_object_set_new(o, "reference_temperature_c", num(s->reference_temperature_c));
-    json_object_set_new(o, "baume", num(s->baume));
-    json_object_set_new(o, "baume_modulus", num(s->baume_modulus));
-    json_object_set_new(o, "concentration_factor", num(s->concentration_factor));
-    json_object_set_new(o, "stage", stage_or_null(s->stage));
-    json_object_set_new(o, "next_stage", stage_or_null(s->next_stage));
-    json_object_set_new(o, "next_stage_density_kg_m3", num(s->next_stage_density_kg_m3));
-    for (int m = 0; m < HC_MINERAL_COUNT; m++)
-        if (isfinite(s->saturation_index[m]))
-            json_object_set_new(si, hc_mineral_name((hc_mineral)m),
-                                json_real(s->saturation_index[m]));
-    json_object_set_new(o, "saturation_index", si);
-    json_object_set_new(o, "water_activity", num(s->water_activity));
-    json_object_set_new(o, "method", json_string(hc_method_name(s->method)));
-    for (int b = 0; b < HC_WARN_COUNT_BITS; b++)
-        if (s->warnings & (1u << b))
-            json_array_append_new(warn, json_string(hc_warning_name(1u << b)));
-    json_object_set_new(o, "warnings", warn);
     if (x != NULL) {
         json_object_set_new(o, "depth_m", num(x->depth_m));
         json_object_set_new(o, "volume_m3", num(x->volume_m3));
