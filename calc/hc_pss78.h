@@ -43,7 +43,8 @@
  *               (may be NULL; other bits are left alone)
  * Errors: HC_ERR_NOT_FINITE, HC_ERR_NEGATIVE (C < 0),
  * HC_ERR_TEMPERATURE_RANGE, HC_ERR_PRESSURE_RANGE, HC_ERR_SALINITY_RANGE
- * (S_P > 42: brine needs the brine model; never extrapolated). */
+ * (S_P > 42 + 1e-9, the 1e-9 only absorbing rounding: brine needs the
+ * brine model; never extrapolated). */
 hc_status hc_pss78_sp_from_c(double cond_ms_cm, double t90_c, double p_dbar,
                              double *sp, unsigned *warnings);
 
