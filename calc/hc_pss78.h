@@ -53,7 +53,10 @@ hc_status hc_pss78_sp_from_c(double cond_ms_cm, double t90_c, double p_dbar,
  *   t90_c, p_dbar as above
  *   cond_ms_cm  out: C [mS/cm]
  * Newton iteration on sqrt(Rt) then a closed-form quadratic for the
- * pressure term; after at most 8 steps |S_P(C) - S_P| < 1e-12.
+ * pressure term. Over the whole range (grid of 0.013 in S_P, 1.7 degC,
+ * 2500 dbar) Newton stops within 5 steps (plus 5 in the Hill range) and
+ * S_P(C(S_P)) returns S_P within 1e-10; against gsw C_from_SP within 1e-13
+ * mS/cm (tests/unit/test_reference.c).
  * Errors: HC_ERR_NOT_FINITE, HC_ERR_NEGATIVE (S_P < 0),
  * HC_ERR_TEMPERATURE_RANGE, HC_ERR_PRESSURE_RANGE, HC_ERR_SALINITY_RANGE
  * (S_P > 42), HC_ERR_NO_CONVERGENCE. */
