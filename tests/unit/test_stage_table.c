@@ -81,6 +81,8 @@ static void defects_name_file_and_line(void **unused)
         {"level_m,depth\n", "t.csv:1: unknown column 'depth'"},
         {"level_m,area_m2\n0,1\n", "t.csv:1: header needs level_m and volume_m3"},
         {"level_m,level_m,volume_m3\n", "t.csv:1: column 'level_m' given twice"},
+        {"level_m,depth_m,volume_m3\n", "t.csv:1: column 'depth_m' given twice"},
+        {"depth_m,volume_m3\n0,0\n0.1,-1\n", "t.csv:3: volume_m3 must not be negative"},
         {"level_m,volume_m3,area_m2\n0,0,5\n0.1,1,-2\n", "t.csv:3: volume_m3 and area_m2 must not be negative"},
         {"level_m,volume_m3\n0,0\n", "t.csv: a stage-storage table needs at least 2 rows"},
         {"# nothing\n\n", "t.csv: empty table"},
