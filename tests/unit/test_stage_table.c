@@ -79,7 +79,7 @@ static void defects_name_file_and_line(void **unused)
         {"level_m,volume_m3\n0,0\n0.1,nan\n", "t.csv:3: volume_m3 'nan' is not a number"},
         {"level_m,volume_m3\n0,0\n0.1\n", "t.csv:3: 1 fields, the header has 2"},
         {"level_m,depth\n", "t.csv:1: unknown column 'depth'"},
-        {"level_m,area_m2\n0,1\n", "t.csv:1: header needs level_m and volume_m3"},
+        {"level_m,area_m2\n0,1\n", "t.csv:1: header needs level_m (or depth_m) and volume_m3"},
         {"level_m,level_m,volume_m3\n", "t.csv:1: column 'level_m' given twice"},
         {"level_m,depth_m,volume_m3\n", "t.csv:1: column 'depth_m' given twice"},
         {"depth_m,volume_m3\n0,0\n0.1,-1\n", "t.csv:3: volume_m3 must not be negative"},
