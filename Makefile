@@ -45,6 +45,7 @@ TEST_SRC   := $(wildcard tests/unit/test_*.c)
 SUPP_SRC   := $(wildcard tests/unit/support/*.c)
 BENCH_SRC  := $(wildcard tests/bench/bench_*.c)
 TOOL_SRC   := $(wildcard tests/tools/*.c)
+TPLUG_SRC  := $(wildcard tests/plugins/*.c)
 
 obj = $(patsubst %.c,$(BUILD)/obj/%.o,$(1))
 
@@ -70,13 +71,14 @@ endif
 TESTS   := $(patsubst tests/unit/%.c,$(BUILD)/tests/%,$(TEST_SRC))
 BENCHES := $(patsubst tests/bench/%.c,$(BUILD)/bench/%,$(BENCH_SRC))
 TOOLS   := $(patsubst tests/tools/%.c,$(BUILD)/tools/%,$(TOOL_SRC))
+TPLUGS  := $(patsubst tests/plugins/%.c,$(BUILD)/tests/plugins/%.so,$(TPLUG_SRC))
 
 .PHONY: all libs tests benches check bench demo deps install clean
 .DEFAULT_GOAL := all
 
 all: libs $(PROGS)
 libs: $(ALL_LIBS)
-tests: $(TESTS) $(TOOLS)
+tests: $(TESTS) $(TOOLS) $(TPLUGS)
 benches: $(BENCHES)
 
 $(BUILD)/obj/%.o: %.c
@@ -96,12 +98,22 @@ $(LIBHS): $(call obj,$(PLUGIN_SRC))
 
 $(BUILD)/halostage: $(call obj,$(CLI_SRC)) $(ALL_LIBS)
 	$(CC) $(LDFLAGS) -o $@ $(call obj,$(CLI_SRC)) $(ALL_LIBS) $(LIBS)
+# The host exports nothing to its plugin (no -rdynamic): the plugin reaches
+# the host only through the function pointers of the ABI.
 $(BUILD)/halostaged: $(call obj,$(HOST_SRC)) $(ALL_LIBS)
-	$(CC) $(LDFLAGS) -rdynamic -o $@ $(call obj,$(HOST_SRC)) $(ALL_LIBS) $(LIBS)
+	$(CC) $(LDFLAGS) -o $@ $(call obj,$(HOST_SRC)) $(ALL_LIBS) $(LIBS)
 $(BUILD)/halostage-sim: $(call obj,$(SIM_SRC)) $(ALL_LIBS)
 	$(CC) $(LDFLAGS) -o $@ $(call obj,$(SIM_SRC)) $(ALL_LIBS) $(LIBS)
-$(BUILD)/halostage.so: $(call obj,$(PLUGIN_SRC)) $(LIBHP) $(LIBHC)
-	$(CC) $(LDFLAGS) -shared -o $@ $(call obj,$(PLUGIN_SRC)) $(LIBHP) $(LIBHC) $(LIBS)
+# Only the ABI entry points are exported (mk/plugin.map); the rest binds
+# inside the plugin.
+$(BUILD)/halostage.so: $(call obj,$(PLUGIN_SRC)) $(LIBHP) $(LIBHC) mk/plugin.map
+	$(CC) $(LDFLAGS) -shared -Wl,--version-script=mk/plugin.map -Wl,-z,defs -o $@ \
+	    $(call obj,$(PLUGIN_SRC)) $(LIBHP) $(LIBHC) $(LIBS)
+
+# Small plugins for the ABI tests (e.g. one speaking a version no host offers).
+$(BUILD)/tests/plugins/%.so: tests/plugins/%.c plugin/halostage_plugin.h
+	@mkdir -p $(dir $@)
+	$(CC) $(CPPFLAGS) $(CFLAGS) $(LDFLAGS) -shared -o $@ $<
 
 # A test may add linker flags (e.g. -Wl,--wrap=...) in tests/unit/test_X.ldflags.
 $(BUILD)/tests/%: tests/unit/%.c $(call obj,$(SUPP_SRC)) $(ALL_LIBS)
@@ -133,6 +145,37 @@ bench: deps
 demo: deps
 	$(MAKE) --no-print-directory all SAN=0
 	@bash mk/demo.sh build
+
+# Installs to standard paths (DESTDIR for packaging). A site's existing
+# /etc/halostage/halostage.ini is never overwritten; the annotated reference
+# lands next to it.
+BINDIR    := $(PREFIX)/bin
+PLUGINDIR := $(PREFIX)/lib/halostage
+DOCDIR    := $(PREFIX)/share/doc/halostage
+UNITDIR   ?= /etc/systemd/system
+CONFDIR   ?= /etc/halostage
+STATEDIR  ?= /var/lib/halostage
+install: all
+	install -d $(DESTDIR)$(BINDIR) $(DESTDIR)$(PLUGINDIR) $(DESTDIR)$(DOCDIR) \
+	    $(DESTDIR)$(UNITDIR) $(DESTDIR)$(CONFDIR)
+	install -m 0755 $(BUILD)/halostage $(BUILD)/halostaged $(DESTDIR)$(BINDIR)/
+	install -m 0644 $(BUILD)/halostage.so $(DESTDIR)$(PLUGINDIR)/
+	install -m 0644 plugin/halostage_plugin.h README.md $(DESTDIR)$(DOCDIR)/
+	install -m 0644 systemd/halostaged.service $(DESTDIR)$(UNITDIR)/
+	for f in config/*.ini; do [ ! -f "$$f" ] || \
+	    install -m 0640 "$$f" $(DESTDIR)$(CONFDIR)/example-$$(basename "$$f"); done
+	@if [ -z "$(DESTDIR)" ] && [ "$$(id -u)" -eq 0 ]; then \
+	    getent group halostage >/dev/null || groupadd --system halostage; \
+	    getent passwd halostage >/dev/null || useradd --system --gid halostage \
+	        --home-dir $(STATEDIR) --no-create-home --shell /usr/sbin/nologin halostage; \
+	    install -d -m 0750 -o halostage -g halostage $(STATEDIR); \
+	    chgrp -R halostage $(CONFDIR); \
+	    command -v systemctl >/dev/null && systemctl daemon-reload 2>/dev/null; \
+	    echo "installed; write $(CONFDIR)/halostage.ini (see example-reference.ini), then: systemctl enable --now halostaged"; \
+	else \
+	    install -d $(DESTDIR)$(STATEDIR); \
+	    echo "installed under $(DESTDIR); create the halostage user and chown $(STATEDIR) when deploying"; \
+	fi
 
 clean:
 	rm -rf build

@@ -4,5 +4,6 @@
 
 /* Keep in the order `halostage help` should list them. */
 const struct hs_command hs_commands[] = {
+    {"calc", hs_cmd_calc, "brine state of one sample from conductivity or density"},
     {NULL, NULL, NULL},
 };

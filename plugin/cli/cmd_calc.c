@@ -1,0 +1,303 @@
+/* `halostage calc`: the brine state of one sample, from conductivity and
+ * temperature or from density and temperature, as a table or as JSON.
+ *
+ * Shape, so that the range can grow: parse_request() reads the options into
+ * a calc_request, compute_state() turns it into an hc_brine_state (today:
+ * the seawater range, PSS-78 and EOS-80), and print_table()/JSON print it.
+ * A wider brine model plugs into compute_state() only. */
+#include <errno.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include <jansson.h>
+
+#include "cli/commands.h"
+#include "hc_baume.h"
+#include "hc_eos80.h"
+#include "hc_pss78.h"
+#include "hc_seawater.h"
+#include "hc_state.h"
+#include "hp_state_json.h"
+
+struct calc_request {
+    int have_conductivity;
+    double conductivity_ms_cm;
+    int have_density;
+    double density_kg_m3;
+    int have_temperature;
+    double temperature_c;
+    double pressure_dbar;
+    const char *feed_name;
+    hc_seawater_options opt;
+    const char *tref_text; /* as typed, for messages */
+    int json;
+};
+
+static void usage(FILE *out)
+{
+    fprintf(out,
+            "usage: halostage calc --conductivity MS_CM --temperature DEGC [OPTIONS]\n"
+            "       halostage calc --density KG_M3 --temperature DEGC [OPTIONS]\n"
+            "\n"
+            "The brine state of one sample: practical salinity (PSS-78), density\n"
+            "(EOS-80), specific gravity and degree Baume at a reference temperature,\n"
+            "and concentration factor against the feed.\n"
+            "\n"
+            "  --conductivity MS_CM     conductivity of the sample [mS/cm]\n"
+            "  --density KG_M3          density measured at the sample temperature [kg/m3]\n"
+            "  --temperature DEGC       sample temperature, ITS-90 [degC], -2..45\n"
+            "  --pressure DBAR          sea pressure at the sensor [dbar], default 0\n"
+            "  --feed NAME              feed water; `seawater` (S_P 35, the default)\n"
+            "  --feed-salinity SP       feed of reference composition with this S_P\n"
+            "  --reference-temperature DEGC|60F\n"
+            "                           for specific gravity and Baume: 15 (default), 20, 60F\n"
+            "  --modulus M              Baume modulus: 145 (default), 144.3, 146.78, ...\n"
+            "  --json                   one JSON object instead of the table\n");
+}
+
+/* Parses a whole-string finite number; 0 on success. */
+static int parse_number(const char *opt, const char *text, double *out)
+{
+    char *end = NULL;
+    errno = 0;
+    double v = strtod(text, &end);
+    if (end == text || *end != '\0' || errno != 0 || !isfinite(v)) {
+        fprintf(stderr, "halostage calc: %s: '%s' is not a number\n", opt, text);
+        return -1;
+    }
+    *out = v;
+    return 0;
+}
+
+static int parse_reference_temperature(const char *text, double *t_ref_c)
+{
+    if (strcmp(text, "60F") == 0 || strcmp(text, "60f") == 0) {
+        *t_ref_c = HC_TREF_60F;
+        return 0;
+    }
+    if (parse_number("--reference-temperature", text, t_ref_c) != 0)
+        return -1;
+    if (*t_ref_c < HC_EOS80_T_MIN_C || *t_ref_c > HC_EOS80_T_VALID_MAX_C) {
+        fprintf(stderr,
+                "halostage calc: --reference-temperature %s: outside %.0f..%.0f degC "
+                "(usual: 15, 20 or 60F)\n",
+                text, HC_EOS80_T_MIN_C, HC_EOS80_T_VALID_MAX_C);
+        return -1;
+    }
+    return 0;
+}
+
+/* 0 ok, 2 usage error (message printed), 3 --help shown. */
+static int parse_request(int argc, char **argv, struct calc_request *rq)
+{
+    memset(rq, 0, sizeof *rq);
+    hc_seawater_options_default(&rq->opt);
+    rq->feed_name = "seawater";
+    rq->tref_text = "15";
+    for (int i = 1; i < argc; i++) {
+        const char *a = argv[i];
+        if (strcmp(a, "--help") == 0 || strcmp(a, "-h") == 0) {
+            usage(stdout);
+            return 3;
+        }
+        if (strcmp(a, "--json") == 0) {
+            rq->json = 1;
+            continue;
+        }
+        if (i + 1 >= argc) {
+            fprintf(stderr, "halostage calc: %s needs a value (see --help)\n", a);
+            return 2;
+        }
+        const char *v = argv[++i];
+        int rc = 0;
+        if (strcmp(a, "--conductivity") == 0) {
+            rc = parse_number(a, v, &rq->conductivity_ms_cm);
+            rq->have_conductivity = 1;
+        } else if (strcmp(a, "--density") == 0) {
+            rc = parse_number(a, v, &rq->density_kg_m3);
+            rq->have_density = 1;
+        } else if (strcmp(a, "--temperature") == 0) {
+            rc = parse_number(a, v, &rq->temperature_c);
+            rq->have_temperature = 1;
+        } else if (strcmp(a, "--pressure") == 0) {
+            rc = parse_number(a, v, &rq->pressure_dbar);
+        } else if (strcmp(a, "--feed") == 0) {
+            if (strcmp(v, "seawater") != 0) {
+                fprintf(stderr,
+                        "halostage calc: --feed %s: unknown feed (known: seawater; "
+                        "--feed-salinity SP for seawater of another salinity)\n", v);
+                return 2;
+            }
+            rq->feed_name = v;
+            rq->opt.feed_sp = HC_SW_FEED_SP_DEFAULT;
+        } else if (strcmp(a, "--feed-salinity") == 0) {
+            rc = parse_number(a, v, &rq->opt.feed_sp);
+            if (rc == 0 && (rq->opt.feed_sp <= 0.0 || rq->opt.feed_sp > HC_PSS78_SP_MAX)) {
+                fprintf(stderr, "halostage calc: --feed-salinity %s: must be above 0 and at "
+                                "most %.0f\n", v, HC_PSS78_SP_MAX);
+                return 2;
+            }
+            rq->feed_name = "seawater (given salinity)";
+        } else if (strcmp(a, "--reference-temperature") == 0) {
+            rc = parse_reference_temperature(v, &rq->opt.reference_temperature_c);
+            rq->tref_text = v;
+        } else if (strcmp(a, "--modulus") == 0) {
+            rc = parse_number(a, v, &rq->opt.baume_modulus);
+            if (rc == 0 && !hc_baume_modulus_valid(rq->opt.baume_modulus)) {
+                fprintf(stderr, "halostage calc: --modulus %s: must be a positive number "
+                                "(145, 144.3 or 146.78 are usual)\n", v);
+                return 2;
+            }
+        } else {
+            fprintf(stderr, "halostage calc: unknown option '%s' (see --help)\n", a);
+            return 2;
+        }
+        if (rc != 0)
+            return 2;
+    }
+    if (rq->have_conductivity == rq->have_density) {
+        fprintf(stderr, "halostage calc: give exactly one of --conductivity or --density\n");
+        return 2;
+    }
+    if (!rq->have_temperature) {
+        fprintf(stderr, "halostage calc: --temperature is required\n");
+        return 2;
+    }
+    return 0;
+}
+
+/* One line naming the input that a calc error refers to. */
+static void explain(const struct calc_request *rq, hc_status st)
+{
+    const char *what = rq->have_conductivity ? "--conductivity" : "--density";
+    double value = rq->have_conductivity ? rq->conductivity_ms_cm : rq->density_kg_m3;
+    switch (st) {
+    case HC_ERR_TEMPERATURE_RANGE:
+        fprintf(stderr, "halostage calc: --temperature %g: outside %.0f..%.0f degC\n",
+                rq->temperature_c, HC_PSS78_T_MIN_C, HC_PSS78_T_MAX_C);
+        return;
+    case HC_ERR_PRESSURE_RANGE:
+        fprintf(stderr, "halostage calc: --pressure %g: outside 0..%.0f dbar\n",
+                rq->pressure_dbar, HC_PSS78_P_MAX_DBAR);
+        return;
+    case HC_ERR_NEGATIVE:
+        fprintf(stderr, "halostage calc: %s %g: cannot be negative\n", what, value);
+        return;
+    case HC_ERR_SALINITY_RANGE:
+        if (rq->have_conductivity)
+            fprintf(stderr,
+                    "halostage calc: --conductivity %g mS/cm at %g degC is beyond PSS-78 "
+                    "(practical salinity above %.0f); brine beyond seawater needs the brine "
+                    "model, which this build does not have\n",
+                    value, rq->temperature_c, HC_PSS78_SP_MAX);
+        else
+            fprintf(stderr,
+                    "halostage calc: --density %g kg/m3 at %g degC is beyond EOS-80 "
+                    "(seawater of practical salinity %.0f); brine beyond seawater needs the "
+                    "brine model, which this build does not have\n",
+                    value, rq->temperature_c, HC_EOS80_SP_MAX);
+        return;
+    case HC_ERR_DOMAIN:
+        fprintf(stderr, "halostage calc: --density %g kg/m3 is below pure water at %g degC\n",
+                value, rq->temperature_c);
+        return;
+    default:
+        fprintf(stderr, "halostage calc: %s %g: %s\n", what, value, hc_status_text(st));
+        return;
+    }
+}
+
+static hc_status compute_state(const struct calc_request *rq, hc_brine_state *st)
+{
+    if (rq->have_conductivity)
+        return hc_seawater_state_from_conductivity(rq->conductivity_ms_cm, rq->temperature_c,
+                                                   rq->pressure_dbar, &rq->opt, st);
+    return hc_seawater_state_from_density(rq->density_kg_m3, rq->temperature_c,
+                                          rq->pressure_dbar, &rq->opt, st);
+}
+
+static void print_value(const char *label, double v, const char *fmt, const char *unit)
+{
+    printf("  %-24s ", label);
+    if (isfinite(v))
+        printf(fmt, v);
+    else
+        printf("-");
+    printf("%s\n", unit);
+}
+
+static void print_table(const struct calc_request *rq, const hc_brine_state *st)
+{
+    char tref[48];
+    char unit[96];
+    if (fabs(st->reference_temperature_c - HC_TREF_60F) < 1e-9)
+        snprintf(tref, sizeof tref, "60/60 degF");
+    else
+        snprintf(tref, sizeof tref, "%g/%g degC", st->reference_temperature_c,
+                 st->reference_temperature_c);
+
+    printf("Brine state (%s, method %s)\n",
+           rq->have_conductivity ? "from conductivity" : "from density",
+           hc_method_name(st->method));
+    if (rq->have_conductivity)
+        print_value("conductivity", rq->conductivity_ms_cm, "%.3f", " mS/cm");
+    print_value("temperature", st->temperature_c, "%.2f", " degC (ITS-90)");
+    if (rq->pressure_dbar != 0.0)
+        print_value("pressure", rq->pressure_dbar, "%.1f", " dbar");
+    print_value("practical salinity", st->practical_salinity, "%.4f", " (PSS-78)");
+    print_value("salinity", st->salinity_g_kg, "%.3f", " g/kg (reference composition)");
+    print_value("density", st->density_kg_m3, "%.3f", " kg/m3 at sample temperature");
+    snprintf(unit, sizeof unit, " (%s)", tref);
+    print_value("specific gravity", st->specific_gravity, "%.5f", unit);
+    snprintf(unit, sizeof unit, " deg Be (modulus %g)", st->baume_modulus);
+    print_value("degree Baume", st->baume, "%.2f", unit);
+    snprintf(unit, sizeof unit, " (feed: %s, S_P %g)", rq->feed_name, rq->opt.feed_sp);
+    print_value("concentration factor", st->concentration_factor, "%.3f", unit);
+    printf("  %-24s %s\n", "stage", hc_stage_name(st->stage));
+    if (st->next_stage != HC_STAGE_NONE)
+        printf("  %-24s %s\n", "next stage", hc_stage_name(st->next_stage));
+    if (st->warnings == 0)
+        printf("  %-24s none\n", "warnings");
+    for (unsigned i = 0; i < HC_WARN_COUNT_BITS; i++) {
+        unsigned bit = 1u << i;
+        if ((st->warnings & bit) && hc_warning_text(bit) != NULL)
+            printf("  %-24s %s\n", "warning", hc_warning_text(bit));
+    }
+}
+
+static int print_json(const hc_brine_state *st)
+{
+    json_t *obj = hp_state_to_json(st);
+    char *text = obj != NULL ? json_dumps(obj, JSON_REAL_PRECISION(12)) : NULL;
+    json_decref(obj);
+    if (text == NULL) {
+        fprintf(stderr, "halostage calc: out of memory formatting JSON\n");
+        return 1;
+    }
+    printf("%s\n", text);
+    free(text);
+    return 0;
+}
+
+int hs_cmd_calc(int argc, char **argv)
+{
+    struct calc_request rq;
+    int rc = parse_request(argc, argv, &rq);
+    if (rc == 3)
+        return 0;
+    if (rc != 0)
+        return 2;
+
+    hc_brine_state st;
+    hc_status s = compute_state(&rq, &st);
+    if (s != HC_OK) {
+        explain(&rq, s);
+        return 1;
+    }
+    if (rq.json)
+        return print_json(&st);
+    print_table(&rq, &st);
+    return 0;
+}

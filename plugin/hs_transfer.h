@@ -1,0 +1,168 @@
+/* Transfer-pump decisions: when to move brine from one pond to the next,
+ * and every reason it must not. Pure logic: no I/O, no clock, no
+ * allocation. The caller gathers inputs each cycle (with their quality),
+ * calls hs_transfer_decide(), then journals, publishes and (only where the
+ * site opted in with `actuate = yes`) writes the pump output.
+ *
+ * Safety rules built in:
+ *  - Interlocks stop a running pump at once, whatever the minimum on time.
+ *  - Any required input that is bad, stale or missing blocks the transfer
+ *    and, when actuating, commands the pump off (its safe state).
+ *  - A pump in manual override is never written.
+ *  - A pump that does not confirm running within the feedback timeout is
+ *    commanded off and latched out for the minimum off time.
+ * Error convention: functions return 0 on success, -1 on a malformed rule
+ * (hs_transfer_rule_check writes the reason). */
+#ifndef HS_TRANSFER_H
+#define HS_TRANSFER_H
+
+#include <stddef.h>
+#include <stdint.h>
+
+#define HS_TRANSFER_NAME_MAX 48
+
+typedef enum {
+    HS_TRIGGER_DENSITY, /* source density at or above start_density_kg_m3 */
+    HS_TRIGGER_STAGE    /* source at or past start_stage (an hc_stage) */
+} hs_trigger_kind;
+
+/* Quality of one input as the transfer engine sees it. */
+typedef enum {
+    HS_XQ_GOOD,
+    HS_XQ_STALE,   /* older than the signal's stale limit */
+    HS_XQ_BAD,     /* comm failure, out of range, sentinel, decode error */
+    HS_XQ_ABSENT   /* no such signal configured */
+} hs_xfer_quality;
+
+struct hs_xfer_input {
+    double value;
+    hs_xfer_quality quality;
+};
+
+/* One transfer's rule, from its [transfer NAME] section. NaN disables a
+ * numeric limit; a zero duration disables that timing rule. */
+struct hs_transfer_rule {
+    hs_trigger_kind trigger;
+    double start_density_kg_m3;   /* density trigger [kg/m3] */
+    int start_stage;              /* stage trigger (hc_stage value) */
+    double hysteresis_kg_m3;      /* stop below start density minus this [kg/m3] */
+    double source_level_min_m;    /* stop at or below [m] */
+    double dest_level_max_m;      /* stop at or above [m] */
+    double level_deadband_m;      /* a level interlock clears this far inside [m] */
+    double dest_density_min_kg_m3;/* band the destination must stay in after mixing */
+    double dest_density_max_kg_m3;
+    int64_t min_on_ms;
+    int64_t min_off_ms;
+    int64_t max_run_ms;
+    int64_t feedback_timeout_ms;  /* run feedback must confirm within this */
+    int actuate;                  /* 0: advisory only (default) */
+    int has_rain;                 /* a rain signal guards this transfer */
+    int has_manual;               /* a manual-override signal exists */
+    int has_feedback;             /* a run-feedback signal exists */
+};
+
+/* One cycle's inputs. Inputs a rule does not use may be left absent. */
+struct hs_transfer_inputs {
+    int64_t now_ms;                    /* monotonic [ms] */
+    struct hs_xfer_input source_density;  /* [kg/m3] */
+    int source_stage;                  /* hc_stage, valid when source_density is good */
+    struct hs_xfer_input source_level;    /* [m] */
+    struct hs_xfer_input dest_level;      /* [m] */
+    struct hs_xfer_input dest_density_after_mixing; /* predicted [kg/m3] */
+    struct hs_xfer_input rain;            /* nonzero: raining or rain forecast */
+    struct hs_xfer_input manual;          /* nonzero: pump in manual (local) control */
+    struct hs_xfer_input run_feedback;    /* nonzero: pump confirms running */
+    int bus_up;                        /* every bus the transfer needs is connected */
+};
+
+/* Reasons, as bits. The first group are interlocks: any one blocks. */
+enum {
+    HS_XR_SOURCE_LEVEL_LOW    = 1u << 0,
+    HS_XR_DEST_LEVEL_HIGH     = 1u << 1,
+    HS_XR_DEST_DENSITY_BAND   = 1u << 2,
+    HS_XR_RAIN                = 1u << 3,
+    HS_XR_BAD_INPUT           = 1u << 4,
+    HS_XR_STALE_INPUT         = 1u << 5,
+    HS_XR_BUS_DOWN            = 1u << 6,
+    HS_XR_MANUAL_OVERRIDE     = 1u << 7,
+    HS_XR_NO_RUN_FEEDBACK     = 1u << 8,  /* latched fault */
+    HS_XR_INTERLOCK_MASK      = (1u << 9) - 1,
+    /* timing and trigger: explain, never a safety block */
+    HS_XR_TRIGGER_MET         = 1u << 9,
+    HS_XR_TRIGGER_NOT_MET     = 1u << 10,
+    HS_XR_HYSTERESIS_HOLD     = 1u << 11, /* running, trigger fell but within hysteresis */
+    HS_XR_MIN_ON_TIME         = 1u << 12, /* kept running: minimum on time */
+    HS_XR_MIN_OFF_TIME        = 1u << 13, /* kept off: minimum off time */
+    HS_XR_MAX_RUN_TIME        = 1u << 14, /* stopped: maximum run time reached */
+    HS_XR_PUMP_STILL_RUNNING  = 1u << 15, /* commanded off, feedback says running */
+    HS_XR_BITS                = 16
+};
+
+typedef enum {
+    HS_ADVICE_IDLE,    /* nothing to move: pump off */
+    HS_ADVICE_RUN,     /* move brine: pump on */
+    HS_ADVICE_BLOCKED, /* brine is ready but an interlock forbids it: pump off */
+    HS_ADVICE_WAIT     /* brine is ready, a timing rule holds it off: pump off */
+} hs_advice;
+
+typedef enum {
+    HS_WRITE_NONE, /* write nothing (advisory, or pump in manual) */
+    HS_WRITE_ON,
+    HS_WRITE_OFF
+} hs_pump_write;
+
+/* Memory between cycles; zero it (hs_transfer_state_init) at start. */
+struct hs_transfer_state {
+    int running;            /* the advice/command is "on" */
+    int started;            /* a first decision has been made */
+    int64_t changed_ms;     /* when running last changed */
+    int64_t latch_until_ms; /* no start before this (max run, feedback fault) */
+    unsigned latched;       /* reason bits held by the latch */
+    int source_low;         /* level interlocks, with their deadband */
+    int dest_high;
+    double start_density_kg_m3; /* source density when the run began */
+};
+
+struct hs_transfer_decision {
+    hs_advice advice;
+    int pump_on;            /* the advice in one bit */
+    hs_pump_write write;    /* what to write to the pump output this cycle */
+    unsigned reasons;       /* HS_XR_* */
+    int changed;            /* advice or reasons differ from last cycle */
+    int feedback_alarm;     /* run feedback missing: raise an alarm */
+};
+
+void hs_transfer_state_init(struct hs_transfer_state *state);
+
+/* Sets the rule's defaults: density trigger with NaN thresholds (so the
+ * config must give one), deadband 0.02 m, advisory. */
+void hs_transfer_rule_defaults(struct hs_transfer_rule *rule);
+
+/* 0 when the rule is coherent, else -1 with a reason in why. */
+int hs_transfer_rule_check(const struct hs_transfer_rule *rule, char *why, size_t why_len);
+
+/* One cycle. prev is the last decision (or NULL at the first cycle) and is
+ * only read to set out->changed. Always fills out. */
+void hs_transfer_decide(const struct hs_transfer_rule *rule, struct hs_transfer_state *state,
+                        const struct hs_transfer_inputs *in,
+                        const struct hs_transfer_decision *prev,
+                        struct hs_transfer_decision *out);
+
+/* The safe state for shutdown: pump off when actuating, nothing otherwise. */
+hs_pump_write hs_transfer_safe_write(const struct hs_transfer_rule *rule);
+
+/* Short names ("source-level-low") and operator sentences per reason bit;
+ * NULL for an unknown bit. */
+const char *hs_transfer_reason_name(unsigned bit);
+const char *hs_transfer_reason_text(unsigned bit);
+const char *hs_advice_name(hs_advice advice); /* "idle", "run", "blocked", "wait" */
+
+/* Writes "name,name,..." of the set bits into buf (empty when none).
+ * Returns the length that would have been written, as snprintf. */
+int hs_transfer_reasons_format(unsigned reasons, char *buf, size_t len);
+
+/* The PLC heartbeat: a counter that changes every cycle, 1..65535 (never 0,
+ * so a PLC can tell "never written" from "written"). */
+uint16_t hs_transfer_heartbeat_next(uint16_t previous);
+
+#endif
