@@ -7,6 +7,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "hs_commission.h"
 #include "hs_host.h"
 
 static void usage(FILE *out)
@@ -14,7 +15,10 @@ static void usage(FILE *out)
     fprintf(out,
             "usage: halostaged --config FILE [--plugin PATH] [--log-level LEVEL]\n"
             "                  [--emit-stdout] [--run-for SECONDS]\n"
+            "       halostaged --config FILE --check\n"
             "  --config FILE     the site configuration (INI)\n"
+            "  --check           validate the configuration and exit (0, or 78 with\n"
+            "                    FILE:LINE: reasons on stderr)\n"
             "  --plugin PATH     the plugin to host (default: halostage.so next to\n"
             "                    this program, else ../lib/halostage/)\n"
             "  --log-level L     error|warning|notice|info|debug (default info)\n"
@@ -42,11 +46,13 @@ int main(int argc, char **argv)
         {"log-level", required_argument, NULL, 'l'},
         {"emit-stdout", no_argument, NULL, 'e'},
         {"run-for", required_argument, NULL, 'r'},
+        {"check", no_argument, NULL, 'k'},
         {"help", no_argument, NULL, 'h'},
         {NULL, 0, NULL, 0},
     };
     struct hs_host_options options = {0};
     int level = HSP_LOG_INFO;
+    int check = 0;
     hs_host_log_init("halostaged", level);
     int opt;
     while ((opt = getopt_long(argc, argv, "c:p:l:er:h", longopts, NULL)) != -1) {
@@ -69,6 +75,7 @@ int main(int argc, char **argv)
                 return 2;
             }
             break;
+        case 'k': check = 1; break;
         case 'h': usage(stdout); return 0;
         default: usage(stderr); return 2;
         }
@@ -77,5 +84,7 @@ int main(int argc, char **argv)
         usage(stderr);
         return 2;
     }
+    if (check)
+        return hs_check_run(options.config_path);
     return hs_host_service_run(&options);
 }

@@ -13,32 +13,14 @@
 
 #include "hc_balance.h"
 #include "hc_forecast.h"
+#include "hydro_demo_curve.h"
 
-/* An invented seawater-like path for tests (demo numbers, no source):
- * salt per kg water s = 0.0363 CF until s reaches 0.357 (about 6.1 mol/kg
- * NaCl), then constant while halite deposits; rho ~ 1000 (1 + 0.75 w);
- * a_w = 1 - 0.95 w, then falling to 0.55 at CF 40. */
-#define ROWS 40
-static double cf_v[ROWS], rho_v[ROWS], s_v[ROWS], dep_v[ROWS], aw_v[ROWS];
-static hc_brine_curve curve = {ROWS, cf_v, rho_v, s_v, dep_v, aw_v};
+static hc_brine_curve curve;
 
 static int setup_curve(void **unused)
 {
     (void)unused;
-    for (int i = 0; i < ROWS; i++) {
-        double cf = exp(log(40.0) * i / (ROWS - 1));
-        double s = 0.0363 * cf, sat = 0.357;
-        double past = s > sat ? log(cf * 0.0363 / sat) / log(40 * 0.0363 / sat) : 0;
-        if (s > sat)
-            s = sat;
-        double w = s / (1 + s);
-        cf_v[i] = cf;
-        rho_v[i] = 1000 * (1 + 0.75 * w) + 35 * past;
-        s_v[i] = s;
-        dep_v[i] = 0.0363 - s / cf;
-        aw_v[i] = (1 - 0.95 * w) - 0.2 * past;
-    }
-    dep_v[0] = 0;
+    curve = *hydro_demo_curve();
     return hc_curve_check(&curve, NULL) == HC_OK ? 0 : -1;
 }
 

@@ -1,0 +1,172 @@
+/* The outbox pump (see hs_publish.h). Rows leave the outbox in id order and
+ * are deleted only when the broker acknowledged them. After a reconnect or
+ * a failed publish, every row still in the outbox is sent again from the
+ * oldest: delivery is at least once, and a subscriber sees each event's
+ * first copy in order (alarms carry event_id to drop repeats). */
+#include <stdlib.h>
+#include <string.h>
+
+#include "hs_publish.h"
+
+#define WINDOW_MAX 1024
+
+struct hs_publisher {
+    hs_store *st;
+    hp_mqtt *link;
+    hs_topics topics;
+    int window;
+    int64_t inflight[WINDOW_MAX]; /* row ids sent and not yet acknowledged */
+    int ninflight;
+    int64_t last_sent;            /* highest row id sent since the rewind */
+    int64_t *done;                /* acknowledged ids waiting for deletion */
+    size_t ndone, capdone;
+    int connected;
+    int rewind;                   /* send again from the oldest row */
+    hs_publisher_stats stats;
+    hs_inbound_fn inbound;
+    void *inbound_ctx;
+    int failed;                   /* a store error during event handling */
+};
+
+hs_publisher *hs_publisher_new(hs_store *st, hp_mqtt *link, const hs_topics *t, int window)
+{
+    if (st == NULL || link == NULL || t == NULL || window < 0 || window > WINDOW_MAX)
+        return NULL;
+    hs_publisher *p = calloc(1, sizeof *p);
+    if (p == NULL)
+        return NULL;
+    p->st = st;
+    p->link = link;
+    p->topics = *t;
+    p->window = window ? window : 64;
+    return p;
+}
+
+void hs_publisher_free(hs_publisher *p)
+{
+    if (p) {
+        free(p->done);
+        free(p);
+    }
+}
+
+void hs_publisher_stats_get(const hs_publisher *p, hs_publisher_stats *out)
+{
+    *out = p->stats;
+    out->connected = p->connected;
+    out->in_flight = p->ninflight;
+}
+
+static void forget_inflight(hs_publisher *p)
+{
+    p->ninflight = 0;
+    p->last_sent = 0;
+}
+
+static int remove_inflight(hs_publisher *p, int64_t id)
+{
+    for (int i = 0; i < p->ninflight; i++)
+        if (p->inflight[i] == id) {
+            memmove(&p->inflight[i], &p->inflight[i + 1],
+                    (size_t)(p->ninflight - i - 1) * sizeof p->inflight[0]);
+            p->ninflight--;
+            return 1;
+        }
+    return 0;
+}
+
+static void mark_done(hs_publisher *p, int64_t id)
+{
+    if (p->ndone == p->capdone) {
+        size_t cap = p->capdone ? p->capdone * 2 : 256;
+        int64_t *more = realloc(p->done, cap * sizeof *more);
+        if (more == NULL) {
+            p->rewind = 1; /* it will be sent again and acknowledged again */
+            return;
+        }
+        p->done = more;
+        p->capdone = cap;
+    }
+    p->done[p->ndone++] = id;
+}
+
+static void publish_gateway(hs_publisher *p)
+{
+    char topic[HS_TOPIC_MAX];
+    char *text = hs_gateway_payload(&p->topics, 1);
+    if (text && hs_topic(topic, sizeof topic, &p->topics, "gateway", NULL, NULL) == 0)
+        hp_mqtt_publish(p->link, topic, text, strlen(text), 1, 1, 0); /* tag 0: not a row */
+    free(text);
+}
+
+static void on_event(void *ctx, const hp_mqtt_event *ev)
+{
+    hs_publisher *p = ctx;
+    switch (ev->type) {
+    case HP_MQTT_CONNECTED:
+        p->connected = 1;
+        p->stats.connects++;
+        forget_inflight(p);
+        publish_gateway(p);
+        break;
+    case HP_MQTT_DISCONNECTED:
+        p->connected = 0;
+        forget_inflight(p);
+        break;
+    case HP_MQTT_DELIVERED:
+        if (ev->tag > 0) {
+            remove_inflight(p, ev->tag);
+            mark_done(p, ev->tag);
+            p->stats.delivered++;
+        }
+        break;
+    case HP_MQTT_FAILED:
+        if (ev->tag > 0) {
+            p->stats.failed++;
+            if (remove_inflight(p, ev->tag))
+                p->rewind = 1;
+        }
+        break;
+    case HP_MQTT_MESSAGE:
+        if (p->inbound)
+            p->inbound(p->inbound_ctx, ev->topic, ev->payload, ev->payload_len, ev->oversize);
+        break;
+    }
+}
+
+static int send_row(void *ctx, const hs_outbox_msg *m)
+{
+    hs_publisher *p = ctx;
+    if (hp_mqtt_publish(p->link, m->topic, m->payload, m->payload_len, m->qos, m->retained,
+                        m->id) != 0)
+        return 1; /* not connected any more: stop; the rest waits */
+    p->inflight[p->ninflight++] = m->id;
+    p->last_sent = m->id;
+    p->stats.sent++;
+    return p->ninflight >= p->window;
+}
+
+int hs_publisher_pump(hs_publisher *p, int wait_ms, hs_inbound_fn fn, void *ctx)
+{
+    p->inbound = fn;
+    p->inbound_ctx = ctx;
+    hp_mqtt_poll(p->link, wait_ms, on_event, p);
+    if (p->ndone > 0) {
+        if (hs_store_outbox_done(p->st, p->done, p->ndone) != 0)
+            return -1;
+        p->ndone = 0;
+    }
+    if (p->rewind) {
+        /* Wait for what is in flight to settle, then start from the oldest. */
+        if (p->ninflight > 0)
+            return 0;
+        p->rewind = 0;
+        p->last_sent = 0;
+    }
+    if (!p->connected || !hp_mqtt_connected(p->link))
+        return 0;
+    int room = p->window - p->ninflight;
+    if (room <= 0)
+        return 0;
+    return hs_store_outbox_peek(p->st, p->last_sent, room, send_row, p) < 0 ? -1 : 0;
+}

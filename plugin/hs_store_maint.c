@@ -1,0 +1,153 @@
+/* History store: rollups, retention and checkpoints (writer only).
+ * Rollups keep n, min, sum, max and worst quality per bucket, so buckets
+ * merge exactly (mean = sum / n) whether folded once or in pieces. */
+#include <stdio.h>
+#include <string.h>
+
+#include "hs_store_private.h"
+
+/* Rows later than this after a minute's end are not folded into it. */
+#define FOLD_GRACE_MS INT64_C(5000)
+
+#define UPSERT_TAIL \
+    " ON CONFLICT(series_id, step_s, t_ms) DO UPDATE SET n = n + excluded.n," \
+    " vmin = min(vmin, excluded.vmin), vsum = vsum + excluded.vsum," \
+    " vmax = max(vmax, excluded.vmax), worst = max(worst, excluded.worst)"
+
+static int run_range(hs_store *st, const char *sql, int64_t a, int64_t b)
+{
+    sqlite3_stmt *s = NULL;
+    if (sqlite3_prepare_v2(st->db, sql, -1, &s, NULL) != SQLITE_OK)
+        return hs_store_fail_db(st, "preparing maintenance");
+    sqlite3_bind_int64(s, 1, a);
+    sqlite3_bind_int64(s, 2, b);
+    int rc = sqlite3_step(s);
+    sqlite3_finalize(s);
+    return rc == SQLITE_DONE ? 0 : hs_store_fail_db(st, "running maintenance");
+}
+
+/* Earliest raw time (sample or state), or -1 when there is none. */
+static int earliest_raw(hs_store *st, int64_t *out)
+{
+    sqlite3_stmt *s = NULL;
+    if (sqlite3_prepare_v2(st->db, "SELECT min(t) FROM (SELECT min(t_ms) AS t FROM sample"
+                                   " UNION ALL SELECT min(t_ms) FROM pond_state)",
+                           -1, &s, NULL) != SQLITE_OK)
+        return hs_store_fail_db(st, "finding the first sample");
+    int rc = sqlite3_step(s);
+    *out = rc == SQLITE_ROW && sqlite3_column_type(s, 0) != SQLITE_NULL
+               ? sqlite3_column_int64(s, 0) : -1;
+    sqlite3_finalize(s);
+    return rc == SQLITE_ROW ? 0 : hs_store_fail_db(st, "finding the first sample");
+}
+
+static int fold_minutes(hs_store *st, int64_t from, int64_t to)
+{
+    if (run_range(st,
+                  "INSERT INTO rollup(series_id, step_s, t_ms, n, vmin, vsum, vmax, worst)"
+                  " SELECT series_id, 60, (t_ms / 60000) * 60000, count(value), min(value),"
+                  " total(value), max(value), max(quality) FROM sample"
+                  " WHERE t_ms >= ?1 AND t_ms < ?2 AND value IS NOT NULL"
+                  " GROUP BY series_id, t_ms / 60000" UPSERT_TAIL,
+                  from, to) != 0)
+        return -1;
+    char sql[1024];
+    for (int i = 0; hs_store_state_fields[i] != NULL; i++) {
+        const char *f = hs_store_state_fields[i];
+        snprintf(sql, sizeof sql,
+                 "INSERT INTO rollup(series_id, step_s, t_ms, n, vmin, vsum, vmax, worst)"
+                 " SELECT s.id, 60, (ps.t_ms / 60000) * 60000, count(ps.%s), min(ps.%s),"
+                 " total(ps.%s), max(ps.%s), max(ps.quality) FROM pond_state ps"
+                 " JOIN pond p ON p.id = ps.pond_id JOIN series s ON s.name = p.name || ':%s'"
+                 " WHERE ps.t_ms >= ?1 AND ps.t_ms < ?2 AND ps.%s IS NOT NULL"
+                 " GROUP BY s.id, ps.t_ms / 60000" UPSERT_TAIL,
+                 f, f, f, f, f, f);
+        if (run_range(st, sql, from, to) != 0)
+            return -1;
+    }
+    return 0;
+}
+
+static int fold_hours(hs_store *st, int64_t from, int64_t to)
+{
+    return run_range(st,
+                     "INSERT INTO rollup(series_id, step_s, t_ms, n, vmin, vsum, vmax, worst)"
+                     " SELECT series_id, 3600, (t_ms / 3600000) * 3600000, sum(n), min(vmin),"
+                     " total(vsum), max(vmax), max(worst) FROM rollup"
+                     " WHERE step_s = 60 AND t_ms >= ?1 AND t_ms < ?2"
+                     " GROUP BY series_id, t_ms / 3600000" UPSERT_TAIL,
+                     from, to);
+}
+
+int hs_store_maintain(hs_store *st, int64_t now_ms)
+{
+    if (st->mode != HS_STORE_WRITE)
+        return hs_store_fail(st, "maintenance needs the writer");
+    if (hs_store_flush(st) != 0 || hs_store_batch_begin(st) != 0)
+        return -1;
+    int64_t minute_done, hour_done, first;
+    if (hs_store_meta_get(st, "rollup_minute_done_ms", -1, &minute_done) != 0 ||
+        hs_store_meta_get(st, "rollup_hour_done_ms", -1, &hour_done) != 0)
+        goto fail;
+    if (minute_done < 0) {
+        if (earliest_raw(st, &first) != 0)
+            goto fail;
+        if (first < 0) /* nothing stored yet */
+            return hs_store_flush(st);
+        minute_done = first / HS_MINUTE_MS * HS_MINUTE_MS;
+    }
+    if (hour_done < 0) /* hours start where the first minutes start */
+        hour_done = minute_done / HS_HOUR_MS * HS_HOUR_MS;
+    int64_t minute_to = (now_ms - FOLD_GRACE_MS) / HS_MINUTE_MS * HS_MINUTE_MS;
+    if (minute_to > minute_done) {
+        if (fold_minutes(st, minute_done, minute_to) != 0 ||
+            hs_store_meta_set(st, "rollup_minute_done_ms", minute_to) != 0)
+            goto fail;
+        minute_done = minute_to;
+    }
+    int64_t hour_to = minute_done / HS_HOUR_MS * HS_HOUR_MS;
+    if (hour_to > hour_done) {
+        if (fold_hours(st, hour_done, hour_to) != 0)
+            goto fail;
+    }
+    if (hs_store_meta_set(st, "rollup_hour_done_ms", hour_to > hour_done ? hour_to : hour_done))
+        goto fail;
+    /* Retention: raw rows go only once they are folded into the minutes. */
+    int64_t raw_cut = now_ms - st->opt.raw_retention_ms;
+    if (raw_cut > minute_done)
+        raw_cut = minute_done;
+    if (run_range(st, "DELETE FROM sample WHERE t_ms < ?1 AND ?2 = ?2", raw_cut, 0) != 0 ||
+        run_range(st, "DELETE FROM pond_state WHERE t_ms < ?1 AND ?2 = ?2", raw_cut, 0) != 0 ||
+        run_range(st, "DELETE FROM rollup WHERE step_s = 60 AND t_ms < ?1 AND ?2 = ?2",
+                  now_ms - st->opt.minute_retention_ms, 0) != 0 ||
+        run_range(st, "DELETE FROM rollup WHERE step_s = 3600 AND t_ms < ?1 AND ?2 = ?2",
+                  now_ms - st->opt.hour_retention_ms, 0) != 0)
+        goto fail;
+    if (hs_store_flush(st) != 0)
+        return -1;
+    return hs_store_checkpoint(st, 0);
+fail:
+    {
+        char keep[sizeof st->err];
+        memcpy(keep, st->err, sizeof keep);
+        hs_store_exec(st, "ROLLBACK");
+        st->in_batch = 0;
+        st->outbox_rows = -1;
+        memcpy(st->err, keep, sizeof keep);
+    }
+    return -1;
+}
+
+int hs_store_checkpoint(hs_store *st, int truncate)
+{
+    if (hs_store_flush(st) != 0)
+        return -1;
+    int rc = sqlite3_wal_checkpoint_v2(st->db, NULL,
+                                       truncate ? SQLITE_CHECKPOINT_TRUNCATE
+                                                : SQLITE_CHECKPOINT_PASSIVE,
+                                       NULL, NULL);
+    /* A busy reader only postpones a checkpoint; that is not an error. */
+    if (rc != SQLITE_OK && rc != SQLITE_BUSY && rc != SQLITE_LOCKED)
+        return hs_store_fail_db(st, "checkpointing the WAL");
+    return 0;
+}

@@ -1,0 +1,207 @@
+/* History store: read queries for operators' views (history, export). */
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "hs_store_private.h"
+
+/* The state field named after "POND:" in series, or NULL for a signal. */
+static const char *state_field(const char *series, char *pond, size_t pond_len)
+{
+    const char *colon = strrchr(series, ':');
+    if (colon == NULL || (size_t)(colon - series) >= pond_len)
+        return NULL;
+    for (int i = 0; hs_store_state_fields[i] != NULL; i++)
+        if (strcmp(colon + 1, hs_store_state_fields[i]) == 0) {
+            memcpy(pond, series, (size_t)(colon - series));
+            pond[colon - series] = '\0';
+            return hs_store_state_fields[i];
+        }
+    return NULL;
+}
+
+static int lookup_series(hs_store *st, const char *name, int64_t *id)
+{
+    sqlite3_stmt *s = hs_store_stmt(st, SQL_SERIES_GET);
+    if (s == NULL)
+        return -1;
+    sqlite3_bind_text(s, 1, name, -1, SQLITE_STATIC);
+    int rc = sqlite3_step(s);
+    if (rc == SQLITE_ROW)
+        *id = sqlite3_column_int64(s, 0);
+    sqlite3_reset(s);
+    if (rc == SQLITE_ROW)
+        return 0;
+    if (rc == SQLITE_DONE)
+        return hs_store_fail(st, "no series '%s' in the store", name);
+    return hs_store_fail_db(st, "looking up a series");
+}
+
+static int emit_points(hs_store *st, sqlite3_stmt *s, int raw, hs_point_fn fn, void *ctx)
+{
+    int rc, n = 0;
+    while ((rc = sqlite3_step(s)) == SQLITE_ROW) {
+        hs_point p;
+        p.t_ms = sqlite3_column_int64(s, 0);
+        if (raw) {
+            p.min = p.mean = p.max = hs_col_num(s, 1);
+            p.count = 1;
+            p.worst = (hs_quality)sqlite3_column_int(s, 2);
+        } else {
+            p.min = hs_col_num(s, 1);
+            p.mean = hs_col_num(s, 2);
+            p.max = hs_col_num(s, 3);
+            p.count = sqlite3_column_int64(s, 4);
+            p.worst = (hs_quality)sqlite3_column_int(s, 5);
+        }
+        fn(ctx, &p);
+        n++;
+    }
+    int ok = rc == SQLITE_DONE ? n : hs_store_fail_db(st, "reading history");
+    sqlite3_finalize(s);
+    return ok;
+}
+
+int hs_store_history(hs_store *st, const char *series, int64_t since_ms, int64_t until_ms,
+                     int64_t step_ms, hs_point_fn fn, void *ctx)
+{
+    char pond[256], sql[512];
+    int64_t id = 0;
+    sqlite3_stmt *s = NULL;
+    if (step_ms < 0 || (step_ms > 0 && step_ms % HS_MINUTE_MS != 0))
+        return hs_store_fail(st, "history step must be raw (0) or whole minutes");
+    if (hs_store_flush(st) != 0 || lookup_series(st, series, &id) != 0)
+        return -1;
+    if (step_ms == 0) {
+        const char *field = state_field(series, pond, sizeof pond);
+        if (field != NULL) {
+            snprintf(sql, sizeof sql,
+                     "SELECT ps.t_ms, ps.%s, ps.quality FROM pond_state ps"
+                     " JOIN pond p ON p.id = ps.pond_id WHERE p.name = ?3"
+                     " AND ps.t_ms >= ?1 AND ps.t_ms < ?2 ORDER BY ps.t_ms",
+                     field);
+        } else {
+            snprintf(sql, sizeof sql, "SELECT t_ms, value, quality FROM sample"
+                                      " WHERE series_id = ?3 AND t_ms >= ?1 AND t_ms < ?2"
+                                      " ORDER BY t_ms");
+        }
+        if (sqlite3_prepare_v2(st->db, sql, -1, &s, NULL) != SQLITE_OK)
+            return hs_store_fail_db(st, "reading history");
+        if (field != NULL)
+            sqlite3_bind_text(s, 3, pond, -1, SQLITE_STATIC);
+        else
+            sqlite3_bind_int64(s, 3, id);
+    } else {
+        int step_s = step_ms % HS_HOUR_MS == 0 ? 3600 : 60;
+        if (sqlite3_prepare_v2(st->db,
+                               "SELECT (t_ms / ?4) * ?4, min(vmin), total(vsum) / sum(n),"
+                               " max(vmax), sum(n), max(worst) FROM rollup"
+                               " WHERE series_id = ?3 AND step_s = ?5 AND t_ms >= ?1"
+                               " AND t_ms < ?2 GROUP BY t_ms / ?4 ORDER BY 1",
+                               -1, &s, NULL) != SQLITE_OK)
+            return hs_store_fail_db(st, "reading history");
+        sqlite3_bind_int64(s, 3, id);
+        sqlite3_bind_int64(s, 4, step_ms);
+        sqlite3_bind_int(s, 5, step_s);
+    }
+    sqlite3_bind_int64(s, 1, since_ms);
+    sqlite3_bind_int64(s, 2, until_ms);
+    return emit_points(st, s, step_ms == 0, fn, ctx);
+}
+
+static hc_stage stage_col(sqlite3_stmt *s, int col)
+{
+    const char *name = (const char *)sqlite3_column_text(s, col);
+    int v = name ? hc_stage_from_name(name) : HC_STAGE_NONE;
+    return v < 0 ? HC_STAGE_NONE : (hc_stage)v;
+}
+
+static hc_method method_col(sqlite3_stmt *s, int col)
+{
+    const char *name = (const char *)sqlite3_column_text(s, col);
+    for (int m = 0; name && m < HC_METHOD_COUNT; m++)
+        if (strcmp(name, hc_method_name((hc_method)m)) == 0)
+            return (hc_method)m;
+    return HC_METHOD_NONE;
+}
+
+int hs_store_states(hs_store *st, const char *pond, int64_t since_ms, int64_t until_ms,
+                    hs_state_fn fn, void *ctx)
+{
+    sqlite3_stmt *s = NULL;
+    if (hs_store_flush(st) != 0)
+        return -1;
+    if (sqlite3_prepare_v2(
+            st->db,
+            "SELECT ps.t_ms, p.name, ps.quality, density_kg_m3, temperature_c,"
+            " practical_salinity, salinity_g_kg, specific_gravity, reference_temperature_c,"
+            " baume, baume_modulus, concentration_factor, stage, next_stage,"
+            " next_stage_density_kg_m3, si_gypsum, si_halite, water_activity, method, warnings,"
+            " depth_m, volume_m3, dissolved_salt_t, deposited_salt_t, net_evaporation_mm_day,"
+            " days_to_target_low, days_to_target_high, days_to_next_stage"
+            " FROM pond_state ps JOIN pond p ON p.id = ps.pond_id"
+            " WHERE ps.t_ms >= ?1 AND ps.t_ms < ?2 AND (?3 IS NULL OR p.name = ?3)"
+            " ORDER BY ps.t_ms, p.name",
+            -1, &s, NULL) != SQLITE_OK)
+        return hs_store_fail_db(st, "reading pond states");
+    sqlite3_bind_int64(s, 1, since_ms);
+    sqlite3_bind_int64(s, 2, until_ms);
+    if (pond)
+        sqlite3_bind_text(s, 3, pond, -1, SQLITE_STATIC);
+    else
+        sqlite3_bind_null(s, 3);
+    int rc, n = 0;
+    while ((rc = sqlite3_step(s)) == SQLITE_ROW) {
+        hs_state_row r;
+        hc_state_clear(&r.state);
+        r.t_ms = sqlite3_column_int64(s, 0);
+        r.pond = (const char *)sqlite3_column_text(s, 1);
+        r.quality = (hs_quality)sqlite3_column_int(s, 2);
+        r.state.density_kg_m3 = hs_col_num(s, 3);
+        r.state.temperature_c = hs_col_num(s, 4);
+        r.state.practical_salinity = hs_col_num(s, 5);
+        r.state.salinity_g_kg = hs_col_num(s, 6);
+        r.state.specific_gravity = hs_col_num(s, 7);
+        r.state.reference_temperature_c = hs_col_num(s, 8);
+        r.state.baume = hs_col_num(s, 9);
+        r.state.baume_modulus = hs_col_num(s, 10);
+        r.state.concentration_factor = hs_col_num(s, 11);
+        r.state.stage = stage_col(s, 12);
+        r.state.next_stage = stage_col(s, 13);
+        r.state.next_stage_density_kg_m3 = hs_col_num(s, 14);
+        r.state.saturation_index[HC_MIN_GYPSUM] = hs_col_num(s, 15);
+        r.state.saturation_index[HC_MIN_HALITE] = hs_col_num(s, 16);
+        r.state.water_activity = hs_col_num(s, 17);
+        r.state.method = method_col(s, 18);
+        r.state.warnings = (unsigned)sqlite3_column_int64(s, 19);
+        r.extra.depth_m = hs_col_num(s, 20);
+        r.extra.volume_m3 = hs_col_num(s, 21);
+        r.extra.dissolved_salt_t = hs_col_num(s, 22);
+        r.extra.deposited_salt_t = hs_col_num(s, 23);
+        r.extra.net_evaporation_mm_day = hs_col_num(s, 24);
+        r.extra.days_to_target_low = hs_col_num(s, 25);
+        r.extra.days_to_target_high = hs_col_num(s, 26);
+        r.extra.days_to_next_stage = hs_col_num(s, 27);
+        fn(ctx, &r);
+        n++;
+    }
+    int ok = rc == SQLITE_DONE ? n : hs_store_fail_db(st, "reading pond states");
+    sqlite3_finalize(s);
+    return ok;
+}
+
+int hs_store_ponds(hs_store *st, void (*fn)(void *ctx, const char *pond), void *ctx)
+{
+    sqlite3_stmt *s = NULL;
+    if (sqlite3_prepare_v2(st->db, "SELECT name FROM pond ORDER BY name", -1, &s, NULL) !=
+        SQLITE_OK)
+        return hs_store_fail_db(st, "listing ponds");
+    int rc, n = 0;
+    while ((rc = sqlite3_step(s)) == SQLITE_ROW) {
+        fn(ctx, (const char *)sqlite3_column_text(s, 0));
+        n++;
+    }
+    int ok = rc == SQLITE_DONE ? n : hs_store_fail_db(st, "listing ponds");
+    sqlite3_finalize(s);
+    return ok;
+}

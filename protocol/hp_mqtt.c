@@ -1,0 +1,399 @@
+/* MQTT link on paho-mqtt-c async (see hp_mqtt.h). Ownership: hp_mqtt owns
+ * the MQTTAsync handle, copies of every option string, and the event queue;
+ * each publish allocates a small context that its callback frees. */
+#include <errno.h>
+#include <pthread.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <time.h>
+
+#include <MQTTAsync.h>
+
+#include "hp_mqtt.h"
+
+#define QUEUE_MAX 65536 /* events waiting for poll; inbound beyond it dropped */
+
+struct event_node {
+    struct event_node *next;
+    hp_mqtt_event ev;
+    char *topic;
+    void *payload;
+    char *reason;
+};
+
+struct hp_mqtt {
+    MQTTAsync client;
+    hp_mqtt_options opt;  /* strings point into the copies below */
+    char *copies[12];
+    int tls;
+    pthread_mutex_t lock;
+    pthread_cond_t ready;
+    struct event_node *head, *tail;
+    size_t queued;
+    uint64_t dropped;
+    int connected;        /* under lock */
+    char err[256];
+};
+
+struct pub_ctx {
+    hp_mqtt *m;
+    int64_t tag;
+};
+
+static char *keep(hp_mqtt *m, int slot, const char *s)
+{
+    if (s == NULL)
+        return NULL;
+    m->copies[slot] = strdup(s);
+    return m->copies[slot];
+}
+
+/* Appends an event (called from paho's threads and the owner's). */
+static void push(hp_mqtt *m, hp_mqtt_event_type type, int64_t tag, const char *topic,
+                 const void *payload, size_t len, int oversize, const char *reason)
+{
+    struct event_node *n = calloc(1, sizeof *n);
+    if (n == NULL)
+        return;
+    n->ev.type = type;
+    n->ev.tag = tag;
+    n->ev.payload_len = len;
+    n->ev.oversize = oversize;
+    if (topic)
+        n->topic = strdup(topic);
+    if (payload && len) {
+        n->payload = malloc(len);
+        if (n->payload)
+            memcpy(n->payload, payload, len);
+    } else if (payload) {
+        n->payload = malloc(1);
+    }
+    if (reason)
+        n->reason = strdup(reason);
+    pthread_mutex_lock(&m->lock);
+    if (type == HP_MQTT_CONNECTED)
+        m->connected = 1;
+    else if (type == HP_MQTT_DISCONNECTED)
+        m->connected = 0;
+    if (type == HP_MQTT_MESSAGE && m->queued >= QUEUE_MAX) {
+        m->dropped++;
+        pthread_mutex_unlock(&m->lock);
+        free(n->topic);
+        free(n->payload);
+        free(n->reason);
+        free(n);
+        return;
+    }
+    if (m->tail)
+        m->tail->next = n;
+    else
+        m->head = n;
+    m->tail = n;
+    m->queued++;
+    pthread_cond_signal(&m->ready);
+    pthread_mutex_unlock(&m->lock);
+}
+
+static void on_connection_lost(void *ctx, char *cause)
+{
+    push(ctx, HP_MQTT_DISCONNECTED, 0, NULL, NULL, 0, 0, cause ? cause : "connection lost");
+}
+
+static int on_message(void *ctx, char *topic, int topic_len, MQTTAsync_message *msg)
+{
+    hp_mqtt *m = ctx;
+    char name[512];
+    size_t tl = topic_len > 0 ? (size_t)topic_len : strlen(topic);
+    if (tl >= sizeof name)
+        tl = sizeof name - 1; /* longer than any topic we subscribe to */
+    memcpy(name, topic, tl);
+    name[tl] = '\0';
+    size_t len = msg->payloadlen > 0 ? (size_t)msg->payloadlen : 0;
+    int oversize = len > m->opt.max_inbound;
+    push(m, HP_MQTT_MESSAGE, 0, name, oversize ? NULL : (msg->payload ? msg->payload : ""), len,
+         oversize, NULL);
+    MQTTAsync_freeMessage(&msg);
+    MQTTAsync_free(topic);
+    return 1;
+}
+
+static void on_connected(void *ctx, char *cause)
+{
+    hp_mqtt *m = ctx;
+    (void)cause;
+    if (m->opt.subscribe) {
+        MQTTAsync_responseOptions ro = MQTTAsync_responseOptions_initializer;
+        MQTTAsync_subscribe(m->client, m->opt.subscribe, 1, &ro);
+    }
+    push(m, HP_MQTT_CONNECTED, 0, NULL, NULL, 0, 0, NULL);
+}
+
+static void on_connect_failure(void *ctx, MQTTAsync_failureData *resp)
+{
+    char why[160];
+    snprintf(why, sizeof why, "connect failed (code %d)%s%s", resp ? resp->code : 0,
+             resp && resp->message ? ": " : "", resp && resp->message ? resp->message : "");
+    push(ctx, HP_MQTT_DISCONNECTED, 0, NULL, NULL, 0, 0, why);
+}
+
+static void on_publish_ok(void *ctx, MQTTAsync_successData *resp)
+{
+    struct pub_ctx *p = ctx;
+    (void)resp;
+    push(p->m, HP_MQTT_DELIVERED, p->tag, NULL, NULL, 0, 0, NULL);
+    free(p);
+}
+
+static void on_publish_fail(void *ctx, MQTTAsync_failureData *resp)
+{
+    struct pub_ctx *p = ctx;
+    char why[64];
+    snprintf(why, sizeof why, "publish failed (code %d)", resp ? resp->code : 0);
+    push(p->m, HP_MQTT_FAILED, p->tag, NULL, NULL, 0, 0, why);
+    free(p);
+}
+
+static int fail(char *err, size_t errlen, const char *fmt, ...)
+    __attribute__((format(printf, 3, 4)));
+static int fail(char *err, size_t errlen, const char *fmt, ...)
+{
+    va_list ap;
+    va_start(ap, fmt);
+    if (err && errlen)
+        vsnprintf(err, errlen, fmt, ap);
+    va_end(ap);
+    return -1;
+}
+
+hp_mqtt *hp_mqtt_new(const hp_mqtt_options *o, char *err, size_t errlen)
+{
+    if (o == NULL || o->uri == NULL || o->client_id == NULL || *o->client_id == '\0') {
+        fail(err, errlen, "mqtt: uri and client id are required");
+        return NULL;
+    }
+    int tls = strncmp(o->uri, "mqtts://", 8) == 0 || strncmp(o->uri, "ssl://", 6) == 0;
+    if (!tls && strncmp(o->uri, "mqtt://", 7) != 0 && strncmp(o->uri, "tcp://", 6) != 0) {
+        fail(err, errlen, "mqtt: uri '%s' must start with mqtt:// or mqtts://", o->uri);
+        return NULL;
+    }
+    if (tls && (o->ca_file == NULL || *o->ca_file == '\0')) {
+        fail(err, errlen, "mqtt: %s needs a CA file to verify the broker", o->uri);
+        return NULL;
+    }
+    if ((o->cert_file == NULL) != (o->key_file == NULL)) {
+        fail(err, errlen, "mqtt: a client certificate needs its key, and the other way round");
+        return NULL;
+    }
+    hp_mqtt *m = calloc(1, sizeof *m);
+    if (m == NULL) {
+        fail(err, errlen, "mqtt: out of memory");
+        return NULL;
+    }
+    pthread_mutex_init(&m->lock, NULL);
+    pthread_cond_init(&m->ready, NULL);
+    m->tls = tls;
+    m->opt = *o;
+    m->opt.uri = keep(m, 0, o->uri);
+    m->opt.client_id = keep(m, 1, o->client_id);
+    m->opt.username = keep(m, 2, o->username);
+    m->opt.password = keep(m, 3, o->password);
+    m->opt.ca_file = keep(m, 4, o->ca_file);
+    m->opt.cert_file = keep(m, 5, o->cert_file);
+    m->opt.key_file = keep(m, 6, o->key_file);
+    m->opt.will_topic = keep(m, 7, o->will_topic);
+    m->opt.will_payload = keep(m, 8, o->will_payload);
+    m->opt.subscribe = keep(m, 9, o->subscribe);
+    const char *given[10] = {o->uri, o->client_id, o->username, o->password, o->ca_file,
+                             o->cert_file, o->key_file, o->will_topic, o->will_payload,
+                             o->subscribe};
+    for (int i = 0; i < 10; i++)
+        if (given[i] != NULL && m->copies[i] == NULL) {
+            fail(err, errlen, "mqtt: out of memory");
+            hp_mqtt_free(m, 0);
+            return NULL;
+        }
+    if (m->opt.keepalive_s <= 0)
+        m->opt.keepalive_s = 30;
+    if (m->opt.max_inflight <= 0)
+        m->opt.max_inflight = 64;
+    if (m->opt.min_retry_s <= 0)
+        m->opt.min_retry_s = 1;
+    if (m->opt.max_retry_s < m->opt.min_retry_s)
+        m->opt.max_retry_s = m->opt.min_retry_s > 60 ? m->opt.min_retry_s : 60;
+    if (m->opt.max_inbound == 0)
+        m->opt.max_inbound = 4096;
+    /* paho wants tcp:// and ssl:// spellings. */
+    char uri[512];
+    snprintf(uri, sizeof uri, "%s://%s", tls ? "ssl" : "tcp", strstr(o->uri, "://") + 3);
+    MQTTAsync_createOptions co = MQTTAsync_createOptions_initializer;
+    co.sendWhileDisconnected = 0; /* our outbox holds messages, not paho */
+    co.maxBufferedMessages = m->opt.max_inflight + 16;
+    int rc = MQTTAsync_createWithOptions(&m->client, uri, m->opt.client_id,
+                                         MQTTCLIENT_PERSISTENCE_NONE, NULL, &co);
+    if (rc != MQTTASYNC_SUCCESS) {
+        fail(err, errlen, "mqtt: cannot create a client for %s (code %d)", o->uri, rc);
+        m->client = NULL;
+        hp_mqtt_free(m, 0);
+        return NULL;
+    }
+    MQTTAsync_setCallbacks(m->client, m, on_connection_lost, on_message, NULL);
+    MQTTAsync_setConnected(m->client, m, on_connected);
+    return m;
+}
+
+int hp_mqtt_start(hp_mqtt *m, char *err, size_t errlen)
+{
+    MQTTAsync_connectOptions co = MQTTAsync_connectOptions_initializer;
+    MQTTAsync_willOptions will = MQTTAsync_willOptions_initializer;
+    MQTTAsync_SSLOptions ssl = MQTTAsync_SSLOptions_initializer;
+    co.keepAliveInterval = m->opt.keepalive_s;
+    co.cleansession = 1;
+    co.maxInflight = m->opt.max_inflight;
+    co.automaticReconnect = 1;
+    co.minRetryInterval = m->opt.min_retry_s;
+    co.maxRetryInterval = m->opt.max_retry_s;
+    co.connectTimeout = 10;
+    co.username = m->opt.username;
+    co.password = m->opt.password;
+    co.onFailure = on_connect_failure;
+    co.context = m;
+    if (m->opt.will_topic) {
+        will.topicName = m->opt.will_topic;
+        will.message = m->opt.will_payload ? m->opt.will_payload : "";
+        will.retained = m->opt.will_retained;
+        will.qos = 1;
+        co.will = &will;
+    }
+    if (m->tls) {
+        ssl.trustStore = m->opt.ca_file;
+        ssl.keyStore = m->opt.cert_file;
+        ssl.privateKey = m->opt.key_file;
+        ssl.enableServerCertAuth = 1;
+        ssl.verify = 1; /* check the host name too; the initializer leaves it off */
+        co.ssl = &ssl;
+    }
+    int rc = MQTTAsync_connect(m->client, &co);
+    if (rc != MQTTASYNC_SUCCESS)
+        return fail(err, errlen, "mqtt: cannot start connecting to %s (code %d)", m->opt.uri,
+                    rc);
+    return 0;
+}
+
+int hp_mqtt_connected(hp_mqtt *m)
+{
+    pthread_mutex_lock(&m->lock);
+    int c = m->connected;
+    pthread_mutex_unlock(&m->lock);
+    return c && MQTTAsync_isConnected(m->client);
+}
+
+int hp_mqtt_publish(hp_mqtt *m, const char *topic, const void *payload, size_t len, int qos,
+                    int retained, int64_t tag)
+{
+    if (len > (size_t)INT32_MAX || !hp_mqtt_connected(m)) {
+        snprintf(m->err, sizeof m->err, "mqtt: not connected");
+        return -1;
+    }
+    struct pub_ctx *p = malloc(sizeof *p);
+    if (p == NULL) {
+        snprintf(m->err, sizeof m->err, "mqtt: out of memory");
+        return -1;
+    }
+    p->m = m;
+    p->tag = tag;
+    MQTTAsync_message msg = MQTTAsync_message_initializer;
+    msg.payload = (void *)(uintptr_t)payload; /* paho copies it; its API is not const */
+    msg.payloadlen = (int)len;
+    msg.qos = qos;
+    msg.retained = retained;
+    MQTTAsync_responseOptions ro = MQTTAsync_responseOptions_initializer;
+    ro.onSuccess = on_publish_ok;
+    ro.onFailure = on_publish_fail;
+    ro.context = p;
+    int rc = MQTTAsync_sendMessage(m->client, topic, &msg, &ro);
+    if (rc != MQTTASYNC_SUCCESS) {
+        free(p);
+        snprintf(m->err, sizeof m->err, "mqtt: publish to %s refused (code %d)", topic, rc);
+        return -1;
+    }
+    return 0;
+}
+
+int hp_mqtt_poll(hp_mqtt *m, int timeout_ms, void (*fn)(void *ctx, const hp_mqtt_event *ev),
+                 void *ctx)
+{
+    pthread_mutex_lock(&m->lock);
+    if (m->head == NULL && timeout_ms > 0) {
+        struct timespec until;
+        clock_gettime(CLOCK_REALTIME, &until);
+        until.tv_sec += timeout_ms / 1000;
+        until.tv_nsec += (long)(timeout_ms % 1000) * 1000000L;
+        if (until.tv_nsec >= 1000000000L) {
+            until.tv_sec++;
+            until.tv_nsec -= 1000000000L;
+        }
+        while (m->head == NULL)
+            if (pthread_cond_timedwait(&m->ready, &m->lock, &until) == ETIMEDOUT)
+                break;
+    }
+    struct event_node *list = m->head;
+    m->head = m->tail = NULL;
+    m->queued = 0;
+    pthread_mutex_unlock(&m->lock);
+    int n = 0;
+    while (list) {
+        struct event_node *next = list->next;
+        list->ev.topic = list->topic;
+        list->ev.payload = list->payload;
+        list->ev.reason = list->reason;
+        if (fn)
+            fn(ctx, &list->ev);
+        free(list->topic);
+        free(list->payload);
+        free(list->reason);
+        free(list);
+        list = next;
+        n++;
+    }
+    return n;
+}
+
+uint64_t hp_mqtt_dropped(hp_mqtt *m)
+{
+    pthread_mutex_lock(&m->lock);
+    uint64_t d = m->dropped;
+    pthread_mutex_unlock(&m->lock);
+    return d;
+}
+
+const char *hp_mqtt_error(hp_mqtt *m) { return m->err; }
+
+void hp_mqtt_free(hp_mqtt *m, int timeout_ms)
+{
+    if (m == NULL)
+        return;
+    if (m->client) {
+        if (MQTTAsync_isConnected(m->client)) {
+            MQTTAsync_disconnectOptions d = MQTTAsync_disconnectOptions_initializer;
+            d.timeout = timeout_ms;
+            if (MQTTAsync_disconnect(m->client, &d) == MQTTASYNC_SUCCESS) {
+                /* Wait for the disconnect to finish before destroying. */
+                for (int i = 0; i < timeout_ms / 10 && MQTTAsync_isConnected(m->client); i++) {
+                    struct timespec ts = {0, 10000000L};
+                    nanosleep(&ts, NULL);
+                }
+            }
+        }
+        MQTTAsync_destroy(&m->client);
+    }
+    hp_mqtt_poll(m, 0, NULL, NULL); /* frees what the callbacks queued */
+    if (m->copies[3]) /* the password */
+        explicit_bzero(m->copies[3], strlen(m->copies[3]));
+    for (size_t i = 0; i < sizeof m->copies / sizeof m->copies[0]; i++)
+        free(m->copies[i]);
+    pthread_mutex_destroy(&m->lock);
+    pthread_cond_destroy(&m->ready);
+    free(m);
+}
