@@ -67,6 +67,7 @@ typedef struct {
 int sim_model_init(sim *s);          /* 0, or -1 with a message on stderr */
 void sim_model_step(sim *s, double dt_s);  /* advances and rewrites registers; takes the lock */
 void sim_model_free(sim *s);
+int sim_truth_write(sim *s, const char *path); /* 0 or -1 */
 sim_device *sim_device_find(sim *s, int bus, uint8_t unit);
 const sim_fault *sim_fault_for(const sim *s, int bus, int unit);
 

@@ -1,5 +1,6 @@
 /* halostage-sim --config FILE [--speed N] [--rtu BUS=PTY]...
  *               [--fault BUS[:UNIT]=KIND[:MS]]...
+ *               [--truth FILE]
  * KIND: timeout, exception, drop, nan, sentinel, latency:MS.
  * Stops on SIGTERM or SIGINT. */
 #include <getopt.h>
@@ -23,8 +24,9 @@ static void on_signal(int sig)
 static void usage(FILE *to)
 {
     fprintf(to, "usage: halostage-sim --config FILE [--speed N] [--rtu BUS=PTY]...\n"
-                "                     [--fault BUS[:UNIT]=KIND]...\n"
-                "  KIND: timeout, exception, drop, nan, sentinel, latency:MS\n");
+                "                     [--fault BUS[:UNIT]=KIND]... [--truth FILE]\n"
+                "  KIND: timeout, exception, drop, nan, sentinel, latency:MS\n"
+                "  --truth FILE: keep the model's true pond values in FILE (JSON)\n");
 }
 
 static int parse_fault(sim *s, const char *text)
@@ -72,10 +74,11 @@ int main(int argc, char **argv)
     static const struct option opts[] = {
         {"config", required_argument, NULL, 'c'}, {"speed", required_argument, NULL, 's'},
         {"rtu", required_argument, NULL, 'r'},    {"fault", required_argument, NULL, 'f'},
+        {"truth", required_argument, NULL, 't'},
         {"help", no_argument, NULL, 'h'},         {NULL, 0, NULL, 0},
     };
     static sim s;
-    const char *config = NULL;
+    const char *config = NULL, *truth = NULL;
     const char *rtu[16], *faults[SIM_FAULTS_MAX];
     int n_rtu = 0, n_faults = 0, c;
     s.speed = 1.0;
@@ -93,6 +96,7 @@ int main(int argc, char **argv)
         }
         case 'r': if (n_rtu < 16) rtu[n_rtu++] = optarg; break;
         case 'f': if (n_faults < SIM_FAULTS_MAX) faults[n_faults++] = optarg; break;
+        case 't': truth = optarg; break;
         case 'h': usage(stdout); return 0;
         default: usage(stderr); return 2;
         }
@@ -144,10 +148,14 @@ int main(int argc, char **argv)
         sim_servers_join(&s);
         goto out;
     }
+    if (truth && sim_truth_write(&s, truth) != 0)
+        fprintf(stderr, "halostage-sim: cannot write %s\n", truth);
     while (!stop_flag) {
         struct timespec ts = {0, 100000000L};
         nanosleep(&ts, NULL);
         sim_model_step(&s, 0.1 * s.speed);
+        if (truth && sim_truth_write(&s, truth) != 0)
+            fprintf(stderr, "halostage-sim: cannot write %s\n", truth);
     }
     sim_servers_join(&s);
     rc = 0;

@@ -245,3 +245,30 @@ void sim_model_step(sim *s, double dt_s)
         write_signal(s, &s->site.signals[k], g);
     pthread_mutex_unlock(&s->lock);
 }
+
+/* Writes the model's true pond values as one JSON object, atomically
+ * (temporary file, then rename), so tests can compare what the daemon
+ * infers with what the simulator holds. */
+int sim_truth_write(sim *s, const char *path)
+{
+    char tmp[512];
+    snprintf(tmp, sizeof tmp, "%s.tmp", path);
+    FILE *f = fopen(tmp, "w");
+    if (!f)
+        return -1;
+    pthread_mutex_lock(&s->lock);
+    fprintf(f, "{\"time_s\": %.3f, \"ponds\": {", s->sim_time_s);
+    for (size_t i = 0; i < s->site.n_ponds; i++) {
+        const sim_pond *q = &s->ponds[i];
+        fprintf(f, "%s\"%s\": {\"salinity_g_kg\": %.6f, \"temperature_c\": %.4f, "
+                "\"depth_m\": %.6f, \"density_kg_m3\": %.4f, \"pumping\": %s}",
+                i ? ", " : "", s->site.ponds[i].name, q->salinity_g_kg, q->temperature_c,
+                q->depth_m, density(q->salinity_g_kg, q->temperature_c),
+                q->pumping ? "true" : "false");
+    }
+    fprintf(f, "}}\n");
+    pthread_mutex_unlock(&s->lock);
+    if (fclose(f) != 0)
+        return -1;
+    return rename(tmp, path);
+}
