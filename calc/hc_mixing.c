@@ -142,6 +142,7 @@ hc_status hc_plan_transfer(const hc_plan_input *in, hc_plan_result *out)
     if (st != HC_OK)
         return st;
     out->volume_m3 = v;
+    out->mix_mass_kg = mass;
     /* Volume after mixing from the mix's own density [m3]. */
     out->dest_volume_after_m3 = mass / out->mix_density_kg_m3;
 

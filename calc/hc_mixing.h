@@ -83,7 +83,8 @@ typedef struct {
     double mix_molality[HC_MIX_MAX_IONS];
     double source_level_after_m;
     double dest_level_after_m;
-    double dest_volume_after_m3;
+    double dest_volume_after_m3;   /* mix mass / mix density at t_c */
+    double mix_mass_kg;            /* brine in the destination after mixing */
     unsigned interlocks;           /* HC_PLAN_* bits */
 } hc_plan_result;
 

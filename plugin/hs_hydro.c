@@ -175,22 +175,23 @@ int hs_hydro_seed(struct hs_hydro *h, const double *rates, int n, double deposit
     return 0;
 }
 
-/* Days to cf_target at rates e_high (giving the low end) and e_low. */
+/* Days to cf_target at the rates e[0..2] (high, mean, low: so that the
+ * days come out low, expected, high). */
 static void forecast_range(const struct hs_hydro *h, const hc_brine_curve *curve, double cf_target,
-                           double e_low, double e_high, double *low, double *high)
+                           const double e[3], double days[3])
 {
-    *low = *high = NAN;
+    days[0] = days[1] = days[2] = NAN;
     if (curve == NULL || !isfinite(cf_target) || !isfinite(h->last.cf) || !h->last.valid)
         return;
     int scale = isfinite(h->cfg.relative_humidity) && curve->water_activity != NULL;
-    hc_forecast_input in = {&h->cfg.shape, curve,  h->last.level_m, h->last.cf,
-                            e_high,        scale,  scale ? h->cfg.relative_humidity : 0};
-    double d;
-    if (hc_forecast_days_to_cf(&in, cf_target, &d) == HC_OK)
-        *low = d;
-    in.net_evap_mm_day = e_low;
-    if (hc_forecast_days_to_cf(&in, cf_target, &d) == HC_OK)
-        *high = d;
+    hc_forecast_input in = {&h->cfg.shape, curve, h->last.level_m, h->last.cf, 0, scale,
+                            scale ? h->cfg.relative_humidity : 0};
+    for (int i = 0; i < 3; i++) {
+        double d;
+        in.net_evap_mm_day = e[i];
+        if (hc_forecast_days_to_cf(&in, cf_target, &d) == HC_OK)
+            days[i] = d;
+    }
 }
 
 void hs_hydro_report(const struct hs_hydro *h, const hc_brine_curve *curve, double cf_target,
@@ -201,8 +202,9 @@ void hs_hydro_report(const struct hs_hydro *h, const hc_brine_curve *curve, doub
     out->dissolved_salt_t = out->deposited_salt_t = NAN;
     out->net_evaporation_mm_day = out->net_evaporation_low_mm_day = NAN;
     out->net_evaporation_high_mm_day = out->expected_evaporation_mm_day = NAN;
-    out->days_to_target_low = out->days_to_target_high = NAN;
-    out->days_to_next_stage_low = out->days_to_next_stage_high = NAN;
+    out->days_to_target_low = out->days_to_target_expected = out->days_to_target_high = NAN;
+    out->days_to_next_stage_low = out->days_to_next_stage_expected = NAN;
+    out->days_to_next_stage_high = NAN;
     out->rate_days = 0;
     out->balance_density_kg_m3 = h->balance_density_kg_m3;
     out->density_drift = h->drift;
@@ -243,9 +245,15 @@ void hs_hydro_report(const struct hs_hydro *h, const hc_brine_curve *curve, doub
             out->expected_evaporation_mm_day = e;
     }
     if (isfinite(mean)) {
-        forecast_range(h, curve, cf_target, lo, hi, &out->days_to_target_low,
-                       &out->days_to_target_high);
-        forecast_range(h, curve, cf_next_stage, lo, hi, &out->days_to_next_stage_low,
-                       &out->days_to_next_stage_high);
+        const double e[3] = {hi, mean, lo};
+        double d[3];
+        forecast_range(h, curve, cf_target, e, d);
+        out->days_to_target_low = d[0];
+        out->days_to_target_expected = d[1];
+        out->days_to_target_high = d[2];
+        forecast_range(h, curve, cf_next_stage, e, d);
+        out->days_to_next_stage_low = d[0];
+        out->days_to_next_stage_expected = d[1];
+        out->days_to_next_stage_high = d[2];
     }
 }

@@ -104,8 +104,10 @@ struct hs_hydro_report {
     double net_evaporation_low_mm_day, net_evaporation_high_mm_day;
     int rate_days;                      /* daily rates behind it */
     double expected_evaporation_mm_day; /* pan x coefficient x activity factor */
-    double days_to_target_low, days_to_target_high;
-    double days_to_next_stage_low, days_to_next_stage_high;
+    /* Days at the high rate (low), the mean rate (expected) and the low
+     * rate (high); INFINITY when never at that rate. */
+    double days_to_target_low, days_to_target_expected, days_to_target_high;
+    double days_to_next_stage_low, days_to_next_stage_expected, days_to_next_stage_high;
     double balance_density_kg_m3;
     int density_drift;                  /* 1: density sensor disagrees with the balance */
 };

@@ -13,12 +13,14 @@ static int put(json_t *obj, const char *key, json_t *value)
     return value != NULL && json_object_set_new(obj, key, value) == 0 ? 0 : -1;
 }
 
-static json_t *range(double low, double high)
+static json_t *range3(double low, double expected, double high)
 {
     json_t *o = json_object();
     if (o == NULL)
         return NULL;
-    if (put(o, "low", number_or_null(low)) != 0 || put(o, "high", number_or_null(high)) != 0) {
+    if (put(o, "low", number_or_null(low)) != 0 ||
+        put(o, "expected", number_or_null(expected)) != 0 ||
+        put(o, "high", number_or_null(high)) != 0) {
         json_decref(o);
         return NULL;
     }
@@ -38,13 +40,31 @@ int hs_hydro_report_to_json(const struct hs_hydro_report *r, json_t *obj)
     rc |= put(obj, "deposited_salt_t", number_or_null(r->deposited_salt_t));
     rc |= put(obj, "net_evaporation_mm_day", number_or_null(r->net_evaporation_mm_day));
     rc |= put(obj, "net_evaporation_range_mm_day",
-              range(r->net_evaporation_low_mm_day, r->net_evaporation_high_mm_day));
+              range3(r->net_evaporation_low_mm_day, r->net_evaporation_mm_day,
+                     r->net_evaporation_high_mm_day));
     rc |= put(obj, "net_evaporation_days", json_integer(r->rate_days));
     rc |= put(obj, "expected_evaporation_mm_day", number_or_null(r->expected_evaporation_mm_day));
-    rc |= put(obj, "days_to_target", range(r->days_to_target_low, r->days_to_target_high));
+    rc |= put(obj, "days_to_target",
+              range3(r->days_to_target_low, r->days_to_target_expected, r->days_to_target_high));
     rc |= put(obj, "days_to_next_stage",
-              range(r->days_to_next_stage_low, r->days_to_next_stage_high));
+              range3(r->days_to_next_stage_low, r->days_to_next_stage_expected,
+                     r->days_to_next_stage_high));
     rc |= put(obj, "balance_density_kg_m3", number_or_null(r->balance_density_kg_m3));
     rc |= put(obj, "calibration_drift", json_boolean(r->density_drift));
     return rc ? -1 : 0;
+}
+
+void hs_hydro_report_to_extra(const struct hs_hydro_report *r, hs_pond_extra *x)
+{
+    hs_pond_extra_clear(x);
+    if (r == NULL)
+        return;
+    x->depth_m = r->depth_m;
+    x->volume_m3 = r->volume_m3;
+    x->dissolved_salt_t = r->dissolved_salt_t;
+    x->deposited_salt_t = r->deposited_salt_t;
+    x->net_evaporation_mm_day = r->net_evaporation_mm_day;
+    x->days_to_target_low = r->days_to_target_low;
+    x->days_to_target_high = r->days_to_target_high;
+    x->days_to_next_stage = r->days_to_next_stage_expected;
 }

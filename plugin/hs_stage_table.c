@@ -70,7 +70,7 @@ static int split(char *line, char **fields, int max)
 
 static int column_kind(const char *name)
 {
-    if (strcmp(name, "level_m") == 0)
+    if (strcmp(name, "level_m") == 0 || strcmp(name, "depth_m") == 0)
         return COL_LEVEL;
     if (strcmp(name, "volume_m3") == 0)
         return COL_VOLUME;
@@ -173,19 +173,19 @@ int hs_stage_table_parse(const char *name, const char *text, struct hs_stage_tab
                 int k = column_kind(f[i]);
                 if (k == COL_NONE) {
                     fail(err, errlen,
-                         "%s:%zu: unknown column '%s' (expected level_m, volume_m3, area_m2)",
+                         "%s:%zu: unknown column '%s' (expected level_m or depth_m, volume_m3, area_m2)",
                          name, lineno, f[i]);
                     goto out;
                 }
                 if (have[k]) {
-                    fail(err, errlen, "%s:%zu: column '%s' given twice", name, lineno, f[i]);
+                    fail(err, errlen, "%s:%zu: column '%s' given twice (depth_m and level_m are the same column)", name, lineno, f[i]);
                     goto out;
                 }
                 have[k] = 1;
                 cols[i] = k;
             }
             if (!have[COL_LEVEL] || !have[COL_VOLUME]) {
-                fail(err, errlen, "%s:%zu: header needs level_m and volume_m3 columns", name,
+                fail(err, errlen, "%s:%zu: header needs level_m (or depth_m) and volume_m3 columns", name,
                      lineno);
                 goto out;
             }

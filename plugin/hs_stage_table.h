@@ -6,7 +6,8 @@
  *     0.10,4215,42500
  *     ...
  *
- * The header names the columns; level_m and volume_m3 are required,
+ * The header names the columns; level_m (or its synonym depth_m: the
+ * brine's height above the pond floor) and volume_m3 are required,
  * area_m2 is optional (without it the area is dV/dh of the interpolant).
  * Columns may come in any order. Blank lines and comments are skipped.
  * Every defect is reported as "FILE:LINE: what is wrong", including a

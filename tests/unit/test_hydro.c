@@ -131,7 +131,12 @@ static void daily_rates_recovered(void **unused)
     assert_near(r.dissolved_salt_t, p.salt_kg / 1000, 1e-6 * p.salt_kg / 1000);
     assert_true(isnan(r.deposited_salt_t)); /* not a crystalliser */
     /* The range brackets: faster evaporation, fewer days. */
-    assert_true(r.days_to_target_low > 0 && r.days_to_target_low < r.days_to_target_high);
+    assert_true(r.days_to_target_low > 0 && r.days_to_target_low < r.days_to_target_expected &&
+                r.days_to_target_expected < r.days_to_target_high);
+    hs_pond_extra x;
+    hs_hydro_report_to_extra(&r, &x);
+    assert_near(x.days_to_next_stage, r.days_to_next_stage_expected, 0);
+    assert_near(x.volume_m3, r.volume_m3, 0);
     assert_true(r.days_to_next_stage_low > r.days_to_target_low);
     /* And it is the forecast at the ends of the rate range. */
     hc_forecast_input in = {&shape, hydro_demo_curve(), h.last.level_m, h.last.cf,

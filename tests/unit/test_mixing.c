@@ -75,6 +75,7 @@ static void plan_matches_hand_balance(void **unused)
     assert_near(r.source_level_after_m, 0.80 - va / 2000, 1e-6);
     double mass = wa * (1 + 4 * M_NACL) + wb * (1 + M_NACL);
     assert_near(r.dest_level_after_m, mass / 1077 / 1000, 1e-6);
+    assert_near(r.mix_mass_kg, mass, 1e-6 * mass);
     assert_int_equal(r.interlocks, 0);
     assert_true(calls > 2);
 }

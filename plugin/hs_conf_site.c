@@ -1,0 +1,76 @@
+/* [site]: the site as a whole. */
+#include <string.h>
+
+#include "hs_conf_keys.h"
+
+typedef hs_site_conf S;
+
+static const hs_key site_keys[] = {
+    KEY_STR("name", S, name, HS_NO_DEFAULT, HS_KEY_REQUIRED,
+            "the site's name, used in MQTT topics (letters, digits, '-', '_')"),
+    KEY_PATH("database", S, database, "halostage.db", 0,
+             "SQLite history file; a relative path is taken from the config's folder"),
+    KEY_DBL("latitude", S, latitude_deg, &hs_unit_angle, -90, 90, HS_NO_DEFAULT, HS_KEY_REQUIRED,
+            "latitude in degrees north, for local gravity"),
+    KEY_DBL("elevation", S, elevation_m, &hs_unit_length, -500, 5000, "0 m", 0,
+            "pond floors above sea level"),
+    KEY_DBL("reference_temperature", S, reference_temperature_c, &hs_unit_temperature, 0, 40,
+            "20 C", HS_KEY_RELOADABLE,
+            "specific gravity and degree Baume are given at this temperature"),
+    KEY_DBL("baume_modulus", S, baume_modulus, NULL, 100, 200, "145", HS_KEY_RELOADABLE,
+            "m in deg Be = m (1 - 1/SG): 145 US, 144.3 rational, 146.78 Gerlach"),
+    KEY_NAME("feed", S, feed, 0, "default [feed NAME] of every pond; none = reference seawater"),
+    KEY_DUR("stale_after", S, stale_after_ms, 1 * SEC_MS, 86400 * SEC_MS, "60s",
+            HS_KEY_RELOADABLE, "a value not read good for this long becomes stale"),
+    {NULL},
+};
+
+const hs_section_type hs_section_site;
+
+static int site_add(hs_site *site, hs_cfg *cfg, const char *name)
+{
+    (void)name;
+    memset(&site->site, 0, sizeof site->site);
+    site->site.feed_index = -1;
+    site->site.line = hs_cfg_line(cfg);
+    return 0;
+}
+
+static void *site_at(hs_site *site, size_t index)
+{
+    (void)index;
+    return &site->site;
+}
+
+static bool name_ok(const char *s)
+{
+    for (; *s; s++)
+        if (!((*s >= 'a' && *s <= 'z') || (*s >= 'A' && *s <= 'Z') ||
+              (*s >= '0' && *s <= '9') || *s == '-' || *s == '_'))
+            return false;
+    return true;
+}
+
+static void site_finish(hs_site *site, hs_cfg *cfg, size_t index)
+{
+    /* The name becomes an MQTT topic level: no '/', '+', '#' or blanks. */
+    if (site->site.name[0] && !name_ok(site->site.name))
+        hs_cfg_error(cfg, hs_cfg_where(cfg, &hs_section_site, index, "name"),
+                     "name: '%s' may hold only letters, digits, '-' and '_'",
+                     site->site.name);
+}
+
+static void site_link(hs_site *site, hs_cfg *cfg)
+{
+    if (site->site.feed[0]) {
+        site->site.feed_index = hs_site_feed(site, site->site.feed);
+        if (site->site.feed_index < 0)
+            hs_cfg_error(cfg, hs_cfg_where(cfg, &hs_section_site, 0, "feed"),
+                         "feed: no [feed %s] in this file", site->site.feed);
+    }
+}
+
+const hs_section_type hs_section_site = {
+    .kind = "site", .named = false, .required = true, .keys = site_keys,
+    .add = site_add, .at = site_at, .finish = site_finish, .link = site_link,
+};

@@ -1,0 +1,213 @@
+/* Value parsers and unit tables of the configuration reader. Numbers go
+ * through strtod/strtol with every error checked (no atoi): the whole text
+ * must be used, overflow and NaN are refused. */
+#include <ctype.h>
+#include <errno.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "hs_config.h"
+
+/* Conversions to SI. Exact by definition unless noted. */
+static const hs_unit length_units[] = {
+    {"m", 1.0, 0.0}, {"cm", 0.01, 0.0}, {"mm", 0.001, 0.0}, {NULL, 0, 0}};
+static const hs_unit area_units[] = {
+    {"m2", 1.0, 0.0}, {"ha", 1.0e4, 0.0}, {"km2", 1.0e6, 0.0}, {NULL, 0, 0}};
+static const hs_unit density_units[] = {
+    {"kg/m3", 1.0, 0.0}, {"g/cm3", 1000.0, 0.0}, {"g/mL", 1000.0, 0.0},
+    {"g/L", 1.0, 0.0}, {NULL, 0, 0}};
+/* Temperatures are degC on ITS-90 throughout (DESIGN.md). */
+static const hs_unit temperature_units[] = {
+    {"C", 1.0, 0.0}, {"degC", 1.0, 0.0}, {NULL, 0, 0}};
+static const hs_unit angle_units[] = {{"deg", 1.0, 0.0}, {NULL, 0, 0}};
+/* Pressure in Pa. 1 mH2O = 9806.65 Pa is the conventional metre of water
+ * (water 1000 kg/m3 under standard gravity 9.80665 m/s2, CGPM 1901). */
+static const hs_unit pressure_units[] = {
+    {"Pa", 1.0, 0.0}, {"kPa", 1.0e3, 0.0}, {"mbar", 100.0, 0.0},
+    {"bar", 1.0e5, 0.0}, {"dbar", 1.0e4, 0.0}, {"mH2O", 9806.65, 0.0},
+    {"psi", 6894.757293168, 0.0}, {NULL, 0, 0}};
+/* Conductivity in mS/cm, the unit of PSS-78's C(35,15,0) = 42.914 mS/cm. */
+static const hs_unit conductivity_units[] = {
+    {"mS/cm", 1.0, 0.0}, {"uS/cm", 0.001, 0.0}, {"S/m", 10.0, 0.0},
+    {"mS/m", 0.01, 0.0}, {NULL, 0, 0}};
+/* Rain depth in m. */
+static const hs_unit rain_units[] = {
+    {"mm", 0.001, 0.0}, {"m", 1.0, 0.0}, {NULL, 0, 0}};
+static const hs_unit state_units[] = {{"state", 1.0, 0.0}, {NULL, 0, 0}};
+
+const hs_unit_kind hs_unit_length = {"length", length_units, false};
+const hs_unit_kind hs_unit_area = {"area", area_units, false};
+const hs_unit_kind hs_unit_density = {"density", density_units, false};
+const hs_unit_kind hs_unit_temperature = {"temperature", temperature_units, false};
+const hs_unit_kind hs_unit_angle = {"angle", angle_units, true};
+const hs_unit_kind hs_unit_pressure = {"pressure", pressure_units, false};
+const hs_unit_kind hs_unit_conductivity = {"conductivity", conductivity_units, false};
+const hs_unit_kind hs_unit_rain = {"rain depth", rain_units, false};
+const hs_unit_kind hs_unit_state = {"state", state_units, true};
+
+const hs_unit *hs_unit_find(const hs_unit_kind *kind, const char *name)
+{
+    for (const hs_unit *u = kind->units; u->name; u++)
+        if (strcmp(u->name, name) == 0)
+            return u;
+    return NULL;
+}
+
+/* 0, or -1 with a reason. */
+int hs_parse_double(const char *text, double *out, char *msg, size_t len)
+{
+    char *end;
+    errno = 0;
+    double v = strtod(text, &end);
+    if (end == text) {
+        snprintf(msg, len, "'%s' is not a number", text);
+        return -1;
+    }
+    while (isspace((unsigned char)*end))
+        end++;
+    if (*end != '\0') {
+        snprintf(msg, len, "unexpected '%s' after the number", end);
+        return -1;
+    }
+    if (errno == ERANGE && fabs(v) > 1.0) {
+        snprintf(msg, len, "'%s' is out of range", text);
+        return -1;
+    }
+    if (!isfinite(v)) {
+        snprintf(msg, len, "'%s' is not a finite number", text);
+        return -1;
+    }
+    *out = v;
+    return 0;
+}
+
+/* 0, or -1 with a reason. */
+int hs_parse_long(const char *text, long *out, char *msg, size_t len)
+{
+    char *end;
+    errno = 0;
+    /* Decimal, or hexadecimal with 0x; never octal ("010" is ten). */
+    int base = (text[0] == '0' && (text[1] == 'x' || text[1] == 'X')) ? 16 : 10;
+    long v = strtol(text, &end, base);
+    if (end == text) {
+        snprintf(msg, len, "'%s' is not an integer", text);
+        return -1;
+    }
+    while (isspace((unsigned char)*end))
+        end++;
+    if (*end != '\0') {
+        snprintf(msg, len, "unexpected '%s' after the integer", end);
+        return -1;
+    }
+    if (errno == ERANGE) {
+        snprintf(msg, len, "'%s' is out of range", text);
+        return -1;
+    }
+    *out = v;
+    return 0;
+}
+
+/* Splits "12.5 m" into the number and the unit text (may be empty). */
+static int split_number(const char *text, double *v, const char **unit,
+                        char *msg, size_t len)
+{
+    char *end;
+    errno = 0;
+    *v = strtod(text, &end);
+    if (end == text) {
+        snprintf(msg, len, "'%s' is not a number", text);
+        return -1;
+    }
+    if ((errno == ERANGE && fabs(*v) > 1.0) || !isfinite(*v)) {
+        snprintf(msg, len, "'%s' is not a finite number in range", text);
+        return -1;
+    }
+    while (isspace((unsigned char)*end))
+        end++;
+    *unit = end;
+    return 0;
+}
+
+static void list_units(const hs_unit_kind *kind, char *buf, size_t len)
+{
+    size_t used = 0;
+    buf[0] = '\0';
+    for (const hs_unit *u = kind->units; u->name && used < len; u++) {
+        int n = snprintf(buf + used, len - used, "%s%s", used ? ", " : "", u->name);
+        if (n < 0)
+            break;
+        used += (size_t)n;
+    }
+}
+
+/* 0, or -1 with a reason. *si is in the kind's first unit. */
+int hs_parse_quantity(const char *text, const hs_unit_kind *kind, double *si,
+                      char *msg, size_t len)
+{
+    double v;
+    const char *unit;
+    char names[160];
+    if (split_number(text, &v, &unit, msg, len) != 0)
+        return -1;
+    if (*unit == '\0') {
+        if (kind->bare_ok) {
+            *si = v;
+            return 0;
+        }
+        list_units(kind, names, sizeof names);
+        snprintf(msg, len, "'%s' needs a unit of %s (%s)", text, kind->what, names);
+        return -1;
+    }
+    const hs_unit *u = hs_unit_find(kind, unit);
+    if (!u) {
+        list_units(kind, names, sizeof names);
+        snprintf(msg, len, "unknown unit '%s' for a %s (use %s)", unit, kind->what, names);
+        return -1;
+    }
+    *si = v * u->factor + u->offset;
+    return 0;
+}
+
+/* 0, or -1 with a reason. */
+int hs_parse_duration_ms(const char *text, int64_t *ms, char *msg, size_t len)
+{
+    static const struct { const char *name; double ms; } units[] = {
+        {"ms", 1.0}, {"s", 1e3}, {"min", 60e3}, {"h", 3600e3}, {"d", 86400e3},
+    };
+    double v;
+    const char *unit;
+    if (split_number(text, &v, &unit, msg, len) != 0)
+        return -1;
+    if (*unit == '\0') {
+        snprintf(msg, len, "'%s' needs a unit (ms, s, min, h, d)", text);
+        return -1;
+    }
+    for (size_t i = 0; i < sizeof units / sizeof units[0]; i++) {
+        if (strcmp(unit, units[i].name) != 0)
+            continue;
+        double total = v * units[i].ms;
+        if (total < 0 || total > 9.0e15) {
+            snprintf(msg, len, "duration '%s' is out of range", text);
+            return -1;
+        }
+        *ms = (int64_t)llround(total);
+        return 0;
+    }
+    snprintf(msg, len, "unknown duration unit '%s' (use ms, s, min, h, d)", unit);
+    return -1;
+}
+
+/* 0, or -1 with a reason. */
+int hs_parse_bool(const char *text, bool *out, char *msg, size_t len)
+{
+    static const char *const yes[] = {"yes", "true", "on", "1"};
+    static const char *const no[] = {"no", "false", "off", "0"};
+    for (size_t i = 0; i < 4; i++) {
+        if (strcmp(text, yes[i]) == 0) { *out = true; return 0; }
+        if (strcmp(text, no[i]) == 0) { *out = false; return 0; }
+    }
+    snprintf(msg, len, "'%s' is not yes or no", text);
+    return -1;
+}
