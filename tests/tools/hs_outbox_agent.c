@@ -116,6 +116,7 @@ int main(int argc, char **argv)
     hs_topics topics;
     if (hs_topics_init(&topics, prefix, site) != 0) {
         fprintf(stderr, "hs_outbox_agent: bad prefix or site\n");
+        hs_store_close(st);
         return 78;
     }
     char will_topic[HS_TOPIC_MAX], sub[HS_TOPIC_MAX];
@@ -133,10 +134,13 @@ int main(int argc, char **argv)
     free(will);
     if (link == NULL) {
         fprintf(stderr, "hs_outbox_agent: %s\n", err);
+        hs_store_close(st);
         return 78;
     }
     if (hp_mqtt_start(link, err, sizeof err) != 0) {
         fprintf(stderr, "hs_outbox_agent: %s\n", err);
+        hp_mqtt_free(link, 0);
+        hs_store_close(st);
         return 1;
     }
     uint64_t last = 0;
