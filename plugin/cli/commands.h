@@ -19,5 +19,6 @@ extern const struct hs_command hs_commands[];
 int hs_cmd_calc(int argc, char **argv);
 int hs_cmd_brine(int argc, char **argv);
 int hs_cmd_path(int argc, char **argv);
+int hs_cmd_status(int argc, char **argv);
 
 #endif
