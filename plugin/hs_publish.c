@@ -168,6 +168,8 @@ void hs_alarm_sink_emit(void *ctx, const hs_alarm_event *ev)
         sink->errors++;
         return;
     }
+    if (sink->journal_only)
+        return;
     if (hs_topic(topic, sizeof topic, sink->topics, "alarm", ev->pond, ev->rule) != 0) {
         sink->errors++;
         return;

@@ -68,6 +68,7 @@ int hs_enqueue_state(hs_store *st, const hs_topics *t, const char *pond, int64_t
 typedef struct {
     hs_store *store;
     const hs_topics *topics;
+    int journal_only;              /* 1: MQTT off, journal without queueing */
     int errors;                    /* failed journal/queue writes */
 } hs_alarm_sink;
 void hs_alarm_sink_emit(void *sink, const hs_alarm_event *ev);
