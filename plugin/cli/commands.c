@@ -8,5 +8,8 @@ const struct hs_command hs_commands[] = {
     {"brine", hs_cmd_brine, "activities and mineral saturation of a brine analysis"},
     {"path", hs_cmd_path, "evaporation path of a feed water, from gypsum to bischofite"},
     {"status", hs_cmd_status, "every pond, alarm and transfer advice now (from the history)"},
+    {"history", hs_cmd_history, "a pond's stored history, raw or per step (min/mean/max)"},
+    {"export", hs_cmd_export, "stored pond states or the alarm journal as CSV"},
+    {"ack", hs_cmd_ack, "acknowledge or shelve an alarm at the gateway"},
     {NULL, NULL, NULL},
 };

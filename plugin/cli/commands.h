@@ -21,4 +21,8 @@ int hs_cmd_brine(int argc, char **argv);
 int hs_cmd_path(int argc, char **argv);
 int hs_cmd_status(int argc, char **argv);
 
+int hs_cmd_history(int argc, char **argv);
+int hs_cmd_export(int argc, char **argv);
+int hs_cmd_ack(int argc, char **argv);
+
 #endif

@@ -5,7 +5,8 @@
  *       [--prefix P] [--site S] [--commands] [--timeout-s S] [--keep-running]
  *     Raises and clears one alarm N times through the real alarm engine (each
  *     a journal row plus an outbox row), pumps the outbox to the broker and,
- *     with --commands, answers inbound commands. Prints "connected",
+ *     with --commands, answers inbound commands and those that
+ *     `halostage ack` queued in the store. Prints "connected",
  *     "generated N" and finally "drained" when every row was acknowledged.
  *     Exits 0 when drained, 1 on timeout, 78 on a refused option.
  *
@@ -158,7 +159,7 @@ int main(int argc, char **argv)
     hs_publisher *pub = hs_publisher_new(st, link, &topics, 32);
     int rc = 1, was_connected = 0;
     long generated = 0;
-    int64_t start = now_ms(), next = start;
+    int64_t start = now_ms(), next = start, next_queue = start;
     hc_brine_state s;
     hc_state_clear(&s);
     hs_alarm_input in;
@@ -176,6 +177,10 @@ int main(int argc, char **argv)
             }
             if (generated == alarms || generated % 100 == 0)
                 printf("generated %ld\n", generated);
+        }
+        if (commands && now_ms() >= next_queue) {
+            hs_store_command_take(st, hs_command_from_queue, &cmds);
+            next_queue = now_ms() + 100;
         }
         if (hs_publisher_pump(pub, 10, commands ? hs_command_on_message : NULL, &cmds) != 0) {
             fprintf(stderr, "store: %s\n", hs_store_error(st));
