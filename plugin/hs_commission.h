@@ -10,4 +10,11 @@
  * stderr (exit 78). */
 int hs_check_run(const char *config_path);
 
+/* --once: reads every configured signal once (all buses in parallel), then
+ * prints each signal's registers, raw and decoded value and quality, and each
+ * pond's state. json: one JSON line per pond (brine-state fields, plus pond,
+ * role, depth_m, problem, level_problem and signals). Exit 0 when every
+ * signal read good, 1 otherwise, 78 for a bad configuration. */
+int hs_once_run(const char *config_path, bool json);
+
 #endif

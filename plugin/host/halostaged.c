@@ -16,9 +16,13 @@ static void usage(FILE *out)
             "usage: halostaged --config FILE [--plugin PATH] [--log-level LEVEL]\n"
             "                  [--emit-stdout] [--run-for SECONDS]\n"
             "       halostaged --config FILE --check\n"
+            "       halostaged --config FILE --once [--json]\n"
             "  --config FILE     the site configuration (INI)\n"
             "  --check           validate the configuration and exit (0, or 78 with\n"
             "                    FILE:LINE: reasons on stderr)\n"
+            "  --once            read every signal once, show values, qualities and\n"
+            "                    pond states, and exit (commissioning)\n"
+            "  --json            with --once: one JSON line per pond\n"
             "  --plugin PATH     the plugin to host (default: halostage.so next to\n"
             "                    this program, else ../lib/halostage/)\n"
             "  --log-level L     error|warning|notice|info|debug (default info)\n"
@@ -47,12 +51,14 @@ int main(int argc, char **argv)
         {"emit-stdout", no_argument, NULL, 'e'},
         {"run-for", required_argument, NULL, 'r'},
         {"check", no_argument, NULL, 'k'},
+        {"once", no_argument, NULL, 'o'},
+        {"json", no_argument, NULL, 'j'},
         {"help", no_argument, NULL, 'h'},
         {NULL, 0, NULL, 0},
     };
     struct hs_host_options options = {0};
     int level = HSP_LOG_INFO;
-    int check = 0;
+    int check = 0, once = 0, json = 0;
     hs_host_log_init("halostaged", level);
     int opt;
     while ((opt = getopt_long(argc, argv, "c:p:l:er:h", longopts, NULL)) != -1) {
@@ -76,6 +82,8 @@ int main(int argc, char **argv)
             }
             break;
         case 'k': check = 1; break;
+        case 'o': once = 1; break;
+        case 'j': json = 1; break;
         case 'h': usage(stdout); return 0;
         default: usage(stderr); return 2;
         }
@@ -86,5 +94,11 @@ int main(int argc, char **argv)
     }
     if (check)
         return hs_check_run(options.config_path);
+    if (json && !once) {
+        fprintf(stderr, "halostaged: --json goes with --once\n");
+        return 2;
+    }
+    if (once)
+        return hs_once_run(options.config_path, json != 0);
     return hs_host_service_run(&options);
 }

@@ -1,0 +1,215 @@
+/* halostaged --once [--json]: one poll cycle against the configured devices,
+ * for commissioning. Every bus is read once, in parallel (one worker each);
+ * then every signal's registers, raw and decoded value and quality are shown,
+ * and each pond's state where calc can give it. Exit status: 0 when every
+ * signal read good, 1 when any did not, 78 for a bad configuration. */
+#include <errno.h>
+#include <jansson.h>
+#include <math.h>
+#include <modbus.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "hp_bus.h"
+#include "hp_queue.h"
+#include "hp_state_json.h"
+#include "hs_commission.h"
+#include "hs_config.h"
+#include "hs_pond_state.h"
+
+typedef struct {
+    bool seen;
+    hp_sample sample;
+} latest;
+
+/* Reads every bus once; fills got[signal]. Returns 0, or -1 when a worker
+ * could not start. */
+static int poll_once(const hs_site *site, latest *got)
+{
+    size_t n = site->n_signals;
+    hp_queue *q = hp_queue_new(4 * n + 16);
+    hp_point *points = calloc(n ? n : 1, sizeof *points);
+    uint32_t *global = calloc(n ? n : 1, sizeof *global);    /* bus-local -> signal */
+    uint32_t *offset = calloc(site->n_buses + 1, sizeof *offset);
+    hp_bus **buses = calloc(site->n_buses ? site->n_buses : 1, sizeof *buses);
+    int rc = -1;
+    if (!q || !points || !global || !offset || !buses)
+        goto out;
+    size_t k = 0;
+    for (size_t b = 0; b < site->n_buses; b++) {
+        offset[b] = (uint32_t)k;
+        size_t first = k;
+        for (size_t s = 0; s < n; s++)
+            if (site->signals[s].bus_index == (int)b) {
+                points[k] = site->signals[s].point;
+                global[k++] = (uint32_t)s;
+            }
+        buses[b] = hp_bus_start(&site->buses[b].conf, points + first, k - first,
+                                (uint32_t)b, q, true);
+        if (!buses[b]) {
+            fprintf(stderr, "halostaged: bus %s: cannot start its worker: %s\n",
+                    site->buses[b].name, strerror(errno));
+            goto out;
+        }
+    }
+    offset[site->n_buses] = (uint32_t)k;
+    rc = 0;
+out:
+    for (size_t b = 0; buses && b < site->n_buses; b++)
+        hp_bus_join(buses[b]); /* a once-worker ends by itself */
+    hp_sample batch[64];
+    size_t got_n;
+    while (q && (got_n = hp_queue_pop(q, batch, 64, 0)) > 0)
+        for (size_t i = 0; i < got_n; i++) {
+            uint32_t s = global[offset[batch[i].bus] + batch[i].point];
+            got[s].seen = true;
+            got[s].sample = batch[i];
+        }
+    hp_queue_free(q);
+    free(points);
+    free(global);
+    free(offset);
+    free(buses);
+    return rc;
+}
+
+static const char *failure_text(const hp_sample *s, char *buf, size_t len)
+{
+    if (s->exception)
+        snprintf(buf, len, "exception %d (%s)", s->exception,
+                 modbus_strerror(MODBUS_ENOBASE + s->exception));
+    else if (s->sys_errno)
+        snprintf(buf, len, "%s", modbus_strerror(s->sys_errno));
+    else
+        buf[0] = '\0';
+    return buf;
+}
+
+static void print_text(const hs_site *site, const latest *got)
+{
+    char why[128];
+    printf("%-26s %-10s %4s %-7s %5s  %-19s %12s %12s %-6s %s\n", "signal", "bus", "unit",
+           "table", "addr", "registers", "raw", "value", "unit", "quality");
+    for (size_t s = 0; s < site->n_signals; s++) {
+        const hs_signal *g = &site->signals[s];
+        const hp_sample *smp = &got[s].sample;
+        char regs[32] = "";
+        size_t used = 0;
+        for (unsigned i = 0; got[s].seen && i < smp->n_regs && i < 4; i++)
+            used += (size_t)snprintf(regs + used, sizeof regs - used, "%s%04x", i ? " " : "",
+                                     smp->regs[i]);
+        printf("%-26s %-10s %4u %-7s %5u  %-19s %12.6g %12.6g %-6s %s %s\n", g->name, g->bus,
+               g->point.unit_id, hp_table_name(g->point.table), g->point.address, regs,
+               got[s].seen ? smp->raw : NAN, got[s].seen ? smp->value : NAN, g->unit,
+               got[s].seen ? hp_quality_name(smp->quality) : "not-read",
+               got[s].seen ? failure_text(smp, why, sizeof why) : "");
+    }
+}
+
+static json_t *signal_json(const hs_signal *g, const latest *l)
+{
+    char why[128];
+    json_t *o = json_object();
+    json_t *regs = json_array();
+    const hp_sample *s = &l->sample;
+    for (unsigned i = 0; l->seen && i < s->n_regs && i < 4; i++)
+        json_array_append_new(regs, json_integer(s->regs[i]));
+    json_object_set_new(o, "bus", json_string(g->bus));
+    json_object_set_new(o, "unit_id", json_integer(g->point.unit_id));
+    json_object_set_new(o, "table", json_string(hp_table_name(g->point.table)));
+    json_object_set_new(o, "address", json_integer(g->point.address));
+    json_object_set_new(o, "registers", regs);
+    json_object_set_new(o, "raw", l->seen && isfinite(s->raw) ? json_real(s->raw) : json_null());
+    json_object_set_new(o, "value", l->seen && isfinite(s->value) ? json_real(s->value) : json_null());
+    json_object_set_new(o, "unit", json_string(g->unit));
+    json_object_set_new(o, "quality", json_string(l->seen ? hp_quality_name(s->quality) : "not-read"));
+    if (l->seen && (s->exception || s->sys_errno))
+        json_object_set_new(o, "error", json_string(failure_text(s, why, sizeof why)));
+    if (l->seen && s->exception)
+        json_object_set_new(o, "exception", json_integer(s->exception));
+    json_object_set_new(o, "time_ms", json_integer(l->seen ? s->time_ms : 0));
+    return o;
+}
+
+static void print_ponds(const hs_site *site, const latest *got, bool json)
+{
+    for (size_t p = 0; p < site->n_ponds; p++) {
+        hs_pond_inputs in;
+        hs_pond_result res;
+        hs_pond_inputs_clear(&in);
+        for (size_t s = 0; s < site->n_signals; s++)
+            if (site->signals[s].pond_index == (int)p && got[s].seen)
+                hs_pond_inputs_put(&in, &site->signals[s], got[s].sample.quality,
+                                   got[s].sample.value);
+        hs_pond_compute(site, p, &in, &res);
+        const hs_pond *pd = &site->ponds[p];
+        if (!json) {
+            printf("pond %-10s %-13s", pd->name, hs_role_name(pd->role));
+            if (isfinite(res.state.density_kg_m3))
+                printf(" density %.1f kg/m3 at %.1f C", res.state.density_kg_m3,
+                       res.state.temperature_c);
+            if (isfinite(res.state.baume))
+                printf(", SG %.4f, %.2f Be (%g C)", res.state.specific_gravity,
+                       res.state.baume, res.state.reference_temperature_c);
+            if (isfinite(res.depth_m))
+                printf(", depth %.3f m", res.depth_m);
+            printf(" [%s]", hc_method_name(res.state.method));
+            if (res.problem)
+                printf("; %s", res.problem);
+            if (res.level_problem)
+                printf("; %s", res.level_problem);
+            printf("\n");
+            continue;
+        }
+        json_t *o = hp_state_to_json(&res.state);
+        if (!o) {
+            fprintf(stderr, "halostaged: out of memory\n");
+            return;
+        }
+        json_object_set_new(o, "pond", json_string(pd->name));
+        json_object_set_new(o, "role", json_string(hs_role_name(pd->role)));
+        json_object_set_new(o, "depth_m", isfinite(res.depth_m) ? json_real(res.depth_m) : json_null());
+        json_object_set_new(o, "problem", res.problem ? json_string(res.problem) : json_null());
+        json_object_set_new(o, "level_problem",
+                            res.level_problem ? json_string(res.level_problem) : json_null());
+        json_t *sigs = json_object();
+        for (size_t s = 0; s < site->n_signals; s++)
+            if (site->signals[s].pond_index == (int)p)
+                json_object_set_new(sigs, hs_quantity_name(site->signals[s].quantity),
+                                    signal_json(&site->signals[s], &got[s]));
+        json_object_set_new(o, "signals", sigs);
+        char *line = json_dumps(o, JSON_COMPACT | JSON_PRESERVE_ORDER);
+        if (line) {
+            printf("%s\n", line);
+            free(line);
+        }
+        json_decref(o);
+    }
+}
+
+int hs_once_run(const char *config_path, bool json)
+{
+    hs_site site;
+    hs_diag diag;
+    if (hs_site_load(config_path, &site, &diag) != 0) {
+        for (unsigned i = 0; i < diag.n; i++)
+            fprintf(stderr, "%s\n", diag.msg[i]);
+        return HS_EXIT_CONFIG;
+    }
+    int rc = 1;
+    latest *got = calloc(site.n_signals ? site.n_signals : 1, sizeof *got);
+    if (got && poll_once(&site, got) == 0) {
+        if (!json)
+            print_text(&site, got);
+        print_ponds(&site, got, json);
+        rc = 0;
+        for (size_t s = 0; s < site.n_signals; s++)
+            if (!got[s].seen || got[s].sample.quality != HP_Q_GOOD)
+                rc = 1;
+    }
+    fflush(stdout);
+    free(got);
+    hs_site_free(&site);
+    return rc;
+}

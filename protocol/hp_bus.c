@@ -1,0 +1,413 @@
+/* Bus worker; see hp_bus.h. Everything below `worker-owned` is touched only
+ * by the bus's own thread; the mutex guards stop and stats. */
+#include <errno.h>
+#include <math.h>
+#include <modbus.h>
+#include <pthread.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "hp_bus.h"
+#include "hp_plan.h"
+#include "hp_time.h"
+
+#define TIMEOUTS_BEFORE_RECONNECT 3
+#define STALE_CHECK_MS 1000
+
+struct hp_bus {
+    hp_bus_conf conf;
+    uint32_t bus_id;
+    hp_queue *queue;             /* borrowed */
+    bool once;
+    pthread_t thread;
+    pthread_mutex_t mu;
+    pthread_cond_t wake;
+    bool stop;                   /* under mu */
+    hp_bus_stats stats;          /* under mu */
+    /* worker-owned */
+    hp_point *points;            /* owned copy, n */
+    size_t n;
+    modbus_t *ctx;
+    bool connected;
+    unsigned backoff_step;
+    int64_t reconnect_at;
+    unsigned consecutive_timeouts;
+    unsigned seed;
+    int64_t *next_due;           /* per point, monotonic ms */
+    int64_t *last_good;          /* per point, monotonic ms, 0 = never */
+    double *last_value;
+    int64_t *last_wall;
+    bool *stale_sent;
+    uint32_t *which, *order;
+    hp_read *reads;
+};
+
+typedef enum { READ_OK, READ_FAILED, READ_EXCEPTION, READ_LINK_LOST } read_result;
+
+static bool stopping(hp_bus *b)
+{
+    pthread_mutex_lock(&b->mu);
+    bool s = b->stop;
+    pthread_mutex_unlock(&b->mu);
+    return s;
+}
+
+static void sleep_until(hp_bus *b, int64_t mono_ms)
+{
+    struct timespec ts;
+    hp_deadline(mono_ms - hp_mono_ms(), &ts);
+    pthread_mutex_lock(&b->mu);
+    while (!b->stop && hp_mono_ms() < mono_ms)
+        if (pthread_cond_timedwait(&b->wake, &b->mu, &ts) == ETIMEDOUT)
+            break;
+    pthread_mutex_unlock(&b->mu);
+}
+
+static void stat_add(hp_bus *b, uint64_t *field, uint64_t n, int err)
+{
+    pthread_mutex_lock(&b->mu);
+    *field += n;
+    if (err)
+        b->stats.last_errno = err;
+    pthread_mutex_unlock(&b->mu);
+}
+
+static void emit_failure(hp_bus *b, uint32_t p, int err, int exception)
+{
+    hp_sample s = {.point = p, .bus = b->bus_id, .quality = HP_Q_COMM_FAIL,
+                   .exception = exception, .sys_errno = err, .time_ms = hp_wall_ms()};
+    s.raw = s.value = NAN;
+    hp_queue_push(b->queue, &s);
+}
+
+/* Points with a good value older than stale_after get one stale sample. */
+static void emit_stale(hp_bus *b, int64_t now)
+{
+    for (size_t i = 0; i < b->n; i++) {
+        if (b->last_good[i] == 0 || b->stale_sent[i] ||
+            now - b->last_good[i] < b->conf.stale_after_ms)
+            continue;
+        hp_sample s = {.point = (uint32_t)i, .bus = b->bus_id, .quality = HP_Q_STALE,
+                       .value = b->last_value[i], .time_ms = b->last_wall[i]};
+        s.raw = NAN;
+        hp_queue_push(b->queue, &s);
+        b->stale_sent[i] = true;
+    }
+}
+
+static int connect_bus(hp_bus *b)
+{
+    if (b->ctx)
+        modbus_close(b->ctx); /* connect would leak the old socket otherwise */
+    if (modbus_connect(b->ctx) != 0)
+        return -1;
+    if (b->conf.kind == HP_BUS_RTU && b->conf.rs485)
+        (void)modbus_rtu_set_serial_mode(b->ctx, MODBUS_RTU_RS485); /* ENOTTY is harmless */
+    b->connected = true;
+    b->consecutive_timeouts = 0;
+    b->backoff_step = 0;
+    return 0;
+}
+
+static void schedule_reconnect(hp_bus *b)
+{
+    int64_t delay = b->conf.backoff_min_ms;
+    for (unsigned i = 0; i < b->backoff_step && delay < b->conf.backoff_max_ms; i++)
+        delay *= 2;
+    if (delay > b->conf.backoff_max_ms)
+        delay = b->conf.backoff_max_ms;
+    /* Jitter: a uniform draw in [delay/2, delay], so that buses that failed
+     * together do not retry together. */
+    int64_t half = delay / 2;
+    delay = half + (int64_t)(rand_r(&b->seed) % (unsigned)(delay - half + 1));
+    if (b->backoff_step < 30)
+        b->backoff_step++;
+    b->reconnect_at = hp_mono_ms() + delay;
+    if (b->connected) {
+        modbus_close(b->ctx);
+        b->connected = false;
+    }
+}
+
+static bool link_error(int e)
+{
+    return e == ECONNRESET || e == EPIPE || e == EBADF || e == ECONNREFUSED ||
+           e == ENOTCONN || e == ECONNABORTED || e == EIO;
+}
+
+static read_result do_read(hp_bus *b, const hp_read *rd)
+{
+    uint16_t regs[HP_MAX_READ_REGISTERS];
+    int err = 0;
+    for (unsigned attempt = 0; attempt <= b->conf.retries; attempt++) {
+        if (stopping(b))
+            break;
+        modbus_set_slave(b->ctx, rd->unit_id);
+        int rc = rd->table == HP_TABLE_INPUT
+                     ? modbus_read_input_registers(b->ctx, rd->start, rd->count, regs)
+                     : modbus_read_registers(b->ctx, rd->start, rd->count, regs);
+        err = errno;
+        stat_add(b, &b->stats.transactions, 1, 0);
+        if (rc == rd->count) {
+            b->consecutive_timeouts = 0;
+            int64_t now = hp_mono_ms(), wall = hp_wall_ms();
+            for (uint32_t k = rd->first; k < rd->first + rd->n_points; k++) {
+                uint32_t p = b->order[k];
+                hp_sample s = {.point = p, .bus = b->bus_id, .time_ms = wall};
+                hp_point_decode(&b->points[p], regs + (b->points[p].address - rd->start), &s);
+                if (s.quality == HP_Q_GOOD) {
+                    b->last_good[p] = now;
+                    b->last_value[p] = s.value;
+                    b->last_wall[p] = wall;
+                    b->stale_sent[p] = false;
+                }
+                hp_queue_push(b->queue, &s);
+            }
+            return READ_OK;
+        }
+        if (rc >= 0)
+            err = EMBBADDATA; /* a reply of the wrong length */
+        if (err > MODBUS_ENOBASE && err <= MODBUS_ENOBASE + MODBUS_EXCEPTION_GATEWAY_TARGET) {
+            b->consecutive_timeouts = 0;
+            stat_add(b, &b->stats.exceptions, 1, err);
+            for (uint32_t k = rd->first; k < rd->first + rd->n_points; k++)
+                emit_failure(b, b->order[k], 0, err - MODBUS_ENOBASE);
+            return READ_EXCEPTION;
+        }
+        if (link_error(err))
+            break;
+        if (err == ETIMEDOUT)
+            b->consecutive_timeouts++;
+        /* Drop whatever half-reply or late answer is still on the line, so
+         * the next request does not read it (RTU framing, stale TCP ids). */
+        modbus_flush(b->ctx);
+    }
+    stat_add(b, &b->stats.failures, 1, err);
+    for (uint32_t k = rd->first; k < rd->first + rd->n_points; k++)
+        emit_failure(b, b->order[k], err, 0);
+    if (link_error(err) || b->consecutive_timeouts >= TIMEOUTS_BEFORE_RECONNECT)
+        return READ_LINK_LOST;
+    return READ_FAILED;
+}
+
+static void fail_points(hp_bus *b, const uint32_t *which, size_t n, int err)
+{
+    for (size_t i = 0; i < n; i++)
+        emit_failure(b, which[i], err, 0);
+}
+
+static void run_cycle(hp_bus *b, size_t n_due, int64_t started)
+{
+    long nr = hp_plan(b->points, b->which, n_due, b->conf.max_registers, b->conf.max_gap,
+                      b->order, b->reads);
+    if (nr < 0) {
+        fail_points(b, b->which, n_due, EINVAL);
+        return;
+    }
+    for (long r = 0; r < nr; r++) {
+        if (do_read(b, &b->reads[r]) == READ_LINK_LOST) {
+            /* Everything after the lost read fails now instead of timing out
+             * one block after another. */
+            for (long q = r + 1; q < nr; q++)
+                for (uint32_t k = b->reads[q].first; k < b->reads[q].first + b->reads[q].n_points; k++)
+                    emit_failure(b, b->order[k], ECONNRESET, 0);
+            schedule_reconnect(b);
+            break;
+        }
+    }
+    int64_t took = hp_mono_ms() - started;
+    pthread_mutex_lock(&b->mu);
+    b->stats.cycles++;
+    b->stats.last_cycle_ms = took;
+    b->stats.total_cycle_ms += took;
+    if (took > b->stats.max_cycle_ms)
+        b->stats.max_cycle_ms = took;
+    pthread_mutex_unlock(&b->mu);
+}
+
+static void *worker(void *arg)
+{
+    hp_bus *b = arg;
+    bool first_connect = true;
+    while (!stopping(b)) {
+        int64_t now = hp_mono_ms();
+        if (!b->connected) {
+            if (now < b->reconnect_at) {
+                emit_stale(b, now);
+                int64_t until = b->reconnect_at;
+                if (until > now + STALE_CHECK_MS)
+                    until = now + STALE_CHECK_MS;
+                sleep_until(b, until);
+                continue;
+            }
+            if (!first_connect)
+                stat_add(b, &b->stats.reconnects, 1, 0);
+            first_connect = false;
+            if (connect_bus(b) != 0) {
+                int err = errno;
+                stat_add(b, &b->stats.failures, 1, err);
+                size_t n_due = 0;
+                for (size_t i = 0; i < b->n; i++)
+                    if (b->next_due[i] <= now) {
+                        b->which[n_due++] = (uint32_t)i;
+                        b->next_due[i] = now + b->points[i].interval_ms;
+                    }
+                fail_points(b, b->which, n_due, err);
+                if (b->once)
+                    break;
+                schedule_reconnect(b);
+                continue;
+            }
+        }
+        size_t n_due = 0;
+        int64_t soonest = INT64_MAX;
+        for (size_t i = 0; i < b->n; i++) {
+            if (b->next_due[i] <= now) {
+                b->which[n_due++] = (uint32_t)i;
+                /* Keep the schedule's phase; skip missed slots after a stall. */
+                b->next_due[i] += b->points[i].interval_ms;
+                if (b->next_due[i] <= now)
+                    b->next_due[i] = now + b->points[i].interval_ms;
+            }
+            if (b->next_due[i] < soonest)
+                soonest = b->next_due[i];
+        }
+        if (n_due > 0)
+            run_cycle(b, n_due, now);
+        if (b->once)
+            break;
+        emit_stale(b, hp_mono_ms());
+        if (b->connected)
+            sleep_until(b, soonest);
+    }
+    return NULL;
+}
+
+static modbus_t *new_context(const hp_bus_conf *c)
+{
+    modbus_t *ctx;
+    if (c->kind == HP_BUS_TCP) {
+        char port[16];
+        snprintf(port, sizeof port, "%d", c->port);
+        ctx = modbus_new_tcp_pi(c->host, port);
+    } else {
+        static const char parity[] = {'N', 'E', 'O'};
+        ctx = modbus_new_rtu(c->device, c->baud, parity[c->parity % 3], c->data_bits,
+                             c->stop_bits);
+    }
+    if (!ctx)
+        return NULL;
+    /* libmodbus wants microseconds below 1,000,000 (PITFALLS.md). */
+    modbus_set_response_timeout(ctx, (uint32_t)(c->response_timeout_ms / 1000),
+                                (uint32_t)(c->response_timeout_ms % 1000) * 1000u);
+    modbus_set_byte_timeout(ctx, (uint32_t)(c->byte_timeout_ms / 1000),
+                            (uint32_t)(c->byte_timeout_ms % 1000) * 1000u);
+    modbus_set_error_recovery(ctx, MODBUS_ERROR_RECOVERY_NONE);
+    return ctx;
+}
+
+static void free_bus(hp_bus *b)
+{
+    if (b->ctx) {
+        modbus_close(b->ctx);
+        modbus_free(b->ctx);
+    }
+    free(b->points);
+    free(b->next_due);
+    free(b->last_good);
+    free(b->last_value);
+    free(b->last_wall);
+    free(b->stale_sent);
+    free(b->which);
+    free(b->order);
+    free(b->reads);
+    pthread_cond_destroy(&b->wake);
+    pthread_mutex_destroy(&b->mu);
+    free(b);
+}
+
+hp_bus *hp_bus_start(const hp_bus_conf *conf, const hp_point *points, size_t n,
+                     uint32_t bus_id, hp_queue *queue, bool once)
+{
+    if (!conf || !queue || (n > 0 && !points)) {
+        errno = EINVAL;
+        return NULL;
+    }
+    hp_bus *b = calloc(1, sizeof *b);
+    if (!b)
+        return NULL;
+    if (pthread_mutex_init(&b->mu, NULL) != 0) {
+        free(b);
+        return NULL;
+    }
+    if (hp_cond_init_mono(&b->wake) != 0) {
+        pthread_mutex_destroy(&b->mu);
+        free(b);
+        return NULL;
+    }
+    b->conf = *conf;
+    b->bus_id = bus_id;
+    b->queue = queue;
+    b->once = once;
+    b->n = n;
+    b->seed = (unsigned)hp_wall_ms() ^ (bus_id * 2654435761u);
+    size_t m = n ? n : 1;
+    b->points = calloc(m, sizeof *b->points);
+    b->next_due = calloc(m, sizeof *b->next_due);
+    b->last_good = calloc(m, sizeof *b->last_good);
+    b->last_value = calloc(m, sizeof *b->last_value);
+    b->last_wall = calloc(m, sizeof *b->last_wall);
+    b->stale_sent = calloc(m, sizeof *b->stale_sent);
+    b->which = calloc(m, sizeof *b->which);
+    b->order = calloc(m, sizeof *b->order);
+    b->reads = calloc(m, sizeof *b->reads);
+    b->ctx = new_context(conf);
+    if (!b->points || !b->next_due || !b->last_good || !b->last_value || !b->last_wall ||
+        !b->stale_sent || !b->which || !b->order || !b->reads || !b->ctx) {
+        int e = errno ? errno : ENOMEM;
+        free_bus(b);
+        errno = e;
+        return NULL;
+    }
+    if (n)
+        memcpy(b->points, points, n * sizeof *points);
+    int rc = pthread_create(&b->thread, NULL, worker, b);
+    if (rc != 0) {
+        free_bus(b);
+        errno = rc;
+        return NULL;
+    }
+    return b;
+}
+
+void hp_bus_join(hp_bus *b)
+{
+    if (!b)
+        return;
+    if (!b->once) {
+        hp_bus_stop(b);
+        return;
+    }
+    pthread_join(b->thread, NULL);
+    free_bus(b);
+}
+
+void hp_bus_stop(hp_bus *b)
+{
+    if (!b)
+        return;
+    pthread_mutex_lock(&b->mu);
+    b->stop = true;
+    pthread_cond_broadcast(&b->wake);
+    pthread_mutex_unlock(&b->mu);
+    pthread_join(b->thread, NULL);
+    free_bus(b);
+}
+
+void hp_bus_get_stats(hp_bus *b, hp_bus_stats *out)
+{
+    pthread_mutex_lock(&b->mu);
+    *out = b->stats;
+    pthread_mutex_unlock(&b->mu);
+}

@@ -1,0 +1,167 @@
+/* halostage-sim --config FILE [--speed N] [--rtu BUS=PTY]...
+ *               [--fault BUS[:UNIT]=KIND[:MS]]...
+ *               [--truth FILE]
+ * KIND: timeout, exception, drop, nan, sentinel, latency:MS.
+ * Stops on SIGTERM or SIGINT. */
+#include <getopt.h>
+#include <signal.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <time.h>
+
+#include "hs_config.h"
+#include "sim.h"
+
+static volatile sig_atomic_t stop_flag;
+
+static void on_signal(int sig)
+{
+    (void)sig;
+    stop_flag = 1;
+}
+
+static void usage(FILE *to)
+{
+    fprintf(to, "usage: halostage-sim --config FILE [--speed N] [--rtu BUS=PTY]...\n"
+                "                     [--fault BUS[:UNIT]=KIND]... [--truth FILE]\n"
+                "  KIND: timeout, exception, drop, nan, sentinel, latency:MS\n"
+                "  --truth FILE: keep the model's true pond values in FILE (JSON)\n");
+}
+
+static int parse_fault(sim *s, const char *text)
+{
+    char buf[128], *eq, *colon;
+    snprintf(buf, sizeof buf, "%s", text);
+    eq = strchr(buf, '=');
+    if (!eq || s->n_faults >= SIM_FAULTS_MAX)
+        return -1;
+    *eq = '\0';
+    sim_fault f = {.unit = 0};
+    colon = strchr(buf, ':');
+    if (colon) {
+        *colon = '\0';
+        char *end;
+        long u = strtol(colon + 1, &end, 10);
+        if (*end || u < 1 || u > 255)
+            return -1;
+        f.unit = (int)u;
+    }
+    f.bus = hs_site_bus(&s->site, buf);
+    if (f.bus < 0)
+        return -1;
+    const char *kind = eq + 1;
+    if (strcmp(kind, "timeout") == 0) f.kind = SIM_FAULT_TIMEOUT;
+    else if (strcmp(kind, "exception") == 0) f.kind = SIM_FAULT_EXCEPTION;
+    else if (strcmp(kind, "drop") == 0) f.kind = SIM_FAULT_DROP;
+    else if (strcmp(kind, "nan") == 0) f.kind = SIM_FAULT_NAN;
+    else if (strcmp(kind, "sentinel") == 0) f.kind = SIM_FAULT_SENTINEL;
+    else if (strncmp(kind, "latency:", 8) == 0) {
+        char *end;
+        long ms = strtol(kind + 8, &end, 10);
+        if (*end || ms < 0 || ms > 60000)
+            return -1;
+        f.kind = SIM_FAULT_LATENCY;
+        f.latency_ms = (int)ms;
+    } else
+        return -1;
+    s->faults[s->n_faults++] = f;
+    return 0;
+}
+
+int main(int argc, char **argv)
+{
+    static const struct option opts[] = {
+        {"config", required_argument, NULL, 'c'}, {"speed", required_argument, NULL, 's'},
+        {"rtu", required_argument, NULL, 'r'},    {"fault", required_argument, NULL, 'f'},
+        {"truth", required_argument, NULL, 't'},
+        {"help", no_argument, NULL, 'h'},         {NULL, 0, NULL, 0},
+    };
+    static sim s;
+    const char *config = NULL, *truth = NULL;
+    const char *rtu[16], *faults[SIM_FAULTS_MAX];
+    int n_rtu = 0, n_faults = 0, c;
+    s.speed = 1.0;
+    while ((c = getopt_long(argc, argv, "c:s:r:f:h", opts, NULL)) != -1) {
+        switch (c) {
+        case 'c': config = optarg; break;
+        case 's': {
+            char *end;
+            s.speed = strtod(optarg, &end);
+            if (*end || !(s.speed > 0 && s.speed <= 1e6)) {
+                fprintf(stderr, "halostage-sim: --speed: '%s' is not a number in (0, 1e6]\n", optarg);
+                return 2;
+            }
+            break;
+        }
+        case 'r': if (n_rtu < 16) rtu[n_rtu++] = optarg; break;
+        case 'f': if (n_faults < SIM_FAULTS_MAX) faults[n_faults++] = optarg; break;
+        case 't': truth = optarg; break;
+        case 'h': usage(stdout); return 0;
+        default: usage(stderr); return 2;
+        }
+    }
+    if (!config || optind < argc) {
+        usage(stderr);
+        return 2;
+    }
+    hs_diag diag;
+    if (hs_site_load(config, &s.site, &diag) != 0) {
+        for (unsigned i = 0; i < diag.n; i++)
+            fprintf(stderr, "%s\n", diag.msg[i]);
+        return 78;
+    }
+    int rc = 1;
+    pthread_mutex_init(&s.lock, NULL);
+    s.stop = &stop_flag;
+    s.seed = (unsigned)time(NULL);
+    s.sim_time_s = (double)time(NULL);
+    for (int i = 0; i < n_rtu; i++) {
+        const char *eq = strchr(rtu[i], '=');
+        char name[HS_NAME_MAX];
+        int b = -1;
+        if (eq && (size_t)(eq - rtu[i]) < sizeof name) {
+            snprintf(name, sizeof name, "%.*s", (int)(eq - rtu[i]), rtu[i]);
+            b = hs_site_bus(&s.site, name);
+        }
+        if (b < 0 || b >= 16) {
+            fprintf(stderr, "halostage-sim: --rtu %s: expected BUS=PTY with a bus of the config\n", rtu[i]);
+            goto out;
+        }
+        s.rtu_path[b] = eq + 1;
+    }
+    for (int i = 0; i < n_faults; i++)
+        if (parse_fault(&s, faults[i]) != 0) {
+            fprintf(stderr, "halostage-sim: --fault %s: expected BUS[:UNIT]=KIND with KIND "
+                    "timeout, exception, drop, nan, sentinel or latency:MS\n", faults[i]);
+            goto out;
+        }
+    if (sim_model_init(&s) != 0)
+        goto out;
+    struct sigaction sa = {0};
+    sa.sa_handler = on_signal;
+    sigaction(SIGTERM, &sa, NULL);
+    sigaction(SIGINT, &sa, NULL);
+    signal(SIGPIPE, SIG_IGN);
+    if (sim_servers_start(&s) != 0) {
+        stop_flag = 1;
+        sim_servers_join(&s);
+        goto out;
+    }
+    if (truth && sim_truth_write(&s, truth) != 0)
+        fprintf(stderr, "halostage-sim: cannot write %s\n", truth);
+    while (!stop_flag) {
+        struct timespec ts = {0, 100000000L};
+        nanosleep(&ts, NULL);
+        sim_model_step(&s, 0.1 * s.speed);
+        if (truth && sim_truth_write(&s, truth) != 0)
+            fprintf(stderr, "halostage-sim: cannot write %s\n", truth);
+    }
+    sim_servers_join(&s);
+    rc = 0;
+out:
+    sim_model_free(&s);
+    hs_site_free(&s.site);
+    pthread_mutex_destroy(&s.lock);
+    return rc;
+}

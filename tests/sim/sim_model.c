@@ -1,0 +1,274 @@
+/* The simulator's pond model and register images.
+ * Physics kept simple for a test tool:
+ * - seawater range (S_P <= 42): density EOS-80 and conductivity PSS-78
+ *   through calc (hc_eos80_rho, hc_pss78_c_from_sp), taking S_P = S / 1.00488
+ *   (S_R = 35.16504/35 S_P, Millero et al. 2008);
+ * - beyond: density continues linearly from S_P 42 at 0.75 kg/m3 per g/kg
+ *   (an approximation for NaCl-dominated brine, no source), conductivity from
+ *   the CRC Handbook NaCl(aq) table at 20 C (shared/DOMAIN.md §9) with a
+ *   linear 2 %/K compensation (typical, DOMAIN.md §9);
+ * - evaporation 6 mm/day on average, by season and by day, slowed by
+ *   salinity; rain events; pumps move depth from a pond to its next. */
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "hc_eos80.h"
+#include "hc_level.h"
+#include "hc_pss78.h"
+#include "sim.h"
+
+#define SR_PER_SP (35.16504 / 35.0)
+#define HALITE_SAT_G_KG 318.0   /* NaCl saturation ~26.4 % (CRC), sim cap */
+
+static double density(double s_g_kg, double t_c)
+{
+    double sp = s_g_kg / SR_PER_SP, rho;
+    if (sp <= 42.0 && hc_eos80_rho(sp, t_c, 0.0, &rho) == HC_OK)
+        return rho;
+    double rho42;
+    if (hc_eos80_rho(42.0, t_c, 0.0, &rho42) != HC_OK)
+        rho42 = 1031.0;
+    return rho42 + 0.75 * (s_g_kg - 42.0 * SR_PER_SP);
+}
+
+static double conductivity(double s_g_kg, double t_c)
+{
+    double sp = s_g_kg / SR_PER_SP, c;
+    if (sp <= 42.0 && hc_pss78_c_from_sp(sp, t_c, 0.0, &c) == HC_OK)
+        return c;
+    /* CRC Handbook NaCl(aq), 20 C: mass % -> mS/cm. */
+    static const double pct[] = {0.5, 1, 2, 5, 10, 15, 20, 25};
+    static const double ms[] = {8.2, 16.0, 30.2, 70.1, 126, 171, 204, 222};
+    double w = s_g_kg / 10.0, c20 = ms[7];
+    for (int i = 0; i < 7; i++)
+        if (w <= pct[i + 1]) {
+            c20 = ms[i] + (ms[i + 1] - ms[i]) * (w - pct[i]) / (pct[i + 1] - pct[i]);
+            break;
+        }
+    double c_pss42;
+    if (hc_pss78_c_from_sp(42.0, 20.0, 0.0, &c_pss42) != HC_OK)
+        c_pss42 = 60.0;
+    if (c20 < c_pss42)
+        c20 = c_pss42; /* keep it rising through the seam between the two */
+    return c20 * (1.0 + 0.02 * (t_c - 20.0));
+}
+
+static double noise(sim *s, double amplitude)
+{
+    return amplitude * (2.0 * rand_r(&s->seed) / (double)RAND_MAX - 1.0);
+}
+
+sim_device *sim_device_find(sim *s, int bus, uint8_t unit)
+{
+    for (size_t i = 0; i < s->n_devices; i++)
+        if (s->devices[i].bus == bus && s->devices[i].unit == unit)
+            return &s->devices[i];
+    return NULL;
+}
+
+const sim_fault *sim_fault_for(const sim *s, int bus, int unit)
+{
+    for (size_t i = 0; i < s->n_faults; i++)
+        if (s->faults[i].bus == bus && (s->faults[i].unit == 0 || s->faults[i].unit == unit))
+            return &s->faults[i];
+    return NULL;
+}
+
+/* A starting salinity in the middle of the pond's density band. */
+static double initial_salinity(const hs_pond *p)
+{
+    double lo = isnan(p->density_in_kg_m3) ? 1025.0 : p->density_in_kg_m3;
+    double hi = isnan(p->density_out_kg_m3) ? lo + 20.0 : p->density_out_kg_m3;
+    double target = 0.5 * (lo + hi), s = 0.0;
+    for (int i = 0; i < 200 && density(s, 20.0) < target; i++)
+        s += 2.0;
+    return s > HALITE_SAT_G_KG + 60 ? HALITE_SAT_G_KG + 60 : s;
+}
+
+int sim_model_init(sim *s)
+{
+    s->ponds = calloc(s->site.n_ponds ? s->site.n_ponds : 1, sizeof *s->ponds);
+    if (!s->ponds)
+        return -1;
+    for (size_t i = 0; i < s->site.n_ponds; i++) {
+        const hs_pond *p = &s->site.ponds[i];
+        sim_pond *q = &s->ponds[i];
+        double lo = isnan(p->level_min_m) ? 0.2 : p->level_min_m;
+        double hi = isnan(p->level_max_m) ? lo + 0.5 : p->level_max_m;
+        q->depth_m = 0.5 * (lo + hi);
+        q->salinity_g_kg = initial_salinity(p);
+        q->temperature_c = 22.0;
+    }
+    /* One register image per (bus, unit) that signals use. */
+    for (size_t g = 0; g < s->site.n_signals; g++) {
+        const hs_signal *sg = &s->site.signals[g];
+        if (sim_device_find(s, sg->bus_index, sg->point.unit_id))
+            continue;
+        int hold = 1, input = 1, coils = 1;
+        for (size_t h = 0; h < s->site.n_signals; h++) {
+            const hs_signal *o = &s->site.signals[h];
+            if (o->bus_index != sg->bus_index || o->point.unit_id != sg->point.unit_id)
+                continue;
+            int end = o->point.address + (int)hp_type_registers(o->point.type);
+            if (o->point.table == HP_TABLE_INPUT && end > input)
+                input = end;
+            if (o->point.table == HP_TABLE_HOLDING && end > hold)
+                hold = end;
+            if (o->quantity == HS_Q_PUMP_RUN && o->point.address + 1 > coils)
+                coils = o->point.address + 1;
+        }
+        sim_device *grown = realloc(s->devices, (s->n_devices + 1) * sizeof *grown);
+        if (!grown)
+            return -1;
+        s->devices = grown;
+        sim_device *d = &s->devices[s->n_devices];
+        d->bus = sg->bus_index;
+        d->unit = sg->point.unit_id;
+        d->map = modbus_mapping_new(coils, 0, hold, input);
+        if (!d->map) {
+            fprintf(stderr, "halostage-sim: out of memory for registers\n");
+            return -1;
+        }
+        s->n_devices++;
+    }
+    sim_model_step(s, 0.0);
+    return 0;
+}
+
+void sim_model_free(sim *s)
+{
+    for (size_t i = 0; i < s->n_devices; i++)
+        modbus_mapping_free(s->devices[i].map);
+    free(s->devices);
+    free(s->ponds);
+    s->devices = NULL;
+    s->ponds = NULL;
+}
+
+/* The SI value a signal should show now. */
+static double signal_si(sim *s, const hs_signal *sg, double g)
+{
+    const hs_pond *p = &s->site.ponds[sg->pond_index];
+    const sim_pond *q = &s->ponds[sg->pond_index];
+    double rho = density(q->salinity_g_kg, q->temperature_c);
+    switch (sg->quantity) {
+    case HS_Q_CONDUCTIVITY:
+        return conductivity(q->salinity_g_kg, q->temperature_c) * (1.0 + noise(s, 0.002));
+    case HS_Q_TEMPERATURE: return q->temperature_c + noise(s, 0.05);
+    case HS_Q_LEVEL_PRESSURE:
+        return fmax(0.0, rho * g * (q->depth_m - p->pressure_height_m)) + noise(s, 5.0);
+    case HS_Q_PRESSURE_UPPER:
+        return fmax(0.0, rho * g * (q->depth_m - p->pressure_height_m - p->pressure_spacing_m))
+               + noise(s, 5.0);
+    case HS_Q_LEVEL_DISTANCE: return p->distance_height_m - q->depth_m + noise(s, 0.001);
+    case HS_Q_DENSITY: return rho + noise(s, 0.1);
+    case HS_Q_RAIN: return q->rain_total_m;
+    case HS_Q_PUMP_RUN: return q->pumping ? 1.0 : 0.0;
+    default: return NAN;
+    }
+}
+
+static void write_signal(sim *s, const hs_signal *sg, double g)
+{
+    sim_device *d = sim_device_find(s, sg->bus_index, sg->point.unit_id);
+    if (!d)
+        return;
+    const hp_point *pt = &sg->point;
+    double raw = (signal_si(s, sg, g) / sg->si_factor - pt->offset) / pt->scale;
+    const sim_fault *f = sim_fault_for(s, sg->bus_index, pt->unit_id);
+    if (f && (f->kind == SIM_FAULT_NAN || f->kind == SIM_FAULT_SENTINEL)) {
+        bool is_float = pt->type == HP_FLOAT32 || pt->type == HP_FLOAT64;
+        if (f->kind == SIM_FAULT_NAN && is_float)
+            raw = NAN;
+        else
+            raw = pt->n_sentinels ? pt->sentinels[0] : 65535.0;
+    }
+    uint16_t *table = pt->table == HP_TABLE_INPUT ? d->map->tab_input_registers
+                                                  : d->map->tab_registers;
+    hp_encode(raw, pt->type, pt->byte_order, pt->word_order, table + pt->address);
+}
+
+void sim_model_step(sim *s, double dt_s)
+{
+    double g = 9.80665;
+    (void)hc_gravity(s->site.site.latitude_deg, 0.0, &g);
+    pthread_mutex_lock(&s->lock);
+    s->sim_time_s += dt_s;
+    double day = fmod(s->sim_time_s, 86400.0) / 86400.0;          /* 0..1 from midnight */
+    double season = sin(2.0 * M_PI * fmod(s->sim_time_s, 365.25 * 86400.0) /
+                        (365.25 * 86400.0));
+    double sun = fmax(0.0, sin(2.0 * M_PI * (day - 0.25)));       /* 6 h to 18 h */
+    /* Rain: on average one event every ~10 simulated days, lasting ~2 h. */
+    static const double rain_rate_m_s = 4e-3 / 3600.0;
+    bool raining = fmod(s->sim_time_s / 3600.0, 240.0) < 2.0 && season < 0.3;
+    for (size_t i = 0; i < s->site.n_ponds; i++) {
+        sim_pond *q = &s->ponds[i];
+        const hs_pond *p = &s->site.ponds[i];
+        q->temperature_c = 22.0 + 6.0 * season + 7.0 * (sun - 0.3);
+        /* 6 mm/day mean, twice as fast at noon, slower in salty brine (water
+         * activity falls to ~0.75 at halite saturation, DOMAIN.md §10). */
+        double activity = 1.0 - 0.25 * fmin(1.0, q->salinity_g_kg / HALITE_SAT_G_KG);
+        double evap_m_s = 6e-3 / 86400.0 * (1.0 + 0.4 * season) * 2.0 * sun * activity;
+        double before = q->depth_m;
+        q->depth_m -= evap_m_s * dt_s;
+        if (raining) {
+            q->depth_m += rain_rate_m_s * dt_s;
+            q->rain_total_m += rain_rate_m_s * dt_s;
+        }
+        if (q->depth_m < 0.01)
+            q->depth_m = 0.01;
+        /* Salt stays; beyond halite saturation it crystallises out. */
+        q->salinity_g_kg = fmin(HALITE_SAT_G_KG + 40.0, q->salinity_g_kg * before / q->depth_m);
+        /* Pumps: the coil at the pump-run address starts the pond's pump;
+         * it moves 50 mm/h of depth down the chain, and stops itself at
+         * level_min (the sim's own interlock). */
+        const hs_signal *run = hs_site_signal(&s->site, (int)i, HS_Q_PUMP_RUN);
+        sim_device *d = run ? sim_device_find(s, run->bus_index, run->point.unit_id) : NULL;
+        q->pumping = d && d->map->tab_bits[run->point.address] &&
+                     (isnan(p->level_min_m) || q->depth_m > p->level_min_m) && p->next_index >= 0;
+        if (q->pumping && dt_s > 0) {
+            double moved = 0.05 / 3600.0 * dt_s;
+            sim_pond *nx = &s->ponds[p->next_index];
+            double a_from = isnan(p->floor_area_m2) ? 1e4 : p->floor_area_m2;
+            const hs_pond *pn = &s->site.ponds[p->next_index];
+            double a_to = isnan(pn->floor_area_m2) ? 1e4 : pn->floor_area_m2;
+            double add = moved * a_from / a_to;
+            nx->salinity_g_kg = (nx->salinity_g_kg * nx->depth_m + q->salinity_g_kg * add) /
+                                (nx->depth_m + add);
+            nx->depth_m += add;
+            q->depth_m -= moved;
+        }
+    }
+    for (size_t k = 0; k < s->site.n_signals; k++)
+        write_signal(s, &s->site.signals[k], g);
+    pthread_mutex_unlock(&s->lock);
+}
+
+/* Writes the model's true pond values as one JSON object, atomically
+ * (temporary file, then rename), so tests can compare what the daemon
+ * infers with what the simulator holds. */
+int sim_truth_write(sim *s, const char *path)
+{
+    char tmp[512];
+    snprintf(tmp, sizeof tmp, "%s.tmp", path);
+    FILE *f = fopen(tmp, "w");
+    if (!f)
+        return -1;
+    pthread_mutex_lock(&s->lock);
+    fprintf(f, "{\"time_s\": %.3f, \"ponds\": {", s->sim_time_s);
+    for (size_t i = 0; i < s->site.n_ponds; i++) {
+        const sim_pond *q = &s->ponds[i];
+        fprintf(f, "%s\"%s\": {\"salinity_g_kg\": %.6f, \"temperature_c\": %.4f, "
+                "\"depth_m\": %.6f, \"density_kg_m3\": %.4f, \"pumping\": %s}",
+                i ? ", " : "", s->site.ponds[i].name, q->salinity_g_kg, q->temperature_c,
+                q->depth_m, density(q->salinity_g_kg, q->temperature_c),
+                q->pumping ? "true" : "false");
+    }
+    fprintf(f, "}}\n");
+    pthread_mutex_unlock(&s->lock);
+    if (fclose(f) != 0)
+        return -1;
+    return rename(tmp, path);
+}
