@@ -70,7 +70,7 @@ static int signal_add(hs_site *site, hs_cfg *cfg, const char *name)
     if (q < 0) {
         hs_cfg_error(cfg, line, "unknown quantity '%s' (use conductivity, temperature, "
                      "level-pressure, level-distance, density, pressure-upper, rain, "
-                     "pump-run)", dot + 1);
+                     "pump-run, pump-manual)", dot + 1);
         return -1;
     }
     int i = hs_cfg_grow((void **)&site->signals, &site->n_signals, sizeof site->signals[0]);
@@ -118,7 +118,7 @@ static void signal_finish(hs_site *site, hs_cfg *cfg, size_t index)
     G *g = &site->signals[index];
     const hs_unit_kind *kind = kind_of(g->quantity);
     if (!g->unit[0]) {
-        if (g->quantity == HS_Q_PUMP_RUN)
+        if (g->quantity == HS_Q_PUMP_RUN || g->quantity == HS_Q_PUMP_MANUAL)
             snprintf(g->unit, sizeof g->unit, "state");
         else
             hs_cfg_error(cfg, g->line, "[signal %s]: missing required key 'unit' (%s)",

@@ -13,7 +13,7 @@ const char *hs_role_name(hs_role role)
 
 static const char *const quantity_names[HS_QUANTITY_COUNT] = {
     "conductivity", "temperature", "level-pressure", "level-distance",
-    "density", "pressure-upper", "rain", "pump-run",
+    "density", "pressure-upper", "rain", "pump-run", "pump-manual",
 };
 
 const char *hs_quantity_name(hs_quantity quantity)

@@ -85,6 +85,7 @@ typedef enum {
     HS_Q_PRESSURE_UPPER,   /* second pressure, pressure_spacing above the first */
     HS_Q_RAIN,             /* rain gauge, accumulated */
     HS_Q_PUMP_RUN,         /* feedback of the pond's outlet pump, 0/1 */
+    HS_Q_PUMP_MANUAL,      /* the outlet pump is in local (manual) control, 0/1 */
     HS_QUANTITY_COUNT
 } hs_quantity;
 
@@ -121,6 +122,8 @@ typedef struct {
     char description[96];
 } hs_feed;
 
+struct hs_transfer_conf;
+
 typedef struct hs_site {
     char path[HS_PATH_MAX];        /* the configuration file as given */
     char dir[HS_PATH_MAX];         /* its folder, for relative paths */
@@ -129,6 +132,7 @@ typedef struct hs_site {
     hs_pond *ponds;    size_t n_ponds;
     hs_signal *signals; size_t n_signals;
     hs_feed *feeds;    size_t n_feeds;
+    struct hs_transfer_conf *transfers; size_t n_transfers; /* hs_conf_transfer.h */
     /* Other section types ([mqtt], [alarm NAME], [transfer NAME], ...) add
      * their arrays below, each owned and released by its own file. */
 } hs_site;

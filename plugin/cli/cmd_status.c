@@ -1,0 +1,270 @@
+/* halostage status --config FILE [--json]: the operator's one-screen view
+ * of the site from the daemon's history file: every pond's stage, density,
+ * degree Baume, level and volume, active alarms, days to target, and the
+ * current advice of every transfer with its reasons. Reads the store while
+ * the daemon writes (WAL). */
+#include <getopt.h>
+#include <jansson.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <time.h>
+
+#include "commands.h"
+#include "hp_state_json.h"
+#include "hs_alarm.h"
+#include "hs_conf_transfer.h"
+#include "hs_config.h"
+#include "hs_store.h"
+#include "hs_store_latest.h"
+
+#define MAX_ALARMS 256
+
+struct alarm_row {
+    char pond[HS_ALARM_NAME_MAX];
+    char rule[HS_ALARM_NAME_MAX];
+    char state[32];
+    double value;
+    int64_t t_ms;
+};
+
+struct alarm_list {
+    struct alarm_row rows[MAX_ALARMS];
+    size_t n;
+};
+
+static void collect_alarm(void *ctx, const hs_journal_row *row)
+{
+    struct alarm_list *l = ctx;
+    if (strcmp(row->to_state, "normal") == 0 || l->n >= MAX_ALARMS)
+        return;
+    struct alarm_row *a = &l->rows[l->n++];
+    snprintf(a->pond, sizeof a->pond, "%s", row->pond);
+    snprintf(a->rule, sizeof a->rule, "%s", row->rule);
+    snprintf(a->state, sizeof a->state, "%s", row->to_state);
+    a->value = row->value;
+    a->t_ms = row->t_ms;
+}
+
+static int64_t wall_ms(void)
+{
+    struct timespec ts;
+    clock_gettime(CLOCK_REALTIME, &ts);
+    return (int64_t)ts.tv_sec * 1000 + ts.tv_nsec / 1000000;
+}
+
+static void num(char *buf, size_t len, double v, int decimals)
+{
+    if (isfinite(v))
+        snprintf(buf, len, "%.*f", decimals, v);
+    else
+        snprintf(buf, len, "-");
+}
+
+static void days(char *buf, size_t len, double lo, double hi)
+{
+    if (!isfinite(lo) && !isfinite(hi))
+        snprintf(buf, len, "-");
+    else if (isfinite(lo) && isfinite(hi) && fabs(hi - lo) >= 0.5)
+        snprintf(buf, len, "%.0f-%.0f", lo, hi);
+    else
+        snprintf(buf, len, "%.1f", isfinite(lo) ? lo : hi);
+}
+
+/* "trigger-met,rain" from the stored reasons JSON. */
+static void reason_names(const char *json, int interlocks_only, char *buf, size_t len)
+{
+    buf[0] = '\0';
+    json_t *a = json_loads(json, 0, NULL);
+    size_t i, used = 0;
+    json_t *r;
+    json_array_foreach(a, i, r) {
+        const char *name = json_string_value(json_object_get(r, "name"));
+        if (name == NULL || (interlocks_only && !json_is_true(json_object_get(r, "interlock"))))
+            continue;
+        int n = snprintf(buf + used, len - used, "%s%s", used ? "," : "", name);
+        if (n < 0 || (size_t)n >= len - used)
+            break;
+        used += (size_t)n;
+    }
+    json_decref(a);
+}
+
+static void alarms_of(const struct alarm_list *l, const char *pond, char *buf, size_t len)
+{
+    size_t used = 0;
+    buf[0] = '\0';
+    for (size_t i = 0; i < l->n; i++) {
+        if (strcmp(l->rows[i].pond, pond) != 0)
+            continue;
+        int n = snprintf(buf + used, len - used, "%s%s", used ? "," : "", l->rows[i].rule);
+        if (n < 0 || (size_t)n >= len - used)
+            break;
+        used += (size_t)n;
+    }
+    if (used == 0)
+        snprintf(buf, len, "-");
+}
+
+static void print_table(const hs_site *site, hs_store *st, const struct alarm_list *alarms,
+                        int64_t now)
+{
+    printf("site %s, %s\n", site->site.name, site->site.database);
+    printf("%-9s %-12s %-17s %8s %6s %7s %10s %9s %-8s %s\n", "POND", "ROLE", "STAGE",
+           "kg/m3", "Be", "LEVEL m", "VOLUME m3", "DAYS", "QUALITY", "ALARMS");
+    for (size_t i = 0; i < site->n_ponds; i++) {
+        const hs_pond *p = &site->ponds[i];
+        hs_state_row row;
+        int rc = hs_store_latest_state(st, p->name, &row);
+        char rho[16] = "-", be[16] = "-", lvl[16] = "-", vol[16] = "-", d[24] = "-";
+        char al[200];
+        const char *stage = "-", *quality = rc == 0 ? hs_quality_name(row.quality) : "no data";
+        if (rc == 0) {
+            num(rho, sizeof rho, row.state.density_kg_m3, 1);
+            num(be, sizeof be, row.state.baume, 2);
+            num(lvl, sizeof lvl, row.extra.depth_m, 3);
+            num(vol, sizeof vol, row.extra.volume_m3, 0);
+            days(d, sizeof d, row.extra.days_to_target_low, row.extra.days_to_target_high);
+            if (row.state.stage != HC_STAGE_NONE)
+                stage = hc_stage_name(row.state.stage);
+            if (now - row.t_ms > 5 * 60000)
+                quality = "old";
+        }
+        alarms_of(alarms, p->name, al, sizeof al);
+        printf("%-9s %-12s %-17s %8s %6s %7s %10s %9s %-8s %s\n", p->name, hs_role_name(p->role),
+               stage, rho, be, lvl, vol, d, quality, al);
+    }
+    if (site->n_transfers > 0) {
+        printf("\n%-16s %-18s %-8s %s\n", "TRANSFER", "FROM -> TO", "ADVICE", "REASONS");
+        for (size_t i = 0; i < site->n_transfers; i++) {
+            const hs_transfer_conf *t = &site->transfers[i];
+            hs_transfer_row tr;
+            char route[2 * HS_NAME_MAX + 8], reasons[400] = "";
+            snprintf(route, sizeof route, "%s -> %s", t->source, t->destination);
+            int rc = hs_store_latest_transfer(st, t->name, &tr);
+            if (rc == 0)
+                reason_names(tr.reasons, 0, reasons, sizeof reasons);
+            printf("%-16s %-18s %-8s %s%s\n", t->name, route, rc == 0 ? tr.advice : "-",
+                   rc == 0 ? reasons : "no decision yet", t->actuate ? " [ACTUATED]" : "");
+        }
+    }
+    printf("\n%zu alarm(s) not back to normal", alarms->n);
+    for (size_t i = 0; i < alarms->n; i++)
+        printf("%s %s/%s %s", i ? "," : ":", alarms->rows[i].pond, alarms->rows[i].rule,
+               alarms->rows[i].state);
+    printf("\n");
+}
+
+static json_t *status_json(const hs_site *site, hs_store *st, const struct alarm_list *alarms)
+{
+    json_t *ponds = json_array(), *transfers = json_array(), *al = json_array();
+    for (size_t i = 0; i < site->n_ponds; i++) {
+        const hs_pond *p = &site->ponds[i];
+        hs_state_row row;
+        json_t *o;
+        if (hs_store_latest_state(st, p->name, &row) == 0) {
+            o = hp_state_to_json(&row.state);
+            json_object_set_new(o, "time_ms", json_integer(row.t_ms));
+            json_object_set_new(o, "quality", json_string(hs_quality_name(row.quality)));
+            json_object_set_new(o, "depth_m", isfinite(row.extra.depth_m) ? json_real(row.extra.depth_m) : json_null());
+            json_object_set_new(o, "volume_m3", isfinite(row.extra.volume_m3) ? json_real(row.extra.volume_m3) : json_null());
+            json_object_set_new(o, "days_to_target",
+                                json_pack("{s:o, s:o}", "low",
+                                          isfinite(row.extra.days_to_target_low) ? json_real(row.extra.days_to_target_low) : json_null(),
+                                          "high",
+                                          isfinite(row.extra.days_to_target_high) ? json_real(row.extra.days_to_target_high) : json_null()));
+        } else {
+            o = json_object();
+            json_object_set_new(o, "quality", json_string("no data"));
+        }
+        json_object_set_new(o, "pond", json_string(p->name));
+        json_object_set_new(o, "role", json_string(hs_role_name(p->role)));
+        json_array_append_new(ponds, o);
+    }
+    for (size_t i = 0; i < site->n_transfers; i++) {
+        const hs_transfer_conf *t = &site->transfers[i];
+        hs_transfer_row tr;
+        json_t *o = json_pack("{s:s, s:s, s:s, s:b}", "transfer", t->name, "source", t->source,
+                              "destination", t->destination, "actuate", t->actuate ? 1 : 0);
+        if (hs_store_latest_transfer(st, t->name, &tr) == 0) {
+            json_object_set_new(o, "advice", json_string(tr.advice));
+            json_object_set_new(o, "reasons", json_loads(tr.reasons, 0, NULL));
+            json_object_set_new(o, "time_ms", json_integer(tr.t_ms));
+        }
+        json_array_append_new(transfers, o);
+    }
+    for (size_t i = 0; i < alarms->n; i++)
+        json_array_append_new(al, json_pack("{s:s, s:s, s:s, s:o, s:I}", "pond",
+                                            alarms->rows[i].pond, "rule", alarms->rows[i].rule,
+                                            "state", alarms->rows[i].state, "value",
+                                            isfinite(alarms->rows[i].value) ? json_real(alarms->rows[i].value) : json_null(),
+                                            "time_ms", (json_int_t)alarms->rows[i].t_ms));
+    return json_pack("{s:s, s:o, s:o, s:o}", "site", site->site.name, "ponds", ponds,
+                     "transfers", transfers, "alarms", al);
+}
+
+static void usage(FILE *out)
+{
+    fprintf(out, "usage: halostage status --config FILE [--json]\n"
+                 "  every pond's latest state, level and volume, days to target, active\n"
+                 "  alarms, and each transfer's current advice, from the daemon's history\n");
+}
+
+int hs_cmd_status(int argc, char **argv)
+{
+    static const struct option opts[] = {
+        {"config", required_argument, NULL, 'c'},
+        {"json", no_argument, NULL, 'j'},
+        {"help", no_argument, NULL, 'h'},
+        {NULL, 0, NULL, 0},
+    };
+    const char *config = NULL;
+    int json = 0, c;
+    optind = 1;
+    while ((c = getopt_long(argc, argv, "c:jh", opts, NULL)) != -1) {
+        switch (c) {
+        case 'c': config = optarg; break;
+        case 'j': json = 1; break;
+        case 'h': usage(stdout); return 0;
+        default: usage(stderr); return 2;
+        }
+    }
+    if (config == NULL || optind != argc) {
+        usage(stderr);
+        return 2;
+    }
+    hs_site site;
+    hs_diag diag;
+    if (hs_site_load(config, &site, &diag) != 0) {
+        for (unsigned i = 0; i < diag.n; i++)
+            fprintf(stderr, "%s\n", diag.msg[i]);
+        return HS_EXIT_CONFIG;
+    }
+    char err[512];
+    hs_store *st = hs_store_open(site.site.database, HS_STORE_READ, NULL, err, sizeof err);
+    if (st == NULL) {
+        fprintf(stderr, "halostage status: %s (has halostaged run yet?)\n", err);
+        hs_site_free(&site);
+        return 1;
+    }
+    static struct alarm_list alarms;
+    alarms.n = 0;
+    int rc = 0;
+    if (hs_store_journal_latest(st, collect_alarm, &alarms) != 0) {
+        fprintf(stderr, "halostage status: %s\n", hs_store_error(st));
+        rc = 1;
+    } else if (json) {
+        json_t *o = status_json(&site, st, &alarms);
+        char *text = json_dumps(o, JSON_COMPACT | JSON_REAL_PRECISION(10));
+        if (text)
+            printf("%s\n", text);
+        free(text);
+        json_decref(o);
+    } else {
+        print_table(&site, st, &alarms, wall_ms());
+    }
+    hs_store_close(st);
+    hs_site_free(&site);
+    return rc;
+}
