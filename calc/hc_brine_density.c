@@ -1,6 +1,7 @@
 #include <math.h>
 
 #include "hc_brine_density.h"
+#include "hc_eos80.h"
 
 /* Laliberte (2009) Table (density parameters c0..c4) [S]. */
 static const double lal[HC_SALT_COUNT][5] = {
@@ -105,17 +106,15 @@ static double mixture_density(const double salt[HC_SALT_COUNT], double t_c)
     return 1.0 / inv;
 }
 
-/* One-atmosphere EOS-80 density of standard seawater at S = 35 [kg/m3]
- * (Millero & Poisson 1981; UNESCO 1981 Tech. Pap. Mar. Sci. 36), t on the
- * scale of the formula (the IPTS-68/ITS-90 difference is below 1e-3 kg/m3). */
-static double eos80_s35(double t)
+/* EOS-80 density of seawater of S_P = 35 at one atmosphere [kg/m3]
+ * (hc_eos80_rho); beyond EOS-80's -2..40 degC the offset is taken at the
+ * nearer end, where it changes by less than 0.02 kg/m3 per degree. */
+static double eos80_s35(double t_c)
 {
-    double rw = 999.842594 + t * (6.793952e-2 + t * (-9.095290e-3 + t * (1.001685e-4 +
-                t * (-1.120083e-6 + t * 6.536332e-9))));
-    double a = 8.24493e-1 + t * (-4.0899e-3 + t * (7.6438e-5 + t * (-8.2467e-7 + t * 5.3875e-9)));
-    double b = -5.72466e-3 + t * (1.0227e-4 - t * 1.6546e-6);
-    double s = 35.0;
-    return rw + a * s + b * s * sqrt(s) + 4.8314e-4 * s * s;
+    double rho;
+    if (hc_eos80_rho(35.0, fmin(40.0, fmax(-2.0, t_c)), 0.0, &rho) != HC_OK)
+        return NAN;
+    return rho;
 }
 
 /* The model composition of reference seawater at S_P = 35 (hc_feed_seawater:
@@ -165,7 +164,8 @@ hc_status hc_brine_density(const double molality[HC_ION_COUNT], double t_c, doub
     /* The EOS-80 join (header): exact at S = 35, zero for pure water. */
     double sw_salt[HC_SALT_COUNT];
     hc_brine_salts(seawater35, sw_salt);
-    double offset = eos80_s35(t_c) - mixture_density(sw_salt, t_c);
+    double tc = fmin(40.0, fmax(-2.0, t_c));
+    double offset = eos80_s35(tc) - mixture_density(sw_salt, tc);
     double g35 = hc_solute_g_per_kg_water(seawater35);
     double share = fmin(1.0, g / g35);
     *rho_kg_m3 = mixture_density(salt, t_c) + share * offset;

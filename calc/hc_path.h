@@ -26,6 +26,7 @@
 
 #include <stddef.h>
 
+#include "hc_brine_curve.h"
 #include "hc_calibration.h"
 #include "hc_feed.h"
 #include "hc_ion.h"
@@ -129,5 +130,18 @@ hc_status hc_path_state_from_density(const hc_path *path, double rho_kg_m3, doub
 hc_status hc_path_state_from_conductivity(const hc_path *path, double cond_ms_cm, double t_c,
                                           double t_ref_c, double baume_modulus,
                                           const hc_calibration *cal, hc_brine_state *out);
+
+/* The fractional path as the hydrology's brine curve (hc_brine_curve.h):
+ * the points whose density rises (those density lookups use), with CF,
+ * density at the path temperature, dissolved salt [kg per kg water],
+ * deposit [kg of minerals, water of crystallisation included, per kg of
+ * feed water] and water activity. The caller owns the five arrays, each of
+ * hc_path_curve_rows(path) doubles; *curve points into them.
+ * HC_ERR_ARGUMENT when n differs or the path is in equilibrium mode (its
+ * solids can redissolve; a pond chain is fractional), else HC_OK. */
+size_t hc_path_curve_rows(const hc_path *path);
+hc_status hc_path_curve(const hc_path *path, size_t n, double *cf, double *density_kg_m3,
+                        double *dissolved, double *deposited, double *water_activity,
+                        hc_brine_curve *curve);
 
 #endif

@@ -1,10 +1,13 @@
 /* `halostage calc`: the brine state of one sample, from conductivity and
  * temperature or from density and temperature, as a table or as JSON.
  *
- * Shape, so that the range can grow: parse_request() reads the options into
- * a calc_request, compute_state() turns it into an hc_brine_state (today:
- * the seawater range, PSS-78 and EOS-80), and print_table()/JSON print it.
- * A wider brine model plugs into compute_state() only. */
+ * parse_request() reads the options into a calc_request, compute_state()
+ * turns it into an hc_brine_state and print_table()/JSON print it. In the
+ * seawater range the numbers come from PSS-78 and EOS-80; the stage, the
+ * next stage and its density, the saturation indices and the water activity
+ * come from the evaporation path of the feed (hc_path) at the sample
+ * temperature. Beyond S_P 42 the path gives everything: from density, or
+ * from conductivity through the built-in brine conductivity model. */
 #include <errno.h>
 #include <math.h>
 #include <stdio.h>
@@ -16,6 +19,7 @@
 #include "cli/commands.h"
 #include "hc_baume.h"
 #include "hc_eos80.h"
+#include "hc_path.h"
 #include "hc_pss78.h"
 #include "hc_seawater.h"
 #include "hc_state.h"
@@ -43,7 +47,11 @@ static void usage(FILE *out)
             "\n"
             "The brine state of one sample: practical salinity (PSS-78), density\n"
             "(EOS-80), specific gravity and degree Baume at a reference temperature,\n"
-            "and concentration factor against the feed.\n"
+            "concentration factor against the feed, and from the feed's evaporation\n"
+            "path (Pitzer model): stage, next stage and its density, saturation\n"
+            "indices, water activity. Beyond seawater (S_P 42) the path gives the\n"
+            "state from density, or from conductivity through the built-in brine\n"
+            "model (flagged; near halite a density reading is preferred).\n"
             "\n"
             "  --conductivity MS_CM     conductivity of the sample [mS/cm]\n"
             "  --density KG_M3          density measured at the sample temperature [kg/m3]\n"
@@ -186,18 +194,12 @@ static void explain(const struct calc_request *rq, hc_status st)
         fprintf(stderr, "halostage calc: %s %g: cannot be negative\n", what, value);
         return;
     case HC_ERR_SALINITY_RANGE:
-        if (rq->have_conductivity)
-            fprintf(stderr,
-                    "halostage calc: --conductivity %g mS/cm at %g degC is beyond PSS-78 "
-                    "(practical salinity above %.0f); brine beyond seawater needs the brine "
-                    "model, which this build does not have\n",
-                    value, rq->temperature_c, HC_PSS78_SP_MAX);
-        else
-            fprintf(stderr,
-                    "halostage calc: --density %g kg/m3 at %g degC is beyond EOS-80 "
-                    "(seawater of practical salinity %.0f); brine beyond seawater needs the "
-                    "brine model, which this build does not have\n",
-                    value, rq->temperature_c, HC_EOS80_SP_MAX);
+        fprintf(stderr, "halostage calc: %s %g at %g degC is beyond the brine models\n", what,
+                value, rq->temperature_c);
+        return;
+    case HC_ERR_NO_CONVERGENCE:
+        fprintf(stderr, "halostage calc: the evaporation path of the feed could not be "
+                        "computed at %g degC\n", rq->temperature_c);
         return;
     case HC_ERR_DOMAIN:
         fprintf(stderr, "halostage calc: --density %g kg/m3 is below pure water at %g degC\n",
@@ -209,13 +211,57 @@ static void explain(const struct calc_request *rq, hc_status st)
     }
 }
 
+/* The stage and saturation of a seawater-range state, from the path at its
+ * concentration factor; the PSS-78/EOS-80 numbers stay as they are. */
+static void add_path_view(const hc_path *path, hc_brine_state *st)
+{
+    hc_brine_state v;
+    double cf = fmax(1.0, st->concentration_factor);
+    if (hc_path_state_from_cf(path, cf, st->temperature_c, st->reference_temperature_c,
+                              st->baume_modulus, &v) != HC_OK)
+        return;
+    st->stage = v.stage;
+    st->next_stage = v.next_stage;
+    st->next_stage_density_kg_m3 = v.next_stage_density_kg_m3;
+    memcpy(st->saturation_index, v.saturation_index, sizeof st->saturation_index);
+    st->water_activity = v.water_activity;
+}
+
 static hc_status compute_state(const struct calc_request *rq, hc_brine_state *st)
 {
+    hc_status s;
     if (rq->have_conductivity)
-        return hc_seawater_state_from_conductivity(rq->conductivity_ms_cm, rq->temperature_c,
-                                                   rq->pressure_dbar, &rq->opt, st);
-    return hc_seawater_state_from_density(rq->density_kg_m3, rq->temperature_c,
-                                          rq->pressure_dbar, &rq->opt, st);
+        s = hc_seawater_state_from_conductivity(rq->conductivity_ms_cm, rq->temperature_c,
+                                                rq->pressure_dbar, &rq->opt, st);
+    else
+        s = hc_seawater_state_from_density(rq->density_kg_m3, rq->temperature_c,
+                                           rq->pressure_dbar, &rq->opt, st);
+    if (s != HC_OK && s != HC_ERR_SALINITY_RANGE)
+        return s;
+    /* The feed's evaporation path at the sample temperature (built once here;
+     * the daemon builds it once per site). A feed below S_P 2 has none. */
+    hc_feed feed;
+    hc_path *path = NULL;
+    hc_status ps = hc_feed_seawater(rq->opt.feed_sp, &feed);
+    if (ps == HC_OK)
+        ps = hc_path_build(&feed, rq->temperature_c, HC_PATH_FRACTIONAL, &path);
+    if (s == HC_OK) {
+        if (ps == HC_OK)
+            add_path_view(path, st);
+        hc_path_free(path);
+        return HC_OK;
+    }
+    if (ps != HC_OK)
+        return s == HC_ERR_SALINITY_RANGE && ps == HC_ERR_NO_CONVERGENCE ? ps : s;
+    double t_ref = rq->opt.reference_temperature_c, m = rq->opt.baume_modulus;
+    if (rq->have_conductivity)
+        s = hc_path_state_from_conductivity(path, rq->conductivity_ms_cm, rq->temperature_c,
+                                            t_ref, m, NULL, st);
+    else
+        s = hc_path_state_from_density(path, rq->density_kg_m3, rq->temperature_c, t_ref, m,
+                                       st);
+    hc_path_free(path);
+    return s;
 }
 
 static void print_value(const char *label, double v, const char *fmt, const char *unit)
@@ -247,7 +293,7 @@ static void print_table(const struct calc_request *rq, const hc_brine_state *st)
     if (rq->pressure_dbar != 0.0)
         print_value("pressure", rq->pressure_dbar, "%.1f", " dbar");
     print_value("practical salinity", st->practical_salinity, "%.4f", " (PSS-78)");
-    print_value("salinity", st->salinity_g_kg, "%.3f", " g/kg (reference composition)");
+    print_value("salinity", st->salinity_g_kg, "%.3f", " g/kg of brine");
     print_value("density", st->density_kg_m3, "%.3f", " kg/m3 at sample temperature");
     snprintf(unit, sizeof unit, " (%s)", tref);
     print_value("specific gravity", st->specific_gravity, "%.5f", unit);
@@ -256,8 +302,16 @@ static void print_table(const struct calc_request *rq, const hc_brine_state *st)
     snprintf(unit, sizeof unit, " (feed: %s, S_P %g)", rq->feed_name, rq->opt.feed_sp);
     print_value("concentration factor", st->concentration_factor, "%.3f", unit);
     printf("  %-24s %s\n", "stage", hc_stage_name(st->stage));
-    if (st->next_stage != HC_STAGE_NONE)
-        printf("  %-24s %s\n", "next stage", hc_stage_name(st->next_stage));
+    if (st->next_stage != HC_STAGE_NONE) {
+        printf("  %-24s %s", "next stage", hc_stage_name(st->next_stage));
+        if (isfinite(st->next_stage_density_kg_m3))
+            printf(" at %.1f kg/m3 (at sample temperature)", st->next_stage_density_kg_m3);
+        printf("\n");
+    }
+    print_value("water activity", st->water_activity, "%.4f", "");
+    print_value("SI gypsum", st->saturation_index[HC_MIN_GYPSUM], "%+.3f",
+                " (log10 IAP/K; 0 = saturated)");
+    print_value("SI halite", st->saturation_index[HC_MIN_HALITE], "%+.3f", "");
     if (st->warnings == 0)
         printf("  %-24s none\n", "warnings");
     for (unsigned i = 0; i < HC_WARN_COUNT_BITS; i++) {

@@ -48,8 +48,15 @@ refuse() {
         not_ok "calc $* gave rc=$rc: $(cat "$err")"
     fi
 }
-refuse 1 'beyond PSS-78.*brine model' --conductivity 200 --temperature 25
-refuse 1 'beyond EOS-80.*brine model' --density 1210 --temperature 25
+# Beyond PSS-78/EOS-80 the evaporation path takes over (test_thermo_cli.sh
+# checks its numbers); here only that it answers, and says how.
+"$HS" calc --conductivity 200 --temperature 25 --json >"$out"
+check "beyond PSS-78: brine conductivity model, flagged" \
+    test "$(field "$out" 'd["method"] + " " + " ".join(d["warnings"])')" = \
+    "brine-conductivity-model brine-conductivity-model"
+"$HS" calc --density 1210 --temperature 25 --json >"$out"
+check "beyond EOS-80: from density along the path" \
+    test "$(field "$out" 'd["method"] + "/" + d["stage"]')" = "density/gypsum"
 refuse 1 'below pure water' --density 990 --temperature 25
 refuse 1 'cannot be negative' --conductivity -3 --temperature 25
 refuse 1 '--temperature 50: outside' --conductivity 40 --temperature 50

@@ -7,6 +7,7 @@
 #include <cmocka.h>
 
 #include "hc_brine_cond.h"
+#include "hc_brine_curve.h"
 #include "hc_calibration.h"
 #include "hc_path.h"
 
@@ -176,6 +177,32 @@ static void site_calibration(void **unused)
     assert_int_equal(hc_calibration_fit(flat, 2, 15.556, &cal), HC_ERR_ARGUMENT);
 }
 
+static void hydrology_curve(void **unused)
+{
+    (void)unused;
+    /* The path as the hydrology's curve passes its own check (CF rising,
+     * density and deposit never falling). Mass balance (no source needed):
+     * salt dissolved per kg of feed water plus salt deposited, water of
+     * crystallisation aside, stays the feed's salt. */
+    size_t n = hc_path_curve_rows(path);
+    assert_true(n > 100);
+    double cf[400], rho[400], dis[400], dep[400], aw[400];
+    assert_true(n <= 400);
+    hc_brine_curve curve;
+    assert_int_equal(hc_path_curve(path, n, cf, rho, dis, dep, aw, &curve), HC_OK);
+    size_t bad = 0;
+    assert_int_equal(hc_curve_check(&curve, &bad), HC_OK);
+    const hc_feed *f = hc_path_feed(path);
+    double feed_salt = hc_solute_g_per_kg_water(f->molality) / 1000.0;
+    assert_true(fabs(dis[0] - feed_salt) < 1e-9);
+    /* Before halite only gypsum deposits (2 H2O per CaSO4): salt left plus
+     * deposit exceeds the feed's salt by at most that water. */
+    for (size_t i = 0; i < n && cf[i] < 10.0; i++)
+        assert_true(dis[i] / cf[i] + dep[i] >= feed_salt - 1e-9 &&
+                    dis[i] / cf[i] + dep[i] < feed_salt * 1.03);
+    assert_int_equal(hc_path_curve(path, n - 1, cf, rho, dis, dep, aw, &curve), HC_ERR_ARGUMENT);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -185,6 +212,7 @@ int main(void)
         cmocka_unit_test(brine_conductivity_model),
         cmocka_unit_test(state_from_conductivity_model),
         cmocka_unit_test(site_calibration),
+        cmocka_unit_test(hydrology_curve),
     };
     return cmocka_run_group_tests(tests, setup, teardown);
 }

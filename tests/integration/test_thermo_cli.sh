@@ -1,0 +1,107 @@
+#!/usr/bin/env bash
+# `halostage brine`, `halostage path` and `halostage calc` beyond seawater, as
+# a lab technician and a brine master run them. Sources beside each check:
+# [S] published, [C] computed with HMW84 (shared DOMAIN.md), [M] from memory.
+. "$(dirname "$0")/lib.sh"
+HS=$HS_BUILD/halostage
+PY=/usr/bin/python3
+field() { $PY -c "import json,sys; d=json.load(open(sys.argv[1])); print($2)" "$1"; }
+out=$HS_TMP/out.json
+
+# --- brine ---------------------------------------------------------------
+"$HS" brine --molality Na=6,Cl=6 --json >"$out"
+check "brine --json exits 0" test $? -eq 0
+# NaCl 6 mol/kg, 25 degC: gamma+- 0.986, phi 1.271 (Robinson & Stokes 1959;
+# Hamer & Wu 1972) [M]; HMW84 gives 0.987 / 1.273 [C].
+check "NaCl 6 m: mean activity coefficient near 0.986" \
+    test "$(field "$out" 'abs(d["mean_activity_coefficient"] - 0.986) < 0.005')" = True
+check "NaCl 6 m: osmotic coefficient near 1.271" \
+    test "$(field "$out" 'abs(d["osmotic_coefficient"] - 1.271) < 0.005')" = True
+check "NaCl 6 m: ionic strength 6" test "$(field "$out" 'd["ionic_strength"]')" = 6.0
+for f in density_kg_m3 specific_gravity baume saturation_index water_activity \
+         activity_coefficient method warnings; do
+    [ "$(field "$out" "'$f' in d")" = True ] || not_ok "brine JSON lacks $f"
+done
+ok "brine JSON carries the state fields and the activity fields"
+# Just under halite saturation (6.10 mol/kg with HMW84 [C]): SI slightly negative.
+check "NaCl 6 m is just undersaturated in halite" \
+    test "$(field "$out" '-0.05 < d["saturation_index"]["halite"] < 0')" = True
+"$HS" brine --molality Na=6.2,Cl=6.2 --json >"$out"
+check "NaCl 6.2 m is supersaturated in halite, stage halite" \
+    test "$(field "$out" 'd["saturation_index"]["halite"] > 0 and d["stage"] == "halite"')" = True
+table=$("$HS" brine --molality Ca=0.0153,SO4=0.0153)
+# Gypsum solubility in water 0.0153 mol/kg with HMW84 [C]; 0.0152-0.0155 measured [M].
+check "gypsum-saturated water reads saturated" grep -qE 'gypsum +-?0\.00[0-9] +saturated' <<<"$table"
+
+refuse() {  # CODE PATTERN ARGS...: exit CODE and one stderr line matching PATTERN
+    local code=$1 pat=$2 err=$HS_TMP/err
+    shift 2
+    "$HS" "$@" >/dev/null 2>"$err"
+    local rc=$?
+    if [ "$rc" -eq "$code" ] && [ "$(wc -l <"$err")" -eq 1 ] && grep -qE -- "$pat" "$err"; then
+        ok "refused ($rc): $*"
+    else
+        not_ok "$* gave rc=$rc: $(cat "$err")"
+    fi
+}
+refuse 2 'cannot be negative' brine --molality Na=-1,Cl=1
+refuse 2 "unknown ion 'Xx'" brine --molality Xx=1,Cl=1
+refuse 2 "'abc' is not a number" brine --molality Na=abc,Cl=1
+refuse 2 'should be ION=VALUE' brine --molality Na
+refuse 2 'given twice' brine --molality Na=1,Na=2,Cl=1
+refuse 2 'ends with a comma' brine --molality Na=1,Cl=1,
+refuse 2 'at least one ion' brine --molality Na=0
+refuse 2 'required' brine --temperature 25
+refuse 1 'outside -5..80' brine --molality Na=1,Cl=1 --temperature 95
+refuse 1 'ionic strength' brine --molality Na=45,Cl=45
+refuse 2 'unknown option' brine --molality Na=1,Cl=1 --colour red
+
+# --- path ----------------------------------------------------------------
+"$HS" path --json >"$out"
+check "path --json exits 0" test $? -eq 0
+check "path reaches bischofite" test "$(field "$out" 'd["complete"]')" = True
+# Stage sequence from gypsum through halite into the magnesium and potash
+# salts to bischofite (DESIGN.md order; HMW84 fractional path [C]).
+check "stage sequence gypsum..bischofite" test "$(field "$out" \
+    '" ".join(dict.fromkeys(s["stage"] for s in d["steps"]))')" = \
+    "seawater gypsum halite magnesium-sulfate potash bischofite"
+# Onsets: gypsum CF 3.4, halite 10.65 (HMW84 fractional [C]); halite at
+# 26.0 deg Be (Baseggio 1974) [S].
+check "gypsum onset CF 3.2-4.1" test "$(field "$out" \
+    '[3.2 < o["concentration_factor"] < 4.1 for o in d["onsets"] if o["mineral"] == "gypsum"]')" = "[True]"
+check "halite onset near 26 deg Be" test "$(field "$out" \
+    '[abs(o["baume"] - 26.0) < 0.5 for o in d["onsets"] if o["mineral"] == "halite"]')" = "[True]"
+check "steps carry water removed and precipitated amounts" test "$(field "$out" \
+    '"water_removed_fraction" in d["steps"][-1] and d["steps"][-1]["precipitated_mol_per_kg_feed"]["halite"] > 0.4')" = True
+"$HS" path --mode equilibrium --temperature 20 --json >"$out"
+check "equilibrium path at 20 degC runs" test "$(field "$out" 'd["mode"] + " " + str(d["temperature_c"])')" = "equilibrium 20.0"
+table=$("$HS" path)
+check "path table lists onsets" grep -qE '^  halite +10\.[0-9]+' <<<"$table"
+# A site feed given as an analysis (invented lagoon water, demo only).
+"$HS" path --feed-analysis Na=12,Cl=21.5,Mg=1.4,SO4=3,Ca=0.45,K=0.43 --json >"$out"
+check "site feed: chloride adjustment reported" \
+    test "$(field "$out" '"chloride_adjustment_mol_kg" in d["feed"] and d["feed"]["practical_salinity"] is None')" = True
+refuse 2 'use fractional or equilibrium' path --mode sideways
+refuse 2 'unknown feed' path --feed lagoon
+refuse 2 'outside 2..42' path --feed-salinity 60
+refuse 2 'cannot be negative' path --feed-analysis Na=-3,Cl=1
+refuse 1 'outside -5..80' path --temperature 99
+refuse 2 'needs --feed-analysis' path --feed-unit mg/L
+
+# --- calc over the whole range -------------------------------------------
+"$HS" calc --density 1225 --temperature 25 --json >"$out"
+# 1225 kg/m3 at 25 degC is past halite saturation (1211-1213 [C]) and below
+# the magnesium sulfates (SG about 1.30, Usiglio as reported later [S]).
+check "calc 1225 kg/m3: halite stage" test "$(field "$out" 'd["stage"]')" = halite
+check "calc 1225 kg/m3: next stage magnesium-sulfate near 1300 kg/m3" test "$(field "$out" \
+    'd["next_stage"] == "magnesium-sulfate" and 1285 < d["next_stage_density_kg_m3"] < 1310')" = True
+table=$("$HS" calc --density 1225 --temperature 25)
+check "calc table names the next stage and its density" \
+    grep -qE 'next stage +magnesium-sulfate at 1[23][0-9]{2}\.[0-9] kg/m3' <<<"$table"
+"$HS" calc --conductivity 250 --temperature 25 --json >"$out"
+check "calc: conductivity near halite warns and prefers density" test "$(field "$out" \
+    '"conductivity-weak" in d["warnings"] and "density-source-preferred" in d["warnings"]')" = True
+"$HS" calc --conductivity 53.07 --temperature 25 --json >"$out"
+check "calc: seawater keeps PSS-78 and gains its next stage" test "$(field "$out" \
+    'd["method"] + " " + d["stage"] + " " + d["next_stage"]')" = "pss78 seawater gypsum"
+hs_finish
