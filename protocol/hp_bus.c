@@ -14,6 +14,17 @@
 
 #define TIMEOUTS_BEFORE_RECONNECT 3
 #define STALE_CHECK_MS 1000
+#define WRITES_MAX 32          /* distinct outputs with a write waiting */
+#define WRITE_MAX_AGE_MS 10000 /* an output write older than this is dropped, never
+                                * carried out late (a pump command must be current) */
+
+typedef struct {
+    uint8_t unit_id;
+    bool coil;
+    uint16_t address;
+    uint16_t value;
+    int64_t queued_ms; /* monotonic */
+} pending_write;
 
 struct hp_bus {
     hp_bus_conf conf;
@@ -25,6 +36,8 @@ struct hp_bus {
     pthread_cond_t wake;
     bool stop;                   /* under mu */
     hp_bus_stats stats;          /* under mu */
+    pending_write writes[WRITES_MAX]; /* under mu: latest value per output */
+    size_t n_writes;             /* under mu */
     /* worker-owned */
     hp_point *points;            /* owned copy, n */
     size_t n;
@@ -58,7 +71,9 @@ static void sleep_until(hp_bus *b, int64_t mono_ms)
     struct timespec ts;
     hp_deadline(mono_ms - hp_mono_ms(), &ts);
     pthread_mutex_lock(&b->mu);
-    while (!b->stop && hp_mono_ms() < mono_ms)
+    /* waiting writes wake a connected worker; a disconnected one keeps its
+     * reconnect schedule (the writes wait or expire) */
+    while (!b->stop && !(b->connected && b->n_writes > 0) && hp_mono_ms() < mono_ms)
         if (pthread_cond_timedwait(&b->wake, &b->mu, &ts) == ETIMEDOUT)
             break;
     pthread_mutex_unlock(&b->mu);
@@ -226,6 +241,43 @@ static void run_cycle(hp_bus *b, size_t n_due, int64_t started)
     pthread_mutex_unlock(&b->mu);
 }
 
+/* Carries out the waiting output writes (Modbus Application Protocol v1.1b
+ * §6.5 Write Single Coil, §6.6 Write Single Register), oldest first. */
+static void do_writes(hp_bus *b)
+{
+    pending_write w[WRITES_MAX];
+    pthread_mutex_lock(&b->mu);
+    size_t n = b->n_writes;
+    memcpy(w, b->writes, n * sizeof w[0]);
+    b->n_writes = 0;
+    pthread_mutex_unlock(&b->mu);
+    for (size_t i = 0; i < n; i++) {
+        if (hp_mono_ms() - w[i].queued_ms > WRITE_MAX_AGE_MS) {
+            stat_add(b, &b->stats.failures, 1, ETIMEDOUT);
+            continue;
+        }
+        modbus_set_slave(b->ctx, w[i].unit_id);
+        int rc = w[i].coil ? modbus_write_bit(b->ctx, w[i].address, w[i].value ? 1 : 0)
+                           : modbus_write_register(b->ctx, w[i].address, w[i].value);
+        stat_add(b, &b->stats.transactions, 1, 0);
+        if (rc != 1) {
+            int e = errno;
+            stat_add(b, &b->stats.failures, 1, e);
+            pthread_mutex_lock(&b->mu);
+            b->stats.write_failures++;
+            pthread_mutex_unlock(&b->mu);
+            if (link_error(e)) {
+                schedule_reconnect(b);
+                return; /* the rest are dropped; the owner writes them again */
+            }
+        } else {
+            pthread_mutex_lock(&b->mu);
+            b->stats.writes++;
+            pthread_mutex_unlock(&b->mu);
+        }
+    }
+}
+
 static void *worker(void *arg)
 {
     hp_bus *b = arg;
@@ -273,6 +325,7 @@ static void *worker(void *arg)
             if (b->next_due[i] < soonest)
                 soonest = b->next_due[i];
         }
+        do_writes(b);
         if (n_due > 0)
             run_cycle(b, n_due, now);
         if (b->once)
@@ -281,7 +334,46 @@ static void *worker(void *arg)
         if (b->connected)
             sleep_until(b, soonest);
     }
+    /* A stop leaves the outputs as the owner last asked (the safe state at
+     * shutdown): carry out what is waiting before the context closes. */
+    if (!b->connected && !b->once) {
+        pthread_mutex_lock(&b->mu);
+        bool any = b->n_writes > 0;
+        pthread_mutex_unlock(&b->mu);
+        if (any)
+            (void)connect_bus(b);
+    }
+    if (b->connected)
+        do_writes(b);
     return NULL;
+}
+
+int hp_bus_write(hp_bus *b, uint8_t unit_id, bool coil, uint16_t address, uint16_t value)
+{
+    if (!b) {
+        errno = EINVAL;
+        return -1;
+    }
+    int rc = 0;
+    pthread_mutex_lock(&b->mu);
+    size_t i = 0;
+    while (i < b->n_writes && !(b->writes[i].unit_id == unit_id && b->writes[i].coil == coil &&
+                                b->writes[i].address == address))
+        i++;
+    if (i == b->n_writes) {
+        if (b->n_writes == WRITES_MAX) {
+            errno = ENOBUFS;
+            rc = -1;
+        } else {
+            b->n_writes++;
+        }
+    }
+    if (rc == 0) {
+        b->writes[i] = (pending_write){unit_id, coil, address, value, hp_mono_ms()};
+        pthread_cond_broadcast(&b->wake);
+    }
+    pthread_mutex_unlock(&b->mu);
+    return rc;
 }
 
 static modbus_t *new_context(const hp_bus_conf *c)

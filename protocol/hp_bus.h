@@ -36,6 +36,8 @@ typedef struct {
     int64_t max_cycle_ms;
     int64_t total_cycle_ms;   /* sum over cycles, for the mean */
     int last_errno;           /* errno of the last failure, 0 if none */
+    uint64_t writes;          /* output writes carried out */
+    uint64_t write_failures;  /* output writes the device refused or never answered */
 } hp_bus_stats;
 
 /* Starts the worker. points (n, copied) are read into queue (borrowed; it
@@ -48,5 +50,13 @@ void hp_bus_join(hp_bus *bus);
 /* Asks the worker to stop, waits for it and frees it. */
 void hp_bus_stop(hp_bus *bus);
 void hp_bus_get_stats(hp_bus *bus, hp_bus_stats *out);
+
+/* Asks the worker to write one coil (value 0/1) or holding register at its
+ * next chance (it wakes for it). A newer write to the same output replaces
+ * one still waiting; a write still waiting after 10 s is dropped, never
+ * carried out late. Writes waiting when the bus stops are carried out
+ * before it closes. Returns 0, or -1 with errno ENOBUFS when 32 distinct
+ * outputs are already waiting. Thread-safe. */
+int hp_bus_write(hp_bus *bus, uint8_t unit_id, bool coil, uint16_t address, uint16_t value);
 
 #endif

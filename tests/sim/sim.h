@@ -25,7 +25,7 @@ typedef enum {
 } sim_fault_kind;
 
 typedef struct {
-    int bus;              /* index into site buses */
+    int bus;              /* index into site buses, -1 = every bus */
     int unit;             /* 0 = every unit of the bus */
     sim_fault_kind kind;
     int latency_ms;

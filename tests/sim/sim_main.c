@@ -1,7 +1,7 @@
 /* halostage-sim --config FILE [--speed N] [--rtu BUS=PTY]...
  *               [--fault BUS[:UNIT]=KIND[:MS]]...
  *               [--truth FILE]
- * KIND: timeout, exception, drop, nan, sentinel, latency:MS.
+ * KIND: timeout, exception, drop, nan, sentinel, latency:MS. BUS * is every bus.
  * Stops on SIGTERM or SIGINT. */
 #include <getopt.h>
 #include <signal.h>
@@ -25,7 +25,7 @@ static void usage(FILE *to)
 {
     fprintf(to, "usage: halostage-sim --config FILE [--speed N] [--rtu BUS=PTY]...\n"
                 "                     [--fault BUS[:UNIT]=KIND]... [--truth FILE]\n"
-                "  KIND: timeout, exception, drop, nan, sentinel, latency:MS\n"
+                "  KIND: timeout, exception, drop, nan, sentinel, latency:MS; BUS * = all\n"
                 "  --truth FILE: keep the model's true pond values in FILE (JSON)\n");
 }
 
@@ -47,8 +47,8 @@ static int parse_fault(sim *s, const char *text)
             return -1;
         f.unit = (int)u;
     }
-    f.bus = hs_site_bus(&s->site, buf);
-    if (f.bus < 0)
+    f.bus = strcmp(buf, "*") == 0 ? -1 : hs_site_bus(&s->site, buf);
+    if (f.bus < 0 && strcmp(buf, "*") != 0)
         return -1;
     const char *kind = eq + 1;
     if (strcmp(kind, "timeout") == 0) f.kind = SIM_FAULT_TIMEOUT;

@@ -71,7 +71,8 @@ sim_device *sim_device_find(sim *s, int bus, uint8_t unit)
 const sim_fault *sim_fault_for(const sim *s, int bus, int unit)
 {
     for (size_t i = 0; i < s->n_faults; i++)
-        if (s->faults[i].bus == bus && (s->faults[i].unit == 0 || s->faults[i].unit == unit))
+        if ((s->faults[i].bus == bus || s->faults[i].bus < 0) &&
+            (s->faults[i].unit == 0 || s->faults[i].unit == unit))
             return &s->faults[i];
     return NULL;
 }

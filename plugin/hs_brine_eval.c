@@ -1,0 +1,309 @@
+/* See hs_brine_eval.h. */
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "hc_feed.h"
+#include "hc_ion.h"
+#include "hc_level.h"
+#include "hc_seawater.h"
+#include "hs_brine_eval.h"
+#include "hs_log.h"
+
+#define PATH_TEMPERATURE_C 25.0 /* HMW84 is a 25 degC model (DOMAIN.md section 5) */
+
+struct model {
+    hc_path *path;
+    hc_brine_curve curve;
+    double *arrays; /* one block for the curve's five columns */
+    int curve_ok;
+};
+
+struct hs_brine_models {
+    size_t n;             /* models[0] is seawater, models[1 + i] is feed i */
+    struct model *models;
+};
+
+static void feed_from_site(const hs_feed *f, hc_feed_analysis *a)
+{
+    memset(a, 0, sizeof *a);
+    /* hs_feed stores g per kg of feed water in g_kg[] whatever was written */
+    a->unit = HC_FEED_G_PER_KG;
+    a->conc[HC_ION_NA] = f->g_kg[HS_ION_NA];
+    a->conc[HC_ION_K] = f->g_kg[HS_ION_K];
+    a->conc[HC_ION_MG] = f->g_kg[HS_ION_MG];
+    a->conc[HC_ION_CA] = f->g_kg[HS_ION_CA];
+    a->conc[HC_ION_CL] = f->g_kg[HS_ION_CL];
+    a->conc[HC_ION_SO4] = f->g_kg[HS_ION_SO4];
+    a->conc[HC_ION_HCO3] = f->g_kg[HS_ION_HCO3];
+    a->conc[HC_ION_CO3] = f->g_kg[HS_ION_CO3];
+    a->br = f->g_kg[HS_ION_BR];
+    a->sr = f->g_kg[HS_ION_SR];
+    a->density_kg_m3 = NAN;
+}
+
+/* The hydrology curve of the path (thermodynamics' own conversion). */
+static int build_curve(struct model *m)
+{
+    size_t n = hc_path_curve_rows(m->path);
+    if (n < 2)
+        return -1;
+    m->arrays = calloc(5 * n, sizeof(double));
+    if (m->arrays == NULL)
+        return -1;
+    double *cf = m->arrays, *rho = cf + n, *dis = rho + n, *dep = dis + n, *aw = dep + n;
+    if (hc_path_curve(m->path, n, cf, rho, dis, dep, aw, &m->curve) != HC_OK) {
+        hs_log(HSP_LOG_WARNING, "evaporation path: no hydrology curve");
+        return -1;
+    }
+    return 0;
+}
+
+static int build_one(struct model *m, const hc_feed *feed, const char *what)
+{
+    hc_status st = hc_path_build(feed, PATH_TEMPERATURE_C, HC_PATH_FRACTIONAL, &m->path);
+    if (st != HC_OK) {
+        hs_log(HSP_LOG_ERR, "evaporation path of %s: %s", what, hc_status_text(st));
+        return -1;
+    }
+    if (!hc_path_complete(m->path))
+        hs_log(HSP_LOG_WARNING, "evaporation path of %s stops before bischofite; states past "
+               "its end are flagged beyond-path", what);
+    m->curve_ok = build_curve(m) == 0;
+    return 0;
+}
+
+int hs_brine_models_build(const hs_site *site, hs_brine_models **out)
+{
+    hs_brine_models *models = calloc(1, sizeof *models);
+    if (models == NULL)
+        return -1;
+    models->n = 1 + site->n_feeds;
+    models->models = calloc(models->n, sizeof *models->models);
+    if (models->models == NULL)
+        goto fail;
+    hc_feed seawater;
+    if (hc_feed_seawater(35.0, &seawater) != HC_OK || /* S_P 35 reference seawater */
+        build_one(&models->models[0], &seawater, "reference seawater") != 0)
+        goto fail;
+    for (size_t i = 0; i < site->n_feeds; i++) {
+        int used = site->site.feed_index == (int)i;
+        for (size_t p = 0; p < site->n_ponds && !used; p++)
+            used = site->ponds[p].feed_index == (int)i;
+        if (!used)
+            continue;
+        hc_feed_analysis a;
+        hc_feed feed;
+        feed_from_site(&site->feeds[i], &a);
+        hc_status st = hc_feed_from_analysis(site->feeds[i].name, &a, &feed);
+        if (st != HC_OK) {
+            hs_log(HSP_LOG_ERR, "%s:%d: [feed %s]: %s", site->path, site->feeds[i].line,
+                   site->feeds[i].name, hc_status_text(st));
+            goto fail;
+        }
+        if (fabs(feed.imbalance_percent) > 5)
+            hs_log(HSP_LOG_WARNING, "[feed %s]: the analysis is %.1f %% out of charge balance; "
+                   "chloride adjusted by %.4f mol/kg", feed.name, feed.imbalance_percent,
+                   feed.chloride_adjustment);
+        if (build_one(&models->models[1 + i], &feed, site->feeds[i].name) != 0)
+            goto fail;
+    }
+    *out = models;
+    return 0;
+fail:
+    hs_brine_models_free(models);
+    return -1;
+}
+
+void hs_brine_models_free(hs_brine_models *models)
+{
+    if (models == NULL)
+        return;
+    for (size_t i = 0; models->models != NULL && i < models->n; i++) {
+        hc_path_free(models->models[i].path);
+        free(models->models[i].arrays);
+    }
+    free(models->models);
+    free(models);
+}
+
+static const struct model *model_of(const hs_brine_models *models, int feed_index)
+{
+    size_t i = feed_index < 0 ? 0 : 1 + (size_t)feed_index;
+    if (i >= models->n || models->models[i].path == NULL)
+        i = 0;
+    return &models->models[i];
+}
+
+const hc_path *hs_brine_models_path(const hs_brine_models *models, int feed_index)
+{
+    return model_of(models, feed_index)->path;
+}
+
+const hc_brine_curve *hs_brine_models_curve(const hs_brine_models *models, int feed_index)
+{
+    const struct model *m = model_of(models, feed_index);
+    return m->curve_ok ? &m->curve : NULL;
+}
+
+/* ---- one pond ---- */
+
+static const hs_reading *reading_of(const hs_site *site, size_t pond, hs_quantity q,
+                                    const hs_reading *readings)
+{
+    const hs_signal *s = hs_site_signal(site, (int)pond, q);
+    if (s == NULL)
+        return NULL;
+    return &readings[s - site->signals];
+}
+
+static int usable(const hs_reading *r)
+{
+    return r != NULL && r->have && isfinite(r->value) &&
+           (r->quality == HS_QUALITY_GOOD || r->quality == HS_QUALITY_UNCERTAIN);
+}
+
+static void take(hs_pond_view *v, const hs_reading *r, int64_t now_ms)
+{
+    if (r->quality > v->quality)
+        v->quality = r->quality;
+    if (r->t_ms > v->t_ms)
+        v->t_ms = r->t_ms;
+    double age = (double)(now_ms - r->t_ms) / 1000.0;
+    if (age > v->oldest_input_age_s || isnan(v->oldest_input_age_s))
+        v->oldest_input_age_s = age;
+}
+
+/* Stage, next stage, saturation and water activity from the path at the
+ * state's concentration factor, for a state computed by the seawater calc. */
+static void enrich_from_path(const hc_path *path, hc_brine_state *s)
+{
+    hc_brine_state p;
+    if (!isfinite(s->concentration_factor) ||
+        hc_path_state_from_cf(path, s->concentration_factor, s->temperature_c,
+                              s->reference_temperature_c, s->baume_modulus, &p) != HC_OK)
+        return;
+    s->stage = p.stage;
+    s->next_stage = p.next_stage;
+    s->next_stage_density_kg_m3 = p.next_stage_density_kg_m3;
+    memcpy(s->saturation_index, p.saturation_index, sizeof s->saturation_index);
+    s->water_activity = p.water_activity;
+}
+
+static int state_from_density(const hs_site *site, const hc_path *path, double rho, double t_c,
+                              hc_method method, hc_brine_state *s)
+{
+    hc_status st = hc_path_state_from_density(path, rho, t_c, site->site.reference_temperature_c,
+                                              site->site.baume_modulus, s);
+    if (st != HC_OK)
+        return -1;
+    s->method = method;
+    return 0;
+}
+
+static int state_from_conductivity(const hs_site *site, const hc_path *path, double c, double t_c,
+                                   hc_brine_state *s)
+{
+    hc_seawater_options opt;
+    hc_seawater_options_default(&opt);
+    opt.reference_temperature_c = site->site.reference_temperature_c;
+    opt.baume_modulus = site->site.baume_modulus;
+    if (hc_seawater_state_from_conductivity(c, t_c, 0.0, &opt, s) == HC_OK) {
+        enrich_from_path(path, s);
+        return 0;
+    }
+    /* beyond PSS-78: the path's brine conductivity model (flagged by it) */
+    return hc_path_state_from_conductivity(path, c, t_c, site->site.reference_temperature_c,
+                                           site->site.baume_modulus, NULL, s) == HC_OK ? 0 : -1;
+}
+
+static void depth_of(const hs_site *site, size_t pond, const hs_reading *readings, double g,
+                     hs_pond_view *v)
+{
+    const hs_pond *p = &site->ponds[pond];
+    const hs_reading *lp = reading_of(site, pond, HS_Q_LEVEL_PRESSURE, readings);
+    const hs_reading *ld = reading_of(site, pond, HS_Q_LEVEL_DISTANCE, readings);
+    v->depth_m = NAN;
+    v->depth_quality = HS_QUALITY_BAD;
+    if (usable(lp)) {
+        /* the pond's own brine, not water: a 1.25 brine read as water
+         * overstates depth by 25 % (DOMAIN.md section 10) */
+        double rho = v->have_state ? v->state.density_kg_m3 : NAN;
+        hs_quality q = lp->quality;
+        if (!isfinite(rho)) {
+            rho = 1000.0; /* no brine density: read as water, and say so */
+            if (q < HS_QUALITY_UNCERTAIN)
+                q = HS_QUALITY_UNCERTAIN;
+        } else if (v->quality > q) {
+            q = v->quality;
+        }
+        if (hc_depth_from_pressure(lp->value, rho, g, p->pressure_height_m, &v->depth_m) == HC_OK)
+            v->depth_quality = q;
+        else
+            v->depth_m = NAN;
+    } else if (usable(ld)) {
+        if (hc_depth_from_distance(ld->value, p->distance_height_m, &v->depth_m) == HC_OK)
+            v->depth_quality = ld->quality;
+        else
+            v->depth_m = NAN;
+    } else if (lp != NULL || ld != NULL) {
+        const hs_reading *r = lp != NULL ? lp : ld;
+        v->depth_quality = r->have ? r->quality : HS_QUALITY_BAD;
+    }
+}
+
+void hs_pond_evaluate(const hs_site *site, size_t pond, const hs_reading *readings,
+                      const hs_brine_models *models, double g_m_s2, int64_t now_ms,
+                      hs_pond_view *v)
+{
+    memset(v, 0, sizeof *v);
+    hc_state_clear(&v->state);
+    v->quality = HS_QUALITY_GOOD;
+    v->oldest_input_age_s = NAN;
+    const hs_pond *p = &site->ponds[pond];
+    const hc_path *path = hs_brine_models_path(models, p->feed_index);
+    const hs_reading *temp = reading_of(site, pond, HS_Q_TEMPERATURE, readings);
+    const hs_reading *dens = reading_of(site, pond, HS_Q_DENSITY, readings);
+    const hs_reading *lower = reading_of(site, pond, HS_Q_LEVEL_PRESSURE, readings);
+    const hs_reading *upper = reading_of(site, pond, HS_Q_PRESSURE_UPPER, readings);
+    const hs_reading *cond = reading_of(site, pond, HS_Q_CONDUCTIVITY, readings);
+
+    if (!usable(temp)) {
+        snprintf(v->note, sizeof v->note, "no usable temperature");
+        goto no_state;
+    }
+    take(v, temp, now_ms);
+    double t_c = temp->value;
+    if (usable(dens) && state_from_density(site, path, dens->value, t_c,
+                                           HC_METHOD_DENSITOMETER, &v->state) == 0) {
+        take(v, dens, now_ms);
+    } else if (usable(lower) && usable(upper) && isfinite(p->pressure_spacing_m)) {
+        double rho;
+        if (hc_density_from_pressure_pair(lower->value, upper->value, p->pressure_spacing_m,
+                                          g_m_s2, &rho) != HC_OK ||
+            state_from_density(site, path, rho, t_c, HC_METHOD_HYDROSTATIC, &v->state) != 0) {
+            snprintf(v->note, sizeof v->note, "hydrostatic density out of range");
+            goto no_state;
+        }
+        take(v, lower, now_ms);
+        take(v, upper, now_ms);
+    } else if (usable(cond)) {
+        if (state_from_conductivity(site, path, cond->value, t_c, &v->state) != 0) {
+            snprintf(v->note, sizeof v->note, "conductivity %.1f mS/cm at %.1f degC gives no "
+                     "brine state", cond->value, t_c);
+            goto no_state;
+        }
+        take(v, cond, now_ms);
+    } else {
+        snprintf(v->note, sizeof v->note, "no usable density or conductivity");
+        goto no_state;
+    }
+    v->have_state = 1;
+    depth_of(site, pond, readings, g_m_s2, v);
+    return;
+no_state:
+    hc_state_clear(&v->state);
+    v->quality = HS_QUALITY_BAD;
+    depth_of(site, pond, readings, g_m_s2, v);
+}

@@ -1,0 +1,62 @@
+/* From a pond's latest signals to its brine state and depth, with the best
+ * density source the pond has (shared/DESIGN.md "Where the brine state
+ * comes from"):
+ *   1. a density signal: inline densitometer, or the hydrostatic pair
+ *      rho = dP / (g dz);
+ *   2. conductivity and temperature: PSS-78 inside its range, beyond it the
+ *      evaporation path's brine conductivity model (flagged);
+ * The evaporation path of the pond's feed then gives the stage, the next
+ * stage, saturation indices and water activity. Depth comes from the
+ * level-pressure sensor through the pond's own brine density, or from a
+ * level-distance sensor.
+ *
+ * Memory: hs_brine_models owns the paths and curves it builds; a site's
+ * models live as long as the runtime keeps that site.
+ * Error convention: 0 on success, -1 after logging the reason. */
+#ifndef HS_BRINE_EVAL_H
+#define HS_BRINE_EVAL_H
+
+#include <stdint.h>
+
+#include "hc_brine_curve.h"
+#include "hc_path.h"
+#include "hc_state.h"
+#include "hs_site.h"
+#include "hs_store.h"
+
+/* The latest value of one signal, in SI units. */
+typedef struct {
+    double value;
+    int64_t t_ms;       /* wall clock of the sample [ms since the epoch] */
+    hs_quality quality; /* as delivered, made STALE by age */
+    int have;           /* at least one sample has arrived */
+} hs_reading;
+
+typedef struct hs_brine_models hs_brine_models;
+
+/* Builds one evaporation path (fractional, 25 degC) per feed the ponds use.
+ * About 30 ms per feed. */
+int hs_brine_models_build(const hs_site *site, hs_brine_models **out);
+void hs_brine_models_free(hs_brine_models *models);
+/* The path and hydrology curve of feed_index (-1: built-in seawater). */
+const hc_path *hs_brine_models_path(const hs_brine_models *models, int feed_index);
+const hc_brine_curve *hs_brine_models_curve(const hs_brine_models *models, int feed_index);
+
+typedef struct {
+    hc_brine_state state;
+    int have_state;
+    hs_quality quality;     /* worst input behind the state; BAD without one */
+    double depth_m;         /* NaN when unknown */
+    hs_quality depth_quality;
+    int64_t t_ms;           /* newest input behind the state */
+    double oldest_input_age_s; /* age of the oldest input the state needs */
+    char note[128];         /* why there is no state, for the log and status */
+} hs_pond_view;
+
+/* One pond's view. readings are indexed like site->signals. now_ms is the
+ * wall clock; g_m_s2 the local gravity. */
+void hs_pond_evaluate(const hs_site *site, size_t pond, const hs_reading *readings,
+                      const hs_brine_models *models, double g_m_s2, int64_t now_ms,
+                      hs_pond_view *out);
+
+#endif

@@ -1,0 +1,360 @@
+/* The running job (hs_runtime.h): open, the tick that drives the pipeline,
+ * reload with validation first, status line, and the clean close. */
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "hc_level.h"
+#include "hs_config.h"
+#include "hs_log.h"
+#include "hs_runtime_private.h"
+
+#define EVAL_EVERY_MS 1000     /* transfers and time-driven alarm checks */
+#define COMMANDS_EVERY_MS 1000 /* operator commands queued by the CLI */
+#define FLUSH_WAIT_MS 5000     /* at close: how long to wait for the broker */
+
+/* ---- built-in alarm rules: what every pond gets from its own limits ---- */
+
+static void add_rule(hs_runtime *rt, const char *pond, hs_rule_kind kind, const char *name,
+                     double low, double high)
+{
+    hs_alarm_rule r;
+    hs_alarm_rule_default(&r, kind);
+    snprintf(r.name, sizeof r.name, "%s", name);
+    if (!isnan(low))
+        r.low = low;
+    if (!isnan(high))
+        r.high = high;
+    if (hs_alarm_rule_check(&r) != NULL)
+        return; /* a limit the pond does not have */
+    hs_alarm_add(rt->alarms, &r, pond);
+}
+
+static void add_alarm_rules(hs_runtime *rt)
+{
+    for (size_t i = 0; i < rt->site.n_ponds; i++) {
+        const hs_pond *p = &rt->site.ponds[i];
+        add_rule(rt, p->name, HS_RULE_LEVEL_HIGH, "level-high", NAN, p->level_max_m);
+        add_rule(rt, p->name, HS_RULE_LEVEL_LOW, "level-low", p->level_min_m, NAN);
+        if (isfinite(p->freeboard_m))
+            /* 5 cm below the dike crest: spill is imminent (common practice,
+             * no source) */
+            add_rule(rt, p->name, HS_RULE_LEVEL_HIGH_HIGH, "level-high-high", NAN,
+                     p->freeboard_m - 0.05);
+        add_rule(rt, p->name, HS_RULE_DENSITY_BAND, "density-band", p->density_in_kg_m3, NAN);
+        add_rule(rt, p->name, HS_RULE_SENSOR_STALE, "sensor-stale", NAN, NAN);
+        add_rule(rt, p->name, HS_RULE_BUS_DOWN, "bus-down", NAN, NAN);
+        add_rule(rt, p->name, HS_RULE_DENSITY_FALL, "density-fall", NAN, NAN);
+        if (p->role == HS_ROLE_INTAKE || p->role == HS_ROLE_CONCENTRATOR)
+            add_rule(rt, p->name, HS_RULE_NEAR_SATURATION, "near-saturation", NAN, NAN);
+        if (p->role == HS_ROLE_CRYSTALLISER) {
+            add_rule(rt, p->name, HS_RULE_GYPSUM_IN_FEED, "gypsum-in-feed", NAN, NAN);
+            add_rule(rt, p->name, HS_RULE_BITTERN_LIMIT, "bittern-limit", NAN, NAN);
+        }
+    }
+}
+
+static void restore_alarm(void *ctx, const hs_journal_row *row)
+{
+    hs_runtime *rt = ctx;
+    int state = hs_alarm_state_from_name(row->to_state);
+    if (state >= 0)
+        hs_alarm_restore(rt->alarms, row->pond, row->rule, (hs_alarm_state)state, row->event_id,
+                         row->episode_id, row->shelved_until_ms);
+}
+
+static void alarm_emit(void *ctx, const hs_alarm_event *ev)
+{
+    hs_rt_emit_alarm(ctx, ev);
+}
+
+static int alarms_open(hs_runtime *rt)
+{
+    uint64_t last = 0;
+    if (hs_store_last_event_id(rt->store, &last) != 0)
+        return -1;
+    rt->alarms = hs_alarm_new(last + 1);
+    if (rt->alarms == NULL)
+        return -1;
+    add_alarm_rules(rt);
+    hs_store_journal_latest(rt->store, restore_alarm, rt);
+    return 0;
+}
+
+/* ---- the pieces that depend on one loaded site ---- */
+
+static void site_parts_free(hs_runtime *rt)
+{
+    hs_rt_buses_stop(rt);
+    hs_rt_hydro_free(rt);
+    hs_brine_models_free(rt->models);
+    rt->models = NULL;
+    free(rt->readings);
+    free(rt->ponds);
+    free(rt->transfers);
+    rt->readings = NULL;
+    rt->ponds = NULL;
+    rt->transfers = NULL;
+}
+
+static int site_parts_open(hs_runtime *rt, hs_brine_models *models)
+{
+    const hs_site *site = &rt->site;
+    rt->models = models;
+    if (hc_gravity(site->site.latitude_deg, site->site.elevation_m, &rt->gravity_m_s2) != HC_OK)
+        rt->gravity_m_s2 = HC_STANDARD_GRAVITY;
+    rt->readings = calloc(site->n_signals ? site->n_signals : 1, sizeof *rt->readings);
+    rt->ponds = calloc(site->n_ponds ? site->n_ponds : 1, sizeof *rt->ponds);
+    rt->transfers = calloc(site->n_transfers ? site->n_transfers : 1, sizeof *rt->transfers);
+    if (!rt->readings || !rt->ponds || !rt->transfers)
+        return -1;
+    for (size_t i = 0; i < site->n_signals; i++)
+        rt->readings[i] = (hs_reading){.value = NAN, .quality = HS_QUALITY_BAD};
+    for (size_t i = 0; i < site->n_ponds; i++) {
+        hc_state_clear(&rt->ponds[i].view.state);
+        rt->ponds[i].view.depth_m = NAN;
+        rt->ponds[i].view.quality = HS_QUALITY_BAD;
+    }
+    if (hs_rt_hydro_init(rt) != 0 || hs_rt_transfers_init(rt) != 0)
+        return -1;
+    return hs_rt_buses_start(rt);
+}
+
+static int load_site(const char *path, hs_site *site, hs_brine_models **models)
+{
+    hs_diag diag;
+    if (hs_site_load(path, site, &diag) != 0) {
+        for (unsigned i = 0; i < diag.n; i++)
+            hs_log(HSP_LOG_ERR, "%s", diag.msg[i]);
+        if (diag.dropped)
+            hs_log(HSP_LOG_ERR, "%s: %u more errors not shown", path, diag.dropped);
+        return HSP_ERR_CONFIG;
+    }
+    if (hs_brine_models_build(site, models) != 0) {
+        hs_site_free(site);
+        return HSP_ERR_CONFIG;
+    }
+    return HSP_OK;
+}
+
+int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs_runtime **out)
+{
+    hs_runtime *rt = calloc(1, sizeof *rt);
+    if (rt == NULL)
+        return HSP_ERR_RUNTIME;
+    if (sink != NULL)
+        rt->sink = *sink;
+    snprintf(rt->config_path, sizeof rt->config_path, "%s", config_path);
+    hs_brine_models *models = NULL;
+    int rc = load_site(config_path, &rt->site, &models);
+    if (rc != HSP_OK) {
+        free(rt);
+        return rc;
+    }
+    char err[512] = "";
+    rt->store = hs_store_open(rt->site.site.database, HS_STORE_WRITE, NULL, err, sizeof err);
+    if (rt->store == NULL) {
+        hs_log(HSP_LOG_ERR, "%s", err);
+        hs_brine_models_free(models);
+        hs_site_free(&rt->site);
+        free(rt);
+        return HSP_ERR_RUNTIME;
+    }
+    rt->started_ms = hs_rt_wall_ms();
+    rt->queue = hp_queue_new(HS_RT_QUEUE_CAPACITY);
+    if (rt->queue == NULL || alarms_open(rt) != 0 || hs_rt_mqtt_open(rt) != 0 ||
+        site_parts_open(rt, models) != 0) {
+        hs_log(HSP_LOG_ERR, "cannot start the pipeline of %s", config_path);
+        if (rt->models == NULL)
+            hs_brine_models_free(models);
+        hs_runtime_close(rt);
+        return HSP_ERR_RUNTIME;
+    }
+    rt->started_ms = hs_rt_wall_ms();
+    int64_t mono = hs_rt_mono_ms();
+    rt->next_eval_ms = mono;
+    rt->next_maintain_ms = mono + HS_RT_MAINTAIN_MS;
+    rt->next_command_ms = mono;
+    hs_rt_emit_gateway(rt, 1, rt->started_ms);
+    hs_log(HSP_LOG_NOTICE, "site %s: %zu ponds, %zu signals on %zu buses, %zu transfers; "
+           "history in %s; MQTT %s", rt->site.site.name, rt->site.n_ponds, rt->site.n_signals,
+           rt->site.n_buses, rt->site.n_transfers, rt->site.site.database,
+           rt->link != NULL ? "on" : "off");
+    *out = rt;
+    return HSP_OK;
+}
+
+/* ---- the cycle ---- */
+
+static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms)
+{
+    struct hs_rt_pond *p = &rt->ponds[i];
+    hs_pond_evaluate(&rt->site, i, rt->readings, rt->models, rt->gravity_m_s2, now_ms, &p->view);
+    hs_rt_hydro_update(rt, i, now_ms);
+    if (p->view.have_state) {
+        hs_pond_extra extra;
+        hs_pond_extra_clear(&extra);
+        extra.depth_m = p->view.depth_m;
+        extra.volume_m3 = p->report.volume_m3;
+        extra.dissolved_salt_t = p->report.dissolved_salt_t;
+        extra.deposited_salt_t = p->report.deposited_salt_t;
+        extra.net_evaporation_mm_day = p->report.net_evaporation_mm_day;
+        extra.days_to_target_low = p->report.days_to_target_low;
+        extra.days_to_target_high = p->report.days_to_target_high;
+        extra.days_to_next_stage = p->report.days_to_next_stage_low;
+        if (hs_store_add_state(rt->store, rt->site.ponds[i].name, p->view.t_ms, &p->view.state,
+                               &extra, p->view.quality) != 0)
+            hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
+    }
+    hs_alarm_input in;
+    hs_alarm_input_clear(&in);
+    in.state = p->view.have_state ? &p->view.state : NULL;
+    in.depth_m = p->view.depth_m;
+    in.sample_age_s = p->view.oldest_input_age_s;
+    in.bus_down = 0;
+    for (size_t s = 0; s < rt->site.n_signals; s++)
+        if (rt->site.signals[s].pond_index == (int)i && rt->site.signals[s].bus_index >= 0 &&
+            rt->bus_down[rt->site.signals[s].bus_index])
+            in.bus_down = 1;
+    hs_alarm_update(rt->alarms, rt->site.ponds[i].name, &in, now_ms, alarm_emit, rt);
+    hs_rt_enqueue_state(rt, i, now_ms);
+    hs_rt_emit_pond(rt, i, now_ms);
+    p->dirty = 0;
+}
+
+static char *command_from_queue(void *ctx, int64_t id, const char *json)
+{
+    hs_runtime *rt = ctx;
+    return hs_command_from_queue(&rt->commands, id, json);
+}
+
+int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
+{
+    int64_t mono = hs_rt_mono_ms();
+    int64_t now = hs_rt_wall_ms();
+    hs_rt_drain(rt, now);
+    hs_rt_age_readings(rt, now);
+    int periodic = mono >= rt->next_eval_ms;
+    for (size_t i = 0; i < rt->site.n_ponds; i++)
+        if (rt->ponds[i].dirty || periodic)
+            evaluate_pond(rt, i, now);
+    if (periodic) {
+        hs_alarm_tick(rt->alarms, now, alarm_emit, rt);
+        hs_rt_transfers_run(rt, mono, now);
+        rt->next_eval_ms = mono + EVAL_EVERY_MS;
+        rt->cycles++;
+    }
+    if (mono >= rt->next_command_ms) {
+        hs_store_command_take(rt->store, command_from_queue, rt);
+        rt->next_command_ms = mono + COMMANDS_EVERY_MS;
+    }
+    if (hs_store_flush(rt->store) != 0)
+        hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
+    hs_rt_mqtt_pump(rt, 0);
+    if (mono >= rt->next_maintain_ms) {
+        if (hs_store_maintain(rt->store, now) != 0)
+            hs_log(HSP_LOG_WARNING, "store maintenance: %s", hs_store_error(rt->store));
+        rt->next_maintain_ms = mono + HS_RT_MAINTAIN_MS;
+    }
+    *next_ms = HS_RT_TICK_MS;
+    return HSP_OK;
+}
+
+/* ---- reload ---- */
+
+int hs_runtime_reload(hs_runtime *rt, const char *config_path)
+{
+    hs_site fresh;
+    hs_brine_models *models = NULL;
+    int rc = load_site(config_path, &fresh, &models);
+    if (rc != HSP_OK)
+        return rc; /* reasons logged; the running site is untouched */
+    if (strcmp(fresh.site.database, rt->site.site.database) != 0) {
+        hs_log(HSP_LOG_ERR, "%s: [site] database changed (%s -> %s): that needs a restart, "
+               "not a reload", config_path, rt->site.site.database, fresh.site.database);
+        hs_brine_models_free(models);
+        hs_site_free(&fresh);
+        return HSP_ERR_CONFIG;
+    }
+    /* keep each transfer's timing memory across the reload, by name, so a
+     * reload never restarts a pump's minimum off time */
+    size_t n_old = rt->site.n_transfers;
+    struct hs_rt_transfer *old = rt->transfers;
+    char (*old_names)[HS_NAME_MAX] = calloc(n_old ? n_old : 1, HS_NAME_MAX);
+    for (size_t i = 0; old_names != NULL && i < n_old; i++)
+        memcpy(old_names[i], rt->site.transfers[i].name, HS_NAME_MAX);
+    rt->transfers = NULL;
+    site_parts_free(rt);
+    hs_site_free(&rt->site);
+    rt->site = fresh;
+    hs_alarm_free(rt->alarms);
+    rt->alarms = NULL;
+    snprintf(rt->config_path, sizeof rt->config_path, "%s", config_path);
+    int ok = site_parts_open(rt, models) == 0 && alarms_open(rt) == 0;
+    for (size_t i = 0; ok && old_names != NULL && i < rt->site.n_transfers; i++)
+        for (size_t j = 0; j < n_old; j++)
+            if (strcmp(old_names[j], rt->site.transfers[i].name) == 0) {
+                rt->transfers[i].state = old[j].state;
+                rt->transfers[i].last_write = old[j].last_write;
+            }
+    free(old);
+    free(old_names);
+    rt->commands.engine = rt->alarms;
+    if (!ok) {
+        hs_log(HSP_LOG_ERR, "reload: the new configuration could not be started");
+        return HSP_ERR_RUNTIME;
+    }
+    hs_log(HSP_LOG_NOTICE, "site %s reloaded: %zu ponds, %zu signals, %zu transfers",
+           rt->site.site.name, rt->site.n_ponds, rt->site.n_signals, rt->site.n_transfers);
+    return HSP_OK;
+}
+
+/* ---- status and close ---- */
+
+void hs_runtime_status(hs_runtime *rt, char *buf, size_t len)
+{
+    size_t with_state = 0, running = 0, blocked = 0, active = 0;
+    for (size_t i = 0; i < rt->site.n_ponds; i++)
+        with_state += rt->ponds[i].view.have_state;
+    for (size_t i = 0; i < rt->site.n_transfers; i++) {
+        running += rt->transfers[i].last.advice == HS_ADVICE_RUN;
+        blocked += rt->transfers[i].last.advice == HS_ADVICE_BLOCKED;
+    }
+    for (size_t i = 0; i < hs_alarm_count(rt->alarms); i++) {
+        hs_alarm_info info;
+        if (hs_alarm_get(rt->alarms, i, &info) == 0 && info.active)
+            active++;
+    }
+    int64_t waiting = 0;
+    hs_store_outbox_count(rt->store, &waiting);
+    snprintf(buf, len, "%zu/%zu ponds with state, %zu alarms active, transfers %zu run %zu "
+             "blocked, %llu samples, outbox %lld%s", with_state, rt->site.n_ponds, active,
+             running, blocked, (unsigned long long)rt->samples_in, (long long)waiting,
+             rt->link == NULL ? " (MQTT off)" : "");
+}
+
+void hs_runtime_close(hs_runtime *rt)
+{
+    if (rt == NULL)
+        return;
+    /* pumps first: nothing may run on after we stop watching */
+    if (rt->queue != NULL && rt->store != NULL && rt->readings != NULL && rt->buses != NULL)
+        hs_rt_drain(rt, hs_rt_wall_ms());
+    if (rt->transfers != NULL && rt->buses != NULL)
+        hs_rt_transfers_safe(rt);
+    hs_rt_buses_stop(rt); /* the workers carry out queued writes before they end */
+    if (rt->store != NULL)
+        hs_store_flush(rt->store);
+    hs_rt_emit_gateway(rt, 0, hs_rt_wall_ms());
+    hs_rt_mqtt_close(rt, FLUSH_WAIT_MS);
+    site_parts_free(rt);
+    hs_alarm_free(rt->alarms);
+    if (rt->store != NULL) {
+        hs_store_checkpoint(rt->store, 1);
+        hs_store_close(rt->store);
+    }
+    hp_queue_free(rt->queue);
+    hs_site_free(&rt->site);
+    free(rt);
+}

@@ -1,0 +1,198 @@
+/* What the runtime tells the world: tagged values to the host (plugin ABI
+ * emit), and, when MQTT is on, the retained pond state and transfer advice
+ * and the alarm transitions through the store's outbox. Journal rows are
+ * written whether MQTT is on or not. */
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "hp_state_json.h"
+#include "hs_hydro_json.h"
+#include "hs_log.h"
+#include "hs_runtime_private.h"
+
+static hsp_quality host_quality(hs_quality q)
+{
+    switch (q) {
+    case HS_QUALITY_GOOD: return HSP_QUALITY_GOOD;
+    case HS_QUALITY_UNCERTAIN: return HSP_QUALITY_UNCERTAIN;
+    default: return HSP_QUALITY_BAD;
+    }
+}
+
+static void emit_value(hs_runtime *rt, const char *tag, hsp_value_type type, double number,
+                       const char *text, const char *unit, hsp_quality q, int64_t t_ms)
+{
+    if (rt->sink.emit == NULL)
+        return;
+    struct hsp_value v = {
+        .struct_size = sizeof v, .type = type, .tag = tag, .unit = unit ? unit : "",
+        .number = number, .text = text, .quality = q, .time_unix_ms = t_ms,
+    };
+    rt->sink.emit(rt->sink.data, &v);
+}
+
+/* The MQTT state object: the brine state, the hydrology figures, quality. */
+static json_t *state_object(hs_runtime *rt, size_t pond, int64_t now_ms)
+{
+    const struct hs_rt_pond *p = &rt->ponds[pond];
+    hs_pond_extra extra;
+    hs_pond_extra_clear(&extra);
+    extra.depth_m = p->view.depth_m;
+    extra.volume_m3 = p->report.volume_m3;
+    extra.dissolved_salt_t = p->report.dissolved_salt_t;
+    extra.deposited_salt_t = p->report.deposited_salt_t;
+    extra.net_evaporation_mm_day = p->report.net_evaporation_mm_day;
+    extra.days_to_target_low = p->report.days_to_target_low;
+    extra.days_to_target_high = p->report.days_to_target_high;
+    extra.days_to_next_stage = p->report.days_to_next_stage_low;
+    int64_t t = p->view.t_ms ? p->view.t_ms : now_ms;
+    json_t *o = hs_state_payload(rt->site.ponds[pond].name, t, &p->view.state, &extra,
+                                 p->view.quality);
+    if (o == NULL)
+        return NULL;
+    hs_hydro_report_to_json(&p->report, o);
+    json_object_set_new(o, "level_quality", json_string(hs_quality_name(p->view.depth_quality)));
+    if (!p->view.have_state && p->view.note[0])
+        json_object_set_new(o, "note", json_string(p->view.note));
+    return o;
+}
+
+int hs_rt_enqueue_state(hs_runtime *rt, size_t pond, int64_t now_ms)
+{
+    if (rt->publisher == NULL)
+        return 0;
+    char topic[HS_TOPIC_MAX];
+    if (hs_topic(topic, sizeof topic, &rt->topics, "pond", rt->site.ponds[pond].name,
+                 "state") != 0)
+        return -1;
+    json_t *o = state_object(rt, pond, now_ms);
+    if (o == NULL)
+        return -1;
+    int rc = hs_enqueue_json(rt->store, HS_MSG_STATE, topic, o, 1);
+    json_decref(o);
+    return rc < 0 ? -1 : 0;
+}
+
+void hs_rt_emit_pond(hs_runtime *rt, size_t pond, int64_t now_ms)
+{
+    const struct hs_rt_pond *p = &rt->ponds[pond];
+    const char *name = rt->site.ponds[pond].name;
+    const hc_brine_state *s = &p->view.state;
+    hsp_quality q = host_quality(p->view.quality);
+    int64_t t = p->view.t_ms ? p->view.t_ms : now_ms;
+    char tag[160];
+#define NUM(field, value, unit)                                              \
+    do {                                                                     \
+        snprintf(tag, sizeof tag, "pond/%s/%s", name, field);                \
+        emit_value(rt, tag, HSP_VALUE_NUMBER, value, NULL, unit, q, t);      \
+    } while (0)
+    NUM("density_kg_m3", s->density_kg_m3, "kg/m3");
+    NUM("baume", s->baume, "degBe");
+    NUM("specific_gravity", s->specific_gravity, "");
+    NUM("temperature_c", s->temperature_c, "degC");
+    NUM("concentration_factor", s->concentration_factor, "");
+    q = host_quality(p->view.depth_quality);
+    NUM("depth_m", p->view.depth_m, "m");
+    NUM("volume_m3", p->report.volume_m3, "m3");
+    NUM("days_to_target_low", p->report.days_to_target_low, "d");
+    NUM("days_to_target_high", p->report.days_to_target_high, "d");
+#undef NUM
+    q = host_quality(p->view.quality);
+    snprintf(tag, sizeof tag, "pond/%s/stage", name);
+    emit_value(rt, tag, HSP_VALUE_TEXT, NAN, hc_stage_name(s->stage), "", q, t);
+    json_t *o = state_object(rt, pond, now_ms);
+    char *text = o != NULL ? json_dumps(o, JSON_COMPACT) : NULL;
+    if (text != NULL) {
+        snprintf(tag, sizeof tag, "pond/%s/state", name);
+        emit_value(rt, tag, HSP_VALUE_JSON, NAN, text, "", q, t);
+    }
+    free(text);
+    json_decref(o);
+}
+
+static json_t *transfer_object(hs_runtime *rt, size_t i, int64_t now_ms)
+{
+    const hs_transfer_conf *t = &rt->site.transfers[i];
+    const struct hs_rt_transfer *x = &rt->transfers[i];
+    char when[40];
+    hs_iso8601_ms(when, sizeof when, now_ms);
+    json_t *reasons = json_array();
+    for (unsigned b = 0; b < HS_XR_BITS; b++)
+        if (x->last.reasons & (1u << b))
+            json_array_append_new(reasons,
+                                  json_pack("{s:s, s:s, s:b}", "name",
+                                            hs_transfer_reason_name(1u << b), "text",
+                                            hs_transfer_reason_text(1u << b), "interlock",
+                                            (1u << b) & HS_XR_INTERLOCK_MASK ? 1 : 0));
+    json_t *o = json_pack("{s:s, s:s, s:s, s:s, s:b, s:b, s:o, s:s}", "transfer", t->name,
+                          "source", t->source, "destination", t->destination, "advice",
+                          hs_advice_name(x->last.advice), "pump_on", x->last.pump_on, "actuate",
+                          t->actuate ? 1 : 0, "reasons", reasons, "time", when);
+    if (o != NULL)
+        json_object_set_new(o, "destination_density_after_mixing_kg_m3",
+                            isfinite(x->predicted_mix_kg_m3) ? json_real(x->predicted_mix_kg_m3)
+                                                             : json_null());
+    return o;
+}
+
+void hs_rt_emit_transfer(hs_runtime *rt, size_t i, int64_t now_ms)
+{
+    const hs_transfer_conf *t = &rt->site.transfers[i];
+    const struct hs_rt_transfer *x = &rt->transfers[i];
+    json_t *o = transfer_object(rt, i, now_ms);
+    if (o == NULL)
+        return;
+    char *reasons = json_dumps(json_object_get(o, "reasons"), JSON_COMPACT);
+    if (rt->store != NULL && reasons != NULL &&
+        hs_store_add_transfer(rt->store, t->name, now_ms, hs_advice_name(x->last.advice), reasons,
+                              x->last.write != HS_WRITE_NONE) != 0)
+        hs_log(HSP_LOG_ERR, "[transfer %s]: journal: %s", t->name, hs_store_error(rt->store));
+    free(reasons);
+    char topic[HS_TOPIC_MAX];
+    if (rt->publisher != NULL &&
+        hs_topic(topic, sizeof topic, &rt->topics, "transfer", t->name, NULL) == 0)
+        hs_enqueue_json(rt->store, HS_MSG_TRANSFER, topic, o, 1);
+    char tag[120];
+    snprintf(tag, sizeof tag, "transfer/%s/advice", t->name);
+    emit_value(rt, tag, HSP_VALUE_TEXT, NAN, hs_advice_name(x->last.advice), "",
+               HSP_QUALITY_GOOD, now_ms);
+    char *text = json_dumps(o, JSON_COMPACT);
+    if (text != NULL) {
+        snprintf(tag, sizeof tag, "transfer/%s", t->name);
+        emit_value(rt, tag, HSP_VALUE_JSON, NAN, text, "", HSP_QUALITY_GOOD, now_ms);
+    }
+    free(text);
+    json_decref(o);
+}
+
+void hs_rt_emit_alarm(hs_runtime *rt, const hs_alarm_event *ev)
+{
+    if (rt->publisher != NULL) {
+        hs_alarm_sink_emit(&rt->alarm_sink, ev); /* journal + outbox in one batch */
+    } else if (rt->store != NULL) {
+        hs_journal_row row = {
+            .event_id = ev->event_id, .t_ms = ev->t_ms, .pond = ev->pond, .rule = ev->rule,
+            .from_state = hs_alarm_state_name(ev->from), .to_state = hs_alarm_state_name(ev->to),
+            .cause = ev->cause, .value = ev->value, .limit = ev->limit,
+            .priority = ev->priority, .actor = ev->actor, .note = ev->note,
+            .episode_id = ev->episode_id, .shelved_until_ms = ev->shelved_until_ms,
+        };
+        if (hs_store_add_journal(rt->store, &row) != 0)
+            hs_log(HSP_LOG_ERR, "alarm journal: %s", hs_store_error(rt->store));
+    }
+    hs_log(ev->to == HS_ALARM_UNACKED ? HSP_LOG_WARNING : HSP_LOG_INFO,
+           "alarm %s/%s: %s -> %s (%s, value %g)", ev->pond, ev->rule,
+           hs_alarm_state_name(ev->from), hs_alarm_state_name(ev->to), ev->cause, ev->value);
+    char tag[160];
+    snprintf(tag, sizeof tag, "alarm/%s/%s", ev->pond, ev->rule);
+    emit_value(rt, tag, HSP_VALUE_TEXT, ev->value, hs_alarm_state_name(ev->to), "",
+               HSP_QUALITY_GOOD, ev->t_ms);
+}
+
+void hs_rt_emit_gateway(hs_runtime *rt, int online, int64_t now_ms)
+{
+    emit_value(rt, "gateway/online", HSP_VALUE_BOOL, online ? 1 : 0, NULL, "", HSP_QUALITY_GOOD,
+               now_ms);
+}

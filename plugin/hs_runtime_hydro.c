@@ -1,0 +1,166 @@
+/* Hydrology in the running daemon: each pond's geometry (area and dike
+ * slope, or its stage-storage table), a tracker fed with every new state
+ * (hs_hydro.h), and the report the status, MQTT state and transfers use:
+ * volume, salt inventories, net evaporation, days to target and to the
+ * next stage. */
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "hs_log.h"
+#include "hs_runtime_private.h"
+#include "hs_stage_table.h"
+
+static int shape_of(const hs_pond *p, struct hs_rt_pond *rp, hc_pond_shape *shape)
+{
+    memset(shape, 0, sizeof *shape);
+    if (p->stage_storage[0] != '\0') {
+        char err[600];
+        if (hs_stage_table_load(p->stage_storage, &rp->table, err, sizeof err) != 0) {
+            hs_log(HSP_LOG_ERR, "[pond %s]: %s", p->name, err);
+            return -1;
+        }
+        rp->table_loaded = 1;
+        shape->is_table = 1;
+        shape->table = rp->table.view;
+        return 0;
+    }
+    if (!isfinite(p->floor_area_m2))
+        return -1;
+    /* crest at the freeboard when given; otherwise 2 m (common practice,
+     * no source: solar pond dikes are rarely higher) */
+    shape->prism = (hc_prism){p->floor_area_m2, 0, isfinite(p->side_slope) ? p->side_slope : 0,
+                              isfinite(p->freeboard_m) ? p->freeboard_m : 2.0};
+    if (hc_prism_check(&shape->prism) != HC_OK) {
+        hs_log(HSP_LOG_ERR, "[pond %s]: area and side slope give no usable geometry", p->name);
+        return -1;
+    }
+    return 0;
+}
+
+int hs_rt_hydro_init(hs_runtime *rt)
+{
+    for (size_t i = 0; i < rt->site.n_ponds; i++) {
+        const hs_pond *p = &rt->site.ponds[i];
+        struct hs_rt_pond *rp = &rt->ponds[i];
+        struct hs_hydro_config cfg;
+        hs_hydro_config_default(&cfg);
+        cfg.crystalliser = p->role == HS_ROLE_CRYSTALLISER;
+        memset(&rp->report, 0, sizeof rp->report);
+        rp->report.depth_m = rp->report.volume_m3 = NAN;
+        rp->report.days_to_target_low = rp->report.days_to_target_high = NAN;
+        rp->report.days_to_next_stage_low = rp->report.days_to_next_stage_high = NAN;
+        rp->report.dissolved_salt_t = rp->report.deposited_salt_t = NAN;
+        rp->report.net_evaporation_mm_day = NAN;
+        if (shape_of(p, rp, &cfg.shape) != 0)
+            continue;
+        rp->hydro_ok = hs_hydro_init(&rp->hydro, &cfg) == 0;
+        if (!rp->hydro_ok)
+            hs_log(HSP_LOG_WARNING, "[pond %s]: hydrology off (geometry refused)", p->name);
+    }
+    return 0;
+}
+
+void hs_rt_hydro_free(hs_runtime *rt)
+{
+    for (size_t i = 0; rt->ponds != NULL && i < rt->site.n_ponds; i++)
+        if (rt->ponds[i].table_loaded) {
+            hs_stage_table_free(&rt->ponds[i].table);
+            rt->ponds[i].table_loaded = 0;
+        }
+}
+
+const hc_pond_shape *hs_rt_pond_shape(const hs_runtime *rt, size_t pond)
+{
+    return rt->ponds[pond].hydro_ok ? &rt->ponds[pond].hydro.cfg.shape : NULL;
+}
+
+/* Days until 1/CF reaches 1/cf_goal at the recent trend. Under steady net
+ * evaporation over a steady area the water mass falls linearly in time, so
+ * 1/CF = W/W0 is linear in time (CF by its definition, DOMAIN.md section 7);
+ * the slope comes from a least-squares line through the recent points, and
+ * low/high from the slope -/+ one standard error. */
+static void trend_days(const struct hs_rt_pond *rp, double cf_now, double cf_goal, double *lo,
+                       double *hi)
+{
+    *lo = *hi = NAN;
+    unsigned n = rp->trend_n;
+    if (n < 6 || !isfinite(cf_goal) || !(cf_goal > cf_now))
+        return;
+    double st = 0, sy = 0;
+    for (unsigned i = 0; i < n; i++) {
+        st += rp->trend_t[i];
+        sy += rp->trend_inv_cf[i];
+    }
+    double mt = st / n, my = sy / n, sxx = 0, sxy = 0;
+    for (unsigned i = 0; i < n; i++) {
+        sxx += (rp->trend_t[i] - mt) * (rp->trend_t[i] - mt);
+        sxy += (rp->trend_t[i] - mt) * (rp->trend_inv_cf[i] - my);
+    }
+    if (!(sxx > 0))
+        return;
+    double slope = sxy / sxx, sse = 0;
+    for (unsigned i = 0; i < n; i++) {
+        double r = rp->trend_inv_cf[i] - (my + slope * (rp->trend_t[i] - mt));
+        sse += r * r;
+    }
+    double se = sqrt(sse / (n - 2) / sxx);
+    double gap = 1.0 / cf_now - 1.0 / cf_goal; /* > 0 */
+    if (!(slope < 0))
+        return; /* not concentrating now: no finite time */
+    double fast = -(slope - se), slow = -(slope + se);
+    *lo = gap / fast / 86400.0;
+    *hi = slow > 0 ? gap / slow / 86400.0 : NAN;
+}
+
+static void trend_add(struct hs_rt_pond *rp, double t_s, double cf)
+{
+    if (!(cf > 0))
+        return;
+    unsigned last = (rp->trend_head + HS_RT_TREND_SLOTS - 1) % HS_RT_TREND_SLOTS;
+    if (rp->trend_n > 0 && t_s - rp->trend_t[last] < HS_RT_TREND_EVERY_S)
+        return;
+    rp->trend_t[rp->trend_head] = t_s;
+    rp->trend_inv_cf[rp->trend_head] = 1.0 / cf;
+    rp->trend_head = (rp->trend_head + 1) % HS_RT_TREND_SLOTS;
+    if (rp->trend_n < HS_RT_TREND_SLOTS)
+        rp->trend_n++;
+}
+
+void hs_rt_hydro_update(hs_runtime *rt, size_t pond, int64_t now_ms)
+{
+    struct hs_rt_pond *rp = &rt->ponds[pond];
+    const hs_pond *p = &rt->site.ponds[pond];
+    if (!rp->hydro_ok)
+        return;
+    const hc_brine_curve *curve = hs_brine_models_curve(rt->models, p->feed_index);
+    const hc_brine_state *s = &rp->view.state;
+    if (isfinite(rp->view.depth_m)) {
+        struct hs_hydro_sample smp = {
+            .t_s = (double)now_ms / 1000.0, .level_m = rp->view.depth_m,
+            .density_kg_m3 = rp->view.have_state ? s->density_kg_m3 : NAN,
+            .salinity_g_kg = rp->view.have_state ? s->salinity_g_kg : NAN,
+            .cf = rp->view.have_state ? s->concentration_factor : NAN,
+            .water_activity = rp->view.have_state ? s->water_activity : NAN,
+        };
+        hs_hydro_sample(&rp->hydro, &smp, curve);
+    }
+    /* the pond's target is its density_out; the next stage from the path */
+    double cf_target = NAN, cf_next = NAN;
+    if (curve != NULL && isfinite(p->density_out_kg_m3))
+        hc_curve_cf_at_density(curve, p->density_out_kg_m3, &cf_target);
+    if (rp->view.have_state && s->next_stage != HC_STAGE_NONE)
+        cf_next = hc_path_stage_cf(hs_brine_models_path(rt->models, p->feed_index), s->next_stage);
+    hs_hydro_report(&rp->hydro, curve, cf_target, cf_next, NAN, NAN, &rp->report);
+    /* Until the daily balance has a rate, the recent trend answers. */
+    if (rp->view.have_state) {
+        trend_add(rp, (double)now_ms / 1000.0, s->concentration_factor);
+        if (isnan(rp->report.days_to_target_low) && isnan(rp->report.days_to_target_high))
+            trend_days(rp, s->concentration_factor, cf_target, &rp->report.days_to_target_low,
+                       &rp->report.days_to_target_high);
+        if (isnan(rp->report.days_to_next_stage_low) && isnan(rp->report.days_to_next_stage_high))
+            trend_days(rp, s->concentration_factor, cf_next, &rp->report.days_to_next_stage_low,
+                       &rp->report.days_to_next_stage_high);
+    }
+}

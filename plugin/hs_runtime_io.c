@@ -1,0 +1,176 @@
+/* The runtime's field side: one bus worker per [bus], samples from the
+ * queue into the latest reading of each signal (in SI units) and into the
+ * store's raw history, staleness by age, and whether a bus is down. */
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+#include <time.h>
+
+#include "hs_conf_transfer.h"
+#include "hs_log.h"
+#include "hs_runtime_private.h"
+
+int64_t hs_rt_wall_ms(void)
+{
+    struct timespec ts;
+    clock_gettime(CLOCK_REALTIME, &ts);
+    return (int64_t)ts.tv_sec * 1000 + ts.tv_nsec / 1000000;
+}
+
+int64_t hs_rt_mono_ms(void)
+{
+    struct timespec ts;
+    clock_gettime(CLOCK_MONOTONIC, &ts);
+    return (int64_t)ts.tv_sec * 1000 + ts.tv_nsec / 1000000;
+}
+
+int hs_rt_buses_start(hs_runtime *rt)
+{
+    const hs_site *site = &rt->site;
+    size_t nb = site->n_buses;
+    rt->buses = calloc(nb ? nb : 1, sizeof *rt->buses);
+    rt->bus_signals = calloc(nb ? nb : 1, sizeof *rt->bus_signals);
+    rt->bus_n_points = calloc(nb ? nb : 1, sizeof *rt->bus_n_points);
+    rt->bus_down = calloc(nb ? nb : 1, sizeof *rt->bus_down);
+    hp_point *points = calloc(site->n_signals ? site->n_signals : 1, sizeof *points);
+    if (!rt->buses || !rt->bus_signals || !rt->bus_n_points || !rt->bus_down || !points)
+        goto fail;
+    for (size_t b = 0; b < nb; b++) {
+        rt->bus_signals[b] = calloc(site->n_signals ? site->n_signals : 1, sizeof(uint32_t));
+        if (rt->bus_signals[b] == NULL)
+            goto fail;
+        size_t n = 0;
+        for (size_t s = 0; s < site->n_signals; s++) {
+            if (site->signals[s].bus_index != (int)b)
+                continue;
+            points[n] = site->signals[s].point;
+            rt->bus_signals[b][n++] = (uint32_t)s;
+        }
+        rt->bus_n_points[b] = n;
+        int writes_here = 0; /* a bus may carry pump outputs only */
+        for (size_t t = 0; t < site->n_transfers; t++)
+            writes_here |= site->transfers[t].actuate && site->transfers[t].bus_index == (int)b;
+        if (n == 0 && !writes_here)
+            continue;
+        rt->buses[b] = hp_bus_start(&site->buses[b].conf, points, n, (uint32_t)b, rt->queue,
+                                    false);
+        if (rt->buses[b] == NULL) {
+            hs_log(HSP_LOG_ERR, "[bus %s]: cannot start its worker", site->buses[b].name);
+            goto fail;
+        }
+    }
+    free(points);
+    return 0;
+fail:
+    free(points);
+    hs_log(HSP_LOG_ERR, "cannot start the field buses (out of memory or threads)");
+    return -1;
+}
+
+void hs_rt_buses_stop(hs_runtime *rt)
+{
+    for (size_t b = 0; rt->buses != NULL && b < rt->site.n_buses; b++)
+        if (rt->buses[b] != NULL)
+            hp_bus_stop(rt->buses[b]);
+    for (size_t b = 0; rt->bus_signals != NULL && b < rt->site.n_buses; b++)
+        free(rt->bus_signals[b]);
+    free(rt->buses);
+    free(rt->bus_signals);
+    free(rt->bus_n_points);
+    free(rt->bus_down);
+    rt->buses = NULL;
+    rt->bus_signals = NULL;
+    rt->bus_n_points = NULL;
+    rt->bus_down = NULL;
+}
+
+static hs_quality quality_of(hp_quality q)
+{
+    switch (q) {
+    case HP_Q_GOOD: return HS_QUALITY_GOOD;
+    case HP_Q_STALE: return HS_QUALITY_STALE;
+    default: return HS_QUALITY_BAD;
+    }
+}
+
+size_t hs_rt_drain(hs_runtime *rt, int64_t now_ms)
+{
+    hp_sample batch[256];
+    size_t total = 0, n;
+    (void)now_ms;
+    /* Bounded: at most the queue's capacity per tick, so a flood of samples
+     * cannot starve the rest of the loop. */
+    while (total < HS_RT_QUEUE_CAPACITY &&
+           (n = hp_queue_pop(rt->queue, batch, sizeof batch / sizeof batch[0], 0)) > 0) {
+        for (size_t i = 0; i < n; i++) {
+            const hp_sample *smp = &batch[i];
+            if (smp->bus >= rt->site.n_buses || smp->point >= rt->bus_n_points[smp->bus])
+                continue; /* not ours: never trust an index blindly */
+            uint32_t si = rt->bus_signals[smp->bus][smp->point];
+            const hs_signal *sig = &rt->site.signals[si];
+            hs_reading *r = &rt->readings[si];
+            hs_quality q = quality_of(smp->quality);
+            double v = smp->value * sig->si_factor + sig->si_offset;
+            if (q == HS_QUALITY_STALE || !isfinite(v)) {
+                /* keep the last good value; only its quality changes */
+                r->quality = q == HS_QUALITY_GOOD ? HS_QUALITY_BAD : q;
+            } else {
+                r->value = v;
+                r->t_ms = smp->time_ms;
+                r->quality = q;
+                r->have = 1;
+            }
+            if (r->t_ms == 0)
+                r->t_ms = smp->time_ms;
+            if (rt->store != NULL)
+                hs_store_add_sample(rt->store, sig->name, smp->time_ms,
+                                    isfinite(v) ? v : NAN, q);
+            if (sig->pond_index >= 0)
+                rt->ponds[sig->pond_index].dirty = 1;
+        }
+        total += n;
+    }
+    rt->samples_in += total;
+    return total;
+}
+
+void hs_rt_age_readings(hs_runtime *rt, int64_t now_ms)
+{
+    const hs_site *site = &rt->site;
+    for (size_t b = 0; b < site->n_buses; b++) {
+        size_t n = rt->bus_n_points[b], failing = 0;
+        /* before a first answer a bus counts as down only once it has had
+         * its stale time to give one */
+        int silent_too_long = now_ms - rt->started_ms > site->buses[b].conf.stale_after_ms;
+        for (size_t i = 0; i < n; i++) {
+            const hs_reading *r = &rt->readings[rt->bus_signals[b][i]];
+            if ((r->have && r->quality == HS_QUALITY_BAD) || (!r->have && silent_too_long))
+                failing++;
+        }
+        int down = n > 0 && failing == n;
+        if (down != rt->bus_down[b])
+            hs_log(down ? HSP_LOG_WARNING : HSP_LOG_NOTICE, "[bus %s] is %s", site->buses[b].name,
+                   down ? "down: no point answers" : "up again");
+        rt->bus_down[b] = down;
+    }
+    for (size_t s = 0; s < site->n_signals; s++) {
+        hs_reading *r = &rt->readings[s];
+        const hs_signal *sig = &site->signals[s];
+        if (!r->have || r->quality != HS_QUALITY_GOOD || sig->bus_index < 0)
+            continue;
+        int64_t limit = site->buses[sig->bus_index].conf.stale_after_ms;
+        if (limit > 0 && now_ms - r->t_ms > limit) {
+            r->quality = HS_QUALITY_STALE;
+            if (sig->pond_index >= 0)
+                rt->ponds[sig->pond_index].dirty = 1;
+        }
+    }
+}
+
+int hs_rt_write(hs_runtime *rt, int bus, uint8_t unit_id, int coil, uint16_t address,
+                uint16_t value)
+{
+    if (bus < 0 || (size_t)bus >= rt->site.n_buses || rt->buses[bus] == NULL)
+        return -1;
+    return hp_bus_write(rt->buses[bus], unit_id, coil, address, value);
+}

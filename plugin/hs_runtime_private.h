@@ -1,0 +1,136 @@
+/* The runtime's insides, shared by hs_runtime*.c only. One runtime belongs
+ * to the host's thread; the bus threads touch nothing here but the queue
+ * and their own write requests. Every pointer below is owned by the
+ * runtime unless marked borrowed. */
+#ifndef HS_RUNTIME_PRIVATE_H
+#define HS_RUNTIME_PRIVATE_H
+
+#include <stdint.h>
+
+#include "hp_bus.h"
+#include "hp_mqtt.h"
+#include "hp_queue.h"
+#include "hs_alarm.h"
+#include "hs_brine_eval.h"
+#include "hs_command.h"
+#include "hs_conf_transfer.h"
+#include "hs_hydro.h"
+#include "hs_publish.h"
+#include "hs_runtime.h"
+#include "hs_site.h"
+#include "hs_stage_table.h"
+#include "hs_store.h"
+#include "hs_transfer.h"
+
+#define HS_RT_QUEUE_CAPACITY 4096
+#define HS_RT_TICK_MS 100          /* how often the main loop looks at the queue */
+#define HS_RT_MAINTAIN_MS 60000    /* store rollups, retention, checkpoint */
+#define HS_RT_RAIN_SLOTS 64        /* gauge readings kept per transfer for its window */
+#define HS_RT_TREND_SLOTS 120      /* 1/CF points kept per pond for the short-term trend */
+#define HS_RT_TREND_EVERY_S 5.0    /* at most one trend point per this many seconds */
+
+/* Per-transfer memory between cycles. */
+struct hs_rt_transfer {
+    struct hs_transfer_rule rule;
+    struct hs_transfer_state state;
+    struct hs_transfer_decision last;
+    int have_last;
+    hs_pump_write last_write;     /* what was last written (HS_WRITE_NONE: nothing yet) */
+    int64_t last_write_ms;        /* monotonic time of that write */
+    int64_t rain_t[HS_RT_RAIN_SLOTS];   /* gauge history for the rain window */
+    double rain_v[HS_RT_RAIN_SLOTS];
+    unsigned rain_n, rain_head;
+    double predicted_mix_kg_m3;   /* last mixing prediction, NaN unknown */
+};
+
+/* Per-pond memory between cycles. */
+struct hs_rt_pond {
+    hs_pond_view view;
+    int dirty;                    /* new samples since the last evaluation */
+    int64_t last_state_ms;        /* wall time of the last stored state */
+    struct hs_hydro hydro;
+    int hydro_ok;
+    struct hs_hydro_report report;
+    /* recent trend of 1/CF for days-to-target before the daily balance has
+     * a rate: (wall time [s], 1/CF) pairs, newest at trend_head - 1 */
+    double trend_t[HS_RT_TREND_SLOTS], trend_inv_cf[HS_RT_TREND_SLOTS];
+    unsigned trend_n, trend_head;
+    struct hs_stage_table table;  /* stage-storage table when the pond has one */
+    int table_loaded;
+};
+
+struct hs_runtime {
+    struct hs_emit_sink sink;     /* the host's emit (borrowed callback) */
+    char config_path[HS_PATH_MAX];
+    hs_site site;
+    hs_brine_models *models;
+    double gravity_m_s2;
+
+    hp_queue *queue;
+    hp_bus **buses;               /* n = site.n_buses; NULL for a bus without points */
+    uint32_t **bus_signals;       /* per bus: point index -> signal index */
+    size_t *bus_n_points;
+    hs_reading *readings;         /* per signal */
+    int *bus_down;                /* per bus: every point of it failing */
+
+    struct hs_rt_pond *ponds;     /* per pond */
+    struct hs_rt_transfer *transfers; /* per transfer */
+    uint16_t heartbeat;
+
+    hs_store *store;
+    hs_alarm_engine *alarms;
+    hs_alarm_sink alarm_sink;
+    hs_topics topics;
+    hp_mqtt *link;                /* NULL: MQTT off */
+    hs_publisher *publisher;
+    hs_commands commands;
+
+    int64_t next_eval_ms;         /* monotonic */
+    int64_t next_maintain_ms;
+    int64_t next_command_ms;
+    uint64_t samples_in, cycles;
+    int64_t started_ms;
+};
+
+/* hs_runtime_io.c: buses and samples */
+int hs_rt_buses_start(hs_runtime *rt);
+void hs_rt_buses_stop(hs_runtime *rt);
+/* Moves queued samples into readings and the store; marks ponds dirty. */
+size_t hs_rt_drain(hs_runtime *rt, int64_t now_ms);
+/* Marks readings older than their bus's stale limit stale; bus-down flags. */
+void hs_rt_age_readings(hs_runtime *rt, int64_t now_ms);
+/* Writes one register or coil through the bus's worker. 0 / -1. */
+int hs_rt_write(hs_runtime *rt, int bus, uint8_t unit_id, int coil, uint16_t address,
+                uint16_t value);
+
+/* hs_runtime_transfer.c */
+int hs_rt_transfers_init(hs_runtime *rt);
+void hs_rt_transfers_run(hs_runtime *rt, int64_t mono_ms, int64_t now_ms);
+void hs_rt_transfers_safe(hs_runtime *rt);
+
+/* hs_runtime_emit.c: values to the host, state and advice to MQTT */
+void hs_rt_emit_pond(hs_runtime *rt, size_t pond, int64_t now_ms);
+void hs_rt_emit_transfer(hs_runtime *rt, size_t transfer, int64_t now_ms);
+void hs_rt_emit_alarm(hs_runtime *rt, const hs_alarm_event *ev);
+void hs_rt_emit_gateway(hs_runtime *rt, int online, int64_t now_ms);
+int hs_rt_enqueue_state(hs_runtime *rt, size_t pond, int64_t now_ms);
+
+/* hs_runtime_hydro.c */
+int hs_rt_hydro_init(hs_runtime *rt);
+void hs_rt_hydro_update(hs_runtime *rt, size_t pond, int64_t now_ms);
+void hs_rt_hydro_free(hs_runtime *rt);
+/* The pond's geometry for mixing predictions; NULL when unknown. */
+const hc_pond_shape *hs_rt_pond_shape(const hs_runtime *rt, size_t pond);
+
+/* hs_runtime_mqtt.c: the link and the outbox pump; MQTT is off (rt->link
+ * NULL) when the site has no [mqtt] section. */
+int hs_rt_mqtt_open(hs_runtime *rt);
+void hs_rt_mqtt_pump(hs_runtime *rt, int wait_ms);
+/* Sends what the outbox holds (up to wait_ms), publishes the gateway
+ * offline, disconnects. */
+void hs_rt_mqtt_close(hs_runtime *rt, int wait_ms);
+
+int64_t hs_rt_wall_ms(void);
+int64_t hs_rt_mono_ms(void);
+
+#endif
