@@ -8,5 +8,7 @@ const struct hs_command hs_commands[] = {
     {"brine", hs_cmd_brine, "activities and mineral saturation of a brine analysis"},
     {"path", hs_cmd_path, "evaporation path of a feed water, from gypsum to bischofite"},
     {"status", hs_cmd_status, "every pond, alarm and transfer advice now (from the history)"},
+    {"forecast", hs_cmd_forecast, "days until ponds reach their target density and next stage"},
+    {"plan", hs_cmd_plan, "how much brine to move so a pond lands on a target density"},
     {NULL, NULL, NULL},
 };
