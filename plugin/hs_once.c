@@ -16,6 +16,7 @@
 #include "hp_state_json.h"
 #include "hs_commission.h"
 #include "hs_config.h"
+#include "hs_feed_model.h"
 #include "hs_pond_state.h"
 
 typedef struct {
@@ -132,7 +133,8 @@ static json_t *signal_json(const hs_signal *g, const latest *l)
     return o;
 }
 
-static void print_ponds(const hs_site *site, const latest *got, bool json)
+static void print_ponds(const hs_site *site, const latest *got, const hs_paths *paths,
+                        bool json)
 {
     for (size_t p = 0; p < site->n_ponds; p++) {
         hs_pond_inputs in;
@@ -142,7 +144,7 @@ static void print_ponds(const hs_site *site, const latest *got, bool json)
             if (site->signals[s].pond_index == (int)p && got[s].seen)
                 hs_pond_inputs_put(&in, &site->signals[s], got[s].sample.quality,
                                    got[s].sample.value);
-        hs_pond_compute(site, p, &in, &res);
+        hs_pond_compute(site, p, &in, hs_paths_for(paths, site->ponds[p].feed_index), &res);
         const hs_pond *pd = &site->ponds[p];
         if (!json) {
             printf("pond %-10s %-13s", pd->name, hs_role_name(pd->role));
@@ -198,11 +200,18 @@ int hs_once_run(const char *config_path, bool json)
         return HS_EXIT_CONFIG;
     }
     int rc = 1;
+    hs_paths paths;
     latest *got = calloc(site.n_signals ? site.n_signals : 1, sizeof *got);
+    if (hs_paths_build(&site, &paths) != 0) {
+        fprintf(stderr, "halostaged: out of memory\n");
+        free(got);
+        hs_site_free(&site);
+        return 1;
+    }
     if (got && poll_once(&site, got) == 0) {
         if (!json)
             print_text(&site, got);
-        print_ponds(&site, got, json);
+        print_ponds(&site, got, &paths, json);
         rc = 0;
         for (size_t s = 0; s < site.n_signals; s++)
             if (!got[s].seen || got[s].sample.quality != HP_Q_GOOD)
@@ -210,6 +219,7 @@ int hs_once_run(const char *config_path, bool json)
     }
     fflush(stdout);
     free(got);
+    hs_paths_free(&paths);
     hs_site_free(&site);
     return rc;
 }

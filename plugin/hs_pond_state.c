@@ -59,7 +59,7 @@ static void compute_level(const hs_site *site, const hs_pond *p, const hs_pond_i
 }
 
 void hs_pond_compute(const hs_site *site, size_t pond, const hs_pond_inputs *in,
-                     hs_pond_result *out)
+                     const hc_path *path, hs_pond_result *out)
 {
     const hs_pond *p = &site->ponds[pond];
     hc_seawater_options opt;
@@ -91,17 +91,25 @@ void hs_pond_compute(const hs_site *site, size_t pond, const hs_pond_inputs *in,
         out->problem = "no good temperature reading";
     } else if (!isnan(rho)) {
         st = hc_seawater_state_from_density(rho, t, 0.0, &opt, &out->state);
+        if (st == HC_ERR_SALINITY_RANGE && path)
+            st = hc_path_state_from_density(path, rho, t, opt.reference_temperature_c,
+                                            opt.baume_modulus, &out->state);
         if (st == HC_OK)
             out->state.method = method;
         else
             out->problem = st == HC_ERR_SALINITY_RANGE
-                ? "density beyond the seawater range of EOS-80 (S_P 42): needs the brine model"
+                ? "density beyond the seawater range of EOS-80 (S_P 42), and no evaporation "
+                  "path of the feed to go on with"
                 : hc_status_text(st);
     } else if (!isnan(cond)) {
         st = hc_seawater_state_from_conductivity(cond, t, 0.0, &opt, &out->state);
+        if (st == HC_ERR_SALINITY_RANGE && path)
+            st = hc_path_state_from_conductivity(path, cond, t, opt.reference_temperature_c,
+                                                 opt.baume_modulus, NULL, &out->state);
         if (st != HC_OK)
             out->problem = st == HC_ERR_SALINITY_RANGE
-                ? "conductivity beyond PSS-78 (S_P 42): needs a density signal or the brine model"
+                ? "conductivity beyond PSS-78 (S_P 42), and no evaporation path of the feed "
+                  "to go on with"
                 : hc_status_text(st);
     } else {
         out->problem = "no good density, pressure pair or conductivity reading";

@@ -1,16 +1,18 @@
 /* One pond's brine state and depth from its latest signal values: the
  * mapping from field signals to calc (DESIGN.md "Where the brine state comes
  * from"). Density from a densitometer first, then from the two pressure
- * sensors (rho = dP / (g dz)), else conductivity with temperature through
- * PSS-78. Depth from the level pressure with the pond's own brine density,
- * or from the distance sensor. Beyond the seawater range (S_P 42) the state
- * stays incomplete and says why, until a brine model is available.
+ * sensors (rho = dP / (g dz)), else conductivity with temperature. Inside
+ * the seawater range (S_P <= 42) EOS-80 / PSS-78; beyond it the pond feed's
+ * evaporation path (hc_path: density lookup, or calc's brine conductivity
+ * model, flagged as such). Depth from the level pressure with the pond's own
+ * brine density, or from the distance sensor.
  * Pure apart from reading the site: no I/O, no allocation. */
 #ifndef HS_POND_STATE_H
 #define HS_POND_STATE_H
 
 #include <stdbool.h>
 
+#include "hc_path.h"
 #include "hc_state.h"
 #include "hc_status.h"
 #include "hp_point.h"
@@ -38,8 +40,9 @@ double hs_signal_si(const hs_signal *g, double value);
 /* Records one decoded sample of signal g into in. */
 void hs_pond_inputs_put(hs_pond_inputs *in, const hs_signal *g, hp_quality quality,
                         double value);
-/* Fills out for pond index pond of site. */
+/* Fills out for pond index pond of site. path: the evaporation path of the
+ * pond's feed (hs_feed_model.h), or NULL to stay within the seawater range. */
 void hs_pond_compute(const hs_site *site, size_t pond, const hs_pond_inputs *in,
-                     hs_pond_result *out);
+                     const hc_path *path, hs_pond_result *out);
 
 #endif

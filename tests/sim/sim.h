@@ -12,6 +12,7 @@
 #include <stdbool.h>
 #include <stdint.h>
 
+#include "hs_feed_model.h"
 #include "hs_site.h"
 
 typedef enum {
@@ -40,7 +41,7 @@ typedef struct {
 
 typedef struct {
     double depth_m;        /* brine depth above the floor */
-    double salinity_g_kg;  /* dissolved salts per kg of brine */
+    double cf;             /* concentration factor against the feed */
     double temperature_c;
     double rain_total_m;   /* what the rain gauge has counted */
     bool pumping;
@@ -54,6 +55,8 @@ typedef struct {
     double sim_time_s;     /* simulated seconds since the epoch */
     pthread_mutex_t lock;  /* guards ponds and device maps */
     sim_pond *ponds;       /* site.n_ponds */
+    hs_paths paths;        /* evaporation paths of the feeds (calc) */
+    double max_cf;         /* CF stops rising here (end of the paths) */
     sim_device *devices;
     size_t n_devices;
     sim_fault faults[SIM_FAULTS_MAX];

@@ -1,58 +1,51 @@
 /* The simulator's pond model and register images.
- * Physics kept simple for a test tool:
- * - seawater range (S_P <= 42): density EOS-80 and conductivity PSS-78
- *   through calc (hc_eos80_rho, hc_pss78_c_from_sp), taking S_P = S / 1.00488
- *   (S_R = 35.16504/35 S_P, Millero et al. 2008);
- * - beyond: density continues linearly from S_P 42 at 0.75 kg/m3 per g/kg
- *   (an approximation for NaCl-dominated brine, no source), conductivity from
- *   the CRC Handbook NaCl(aq) table at 20 C (shared/DOMAIN.md §9) with a
- *   linear 2 %/K compensation (typical, DOMAIN.md §9);
- * - evaporation 6 mm/day on average, by season and by day, slowed by
- *   salinity; rain events; pumps move depth from a pond to its next. */
+ * Each pond holds a depth, a concentration factor CF (initial water mass /
+ * remaining water mass, as calc uses it) and a temperature. Brine properties
+ * come from calc, so that the daemon's inverse can be checked end to end:
+ * - seawater range (S_P = 35 CF <= 42): density EOS-80 and conductivity
+ *   PSS-78 (hc_eos80_rho, hc_pss78_c_from_sp);
+ * - beyond: the feed's fractional evaporation path (hc_path_state_from_cf)
+ *   for density and salinity, and calc's brine conductivity model
+ *   (hc_brine_conductivity) for conductivity.
+ * The rest is simple on purpose (a test tool, no source): evaporation 6 mm a
+ * day on average, by season and by day, slowed by salinity; rain events;
+ * pumps move depth from a pond to its next, mixing by water mass. */
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
+#include "hc_brine_cond.h"
 #include "hc_eos80.h"
 #include "hc_level.h"
 #include "hc_pss78.h"
 #include "sim.h"
 
-#define SR_PER_SP (35.16504 / 35.0)
-#define HALITE_SAT_G_KG 318.0   /* NaCl saturation ~26.4 % (CRC), sim cap */
+#define FEED_SP 35.0
 
-static double density(double s_g_kg, double t_c)
-{
-    double sp = s_g_kg / SR_PER_SP, rho;
-    if (sp <= 42.0 && hc_eos80_rho(sp, t_c, 0.0, &rho) == HC_OK)
-        return rho;
-    double rho42;
-    if (hc_eos80_rho(42.0, t_c, 0.0, &rho42) != HC_OK)
-        rho42 = 1031.0;
-    return rho42 + 0.75 * (s_g_kg - 42.0 * SR_PER_SP);
-}
+typedef struct {
+    double density_kg_m3;
+    double conductivity_ms_cm;
+    double salinity_g_kg;
+} brine_props;
 
-static double conductivity(double s_g_kg, double t_c)
+static void properties(const sim *s, int pond, double cf, double t_c, brine_props *out)
 {
-    double sp = s_g_kg / SR_PER_SP, c;
-    if (sp <= 42.0 && hc_pss78_c_from_sp(sp, t_c, 0.0, &c) == HC_OK)
-        return c;
-    /* CRC Handbook NaCl(aq), 20 C: mass % -> mS/cm. */
-    static const double pct[] = {0.5, 1, 2, 5, 10, 15, 20, 25};
-    static const double ms[] = {8.2, 16.0, 30.2, 70.1, 126, 171, 204, 222};
-    double w = s_g_kg / 10.0, c20 = ms[7];
-    for (int i = 0; i < 7; i++)
-        if (w <= pct[i + 1]) {
-            c20 = ms[i] + (ms[i + 1] - ms[i]) * (w - pct[i]) / (pct[i + 1] - pct[i]);
-            break;
-        }
-    double c_pss42;
-    if (hc_pss78_c_from_sp(42.0, 20.0, 0.0, &c_pss42) != HC_OK)
-        c_pss42 = 60.0;
-    if (c20 < c_pss42)
-        c20 = c_pss42; /* keep it rising through the seam between the two */
-    return c20 * (1.0 + 0.02 * (t_c - 20.0));
+    double sp = FEED_SP * cf;
+    out->density_kg_m3 = out->conductivity_ms_cm = out->salinity_g_kg = NAN;
+    if (sp <= 42.0) {
+        (void)hc_eos80_rho(sp, t_c, 0.0, &out->density_kg_m3);
+        (void)hc_pss78_c_from_sp(sp, t_c, 0.0, &out->conductivity_ms_cm);
+        out->salinity_g_kg = sp * 35.16504 / 35.0;
+        return;
+    }
+    const hc_path *path = hs_paths_for(&s->paths, s->site.ponds[pond].feed_index);
+    hc_brine_state st;
+    if (!path || hc_path_state_from_cf(path, cf, t_c, 20.0, 145.0, &st) != HC_OK)
+        return;
+    out->density_kg_m3 = st.density_kg_m3;
+    out->salinity_g_kg = st.salinity_g_kg;
+    (void)hc_brine_conductivity(st.salinity_g_kg, t_c, &out->conductivity_ms_cm);
 }
 
 static double noise(sim *s, double amplitude)
@@ -77,29 +70,42 @@ const sim_fault *sim_fault_for(const sim *s, int bus, int unit)
     return NULL;
 }
 
-/* A starting salinity in the middle of the pond's density band. */
-static double initial_salinity(const hs_pond *p)
+/* A starting CF in the middle of the pond's density band (at 20 C). */
+static double initial_cf(const sim *s, int pond)
 {
+    const hs_pond *p = &s->site.ponds[pond];
     double lo = isnan(p->density_in_kg_m3) ? 1025.0 : p->density_in_kg_m3;
-    double hi = isnan(p->density_out_kg_m3) ? lo + 20.0 : p->density_out_kg_m3;
-    double target = 0.5 * (lo + hi), s = 0.0;
-    for (int i = 0; i < 200 && density(s, 20.0) < target; i++)
-        s += 2.0;
-    return s > HALITE_SAT_G_KG + 60 ? HALITE_SAT_G_KG + 60 : s;
+    double hi = isnan(p->density_out_kg_m3) ? lo + 10.0 : p->density_out_kg_m3;
+    double target = 0.5 * (lo + hi), sp, cf;
+    if (hc_eos80_sp_from_rho(target, 20.0, 0.0, &sp) == HC_OK && sp <= 42.0)
+        return sp > 1.0 ? sp / FEED_SP : 1.0 / FEED_SP;
+    const hc_path *path = hs_paths_for(&s->paths, p->feed_index);
+    if (path && hc_path_cf_at_density(path, target, 20.0, &cf, NULL) == HC_OK)
+        return cf;
+    return 1.0;
 }
 
 int sim_model_init(sim *s)
 {
     s->ponds = calloc(s->site.n_ponds ? s->site.n_ponds : 1, sizeof *s->ponds);
-    if (!s->ponds)
+    if (!s->ponds || hs_paths_build(&s->site, &s->paths) != 0)
         return -1;
+    /* CF rises no further than 95 % of the shortest path used. */
+    s->max_cf = 1.2;
+    for (size_t i = 0; i < s->site.n_ponds; i++) {
+        const hc_path *path = hs_paths_for(&s->paths, s->site.ponds[i].feed_index);
+        size_t n = path ? hc_path_step_count(path) : 0;
+        double last = n ? 0.95 * hc_path_step(path, n - 1)->concentration_factor : 1.2;
+        if (i == 0 || last < s->max_cf)
+            s->max_cf = last;
+    }
     for (size_t i = 0; i < s->site.n_ponds; i++) {
         const hs_pond *p = &s->site.ponds[i];
         sim_pond *q = &s->ponds[i];
         double lo = isnan(p->level_min_m) ? 0.2 : p->level_min_m;
         double hi = isnan(p->level_max_m) ? lo + 0.5 : p->level_max_m;
         q->depth_m = 0.5 * (lo + hi);
-        q->salinity_g_kg = initial_salinity(p);
+        q->cf = initial_cf(s, (int)i);
         q->temperature_c = 22.0;
     }
     /* One register image per (bus, unit) that signals use. */
@@ -144,6 +150,7 @@ void sim_model_free(sim *s)
         modbus_mapping_free(s->devices[i].map);
     free(s->devices);
     free(s->ponds);
+    hs_paths_free(&s->paths);
     s->devices = NULL;
     s->ponds = NULL;
 }
@@ -153,10 +160,12 @@ static double signal_si(sim *s, const hs_signal *sg, double g)
 {
     const hs_pond *p = &s->site.ponds[sg->pond_index];
     const sim_pond *q = &s->ponds[sg->pond_index];
-    double rho = density(q->salinity_g_kg, q->temperature_c);
+    brine_props b;
+    properties(s, sg->pond_index, q->cf, q->temperature_c, &b);
+    double rho = b.density_kg_m3;
     switch (sg->quantity) {
     case HS_Q_CONDUCTIVITY:
-        return conductivity(q->salinity_g_kg, q->temperature_c) * (1.0 + noise(s, 0.002));
+        return b.conductivity_ms_cm * (1.0 + noise(s, 0.002));
     case HS_Q_TEMPERATURE: return q->temperature_c + noise(s, 0.05);
     case HS_Q_LEVEL_PRESSURE:
         return fmax(0.0, rho * g * (q->depth_m - p->pressure_height_m)) + noise(s, 5.0);
@@ -210,7 +219,7 @@ void sim_model_step(sim *s, double dt_s)
         q->temperature_c = 22.0 + 6.0 * season + 7.0 * (sun - 0.3);
         /* 6 mm/day mean, twice as fast at noon, slower in salty brine (water
          * activity falls to ~0.75 at halite saturation, DOMAIN.md §10). */
-        double activity = 1.0 - 0.25 * fmin(1.0, q->salinity_g_kg / HALITE_SAT_G_KG);
+        double activity = 1.0 - 0.25 * fmin(1.0, (q->cf - 1.0) / 10.0);
         double evap_m_s = 6e-3 / 86400.0 * (1.0 + 0.4 * season) * 2.0 * sun * activity;
         double before = q->depth_m;
         q->depth_m -= evap_m_s * dt_s;
@@ -220,8 +229,8 @@ void sim_model_step(sim *s, double dt_s)
         }
         if (q->depth_m < 0.01)
             q->depth_m = 0.01;
-        /* Salt stays; beyond halite saturation it crystallises out. */
-        q->salinity_g_kg = fmin(HALITE_SAT_G_KG + 40.0, q->salinity_g_kg * before / q->depth_m);
+        /* Salts stay: the water mass, and so CF, follows the depth. */
+        q->cf = fmin(s->max_cf, q->cf * before / q->depth_m);
         /* Pumps: the coil at the pump-run address starts the pond's pump;
          * it moves 50 mm/h of depth down the chain, and stops itself at
          * level_min (the sim's own interlock). */
@@ -236,8 +245,8 @@ void sim_model_step(sim *s, double dt_s)
             const hs_pond *pn = &s->site.ponds[p->next_index];
             double a_to = isnan(pn->floor_area_m2) ? 1e4 : pn->floor_area_m2;
             double add = moved * a_from / a_to;
-            nx->salinity_g_kg = (nx->salinity_g_kg * nx->depth_m + q->salinity_g_kg * add) /
-                                (nx->depth_m + add);
+            /* Feed-water equivalents add up: W c = W1 c1 + W2 c2. */
+            nx->cf = (nx->cf * nx->depth_m + q->cf * add) / (nx->depth_m + add);
             nx->depth_m += add;
             q->depth_m -= moved;
         }
@@ -261,11 +270,13 @@ int sim_truth_write(sim *s, const char *path)
     fprintf(f, "{\"time_s\": %.3f, \"ponds\": {", s->sim_time_s);
     for (size_t i = 0; i < s->site.n_ponds; i++) {
         const sim_pond *q = &s->ponds[i];
-        fprintf(f, "%s\"%s\": {\"salinity_g_kg\": %.6f, \"temperature_c\": %.4f, "
-                "\"depth_m\": %.6f, \"density_kg_m3\": %.4f, \"pumping\": %s}",
-                i ? ", " : "", s->site.ponds[i].name, q->salinity_g_kg, q->temperature_c,
-                q->depth_m, density(q->salinity_g_kg, q->temperature_c),
-                q->pumping ? "true" : "false");
+        brine_props b;
+        properties(s, (int)i, q->cf, q->temperature_c, &b);
+        fprintf(f, "%s\"%s\": {\"concentration_factor\": %.6f, \"salinity_g_kg\": %.4f, "
+                "\"temperature_c\": %.4f, \"depth_m\": %.6f, \"density_kg_m3\": %.4f, "
+                "\"conductivity_ms_cm\": %.4f, \"pumping\": %s}",
+                i ? ", " : "", s->site.ponds[i].name, q->cf, b.salinity_g_kg, q->temperature_c,
+                q->depth_m, b.density_kg_m3, b.conductivity_ms_cm, q->pumping ? "true" : "false");
     }
     fprintf(f, "}}\n");
     pthread_mutex_unlock(&s->lock);
