@@ -123,6 +123,7 @@ typedef struct {
 } hs_feed;
 
 struct hs_transfer_conf;
+struct hs_mqtt_conf;
 
 typedef struct hs_site {
     char path[HS_PATH_MAX];        /* the configuration file as given */
