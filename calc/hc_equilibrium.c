@@ -197,6 +197,37 @@ static hc_status newton(const struct problem *p, double n[], int *iterations)
     return HC_ERR_NO_CONVERGENCE;
 }
 
+/* Scales the amounts down, as little as needed, until every dissolved
+ * amount and the water stay positive (the brine alone always qualifies).
+ * Used after a mineral leaves the assemblage with a negative amount, whose
+ * ions the others may have been borrowing. */
+static void make_feasible(const struct problem *p, double amount[])
+{
+    double mol[HC_ION_COUNT], water, trial[MAXA];
+    if (composition(p, amount, mol, &water) == 0) {
+        int positive = 1;
+        for (int i = 0; i < HC_ION_COUNT; i++)
+            positive &= !(p->base_mol[i] > 0.0) || mol[i] > 0.0;
+        if (positive)
+            return;
+    }
+    double lo = 0.0, hi = 1.0;
+    for (int it = 0; it < 50; it++) {
+        double mid = 0.5 * (lo + hi);
+        for (int k = 0; k < p->count; k++)
+            trial[k] = amount[k] * mid;
+        int ok = composition(p, trial, mol, &water) == 0;
+        for (int i = 0; ok && i < HC_ION_COUNT; i++)
+            ok = !(p->base_mol[i] > 0.0) || mol[i] > 0.0;
+        if (ok)
+            lo = mid;
+        else
+            hi = mid;
+    }
+    for (int k = 0; k < p->count; k++)
+        amount[k] *= lo * (1.0 - 1e-6);
+}
+
 /* Minerals with the same ions (hydrates, polymorphs) coexist only where
  * the water activity is fixed by the pair. */
 static int same_ions(hc_mineral a, hc_mineral b)
@@ -230,12 +261,8 @@ hc_status hc_equilibrate(const hc_pitzer_params *pitzer, const hc_mineral_set *s
             p.list[p.count] = m;
             amount[p.count++] = fmax(0.0, n[m]);
         }
-    /* A guess that would use up an ion or the water is worth nothing but
-     * its assemblage. */
-    double mol[HC_ION_COUNT], water;
-    if (composition(&p, amount, mol, &water) != 0)
-        for (int k = 0; k < p.count; k++)
-            amount[k] = 0.0;
+    /* A guess that would use up an ion or the water is cut back. */
+    make_feasible(&p, amount);
     out->iterations = 0;
     unsigned char blocked[HC_MINERAL_COUNT] = {0}, swapped[HC_MINERAL_COUNT] = {0};
     int restarted = 0, joined = -1;
@@ -292,6 +319,7 @@ hc_status hc_equilibrate(const hc_pitzer_params *pitzer, const hc_mineral_set *s
                 amount[k] = amount[k + 1];
             }
             p.count--;
+            make_feasible(&p, amount);
             continue;
         }
         /* Add the most supersaturated absent mineral, if any, ranked by SI

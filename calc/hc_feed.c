@@ -4,19 +4,10 @@
 
 #include "hc_brine_density.h"
 #include "hc_feed.h"
+#include "hc_seawater.h"
 
 #define M_BR 79.904 /* g/mol, IUPAC 2013 */
 #define M_SR 87.62
-
-/* Reference composition, g per kg of seawater at S_P = 35, S_R = 35.16504 g/kg
- * (Millero et al. 2008, Table 4). */
-static const double ref_g_kg[HC_ION_COUNT] = {
-    [HC_ION_NA] = 10.78145, [HC_ION_K] = 0.39910,  [HC_ION_MG] = 1.28372,
-    [HC_ION_CA] = 0.41208,  [HC_ION_CL] = 19.35271, [HC_ION_SO4] = 2.71235,
-    [HC_ION_HCO3] = 0.10481, [HC_ION_CO3] = 0.01434,
-};
-static const double ref_br_g_kg = 0.06728, ref_sr_g_kg = 0.00795;
-static const double ref_sr_total = 35.16504; /* S_R [g/kg] at S_P = 35 */
 
 /* Moles per kg solution -> model molality; lumps Br and Sr, drops carbonate,
  * balances with Cl. mol[] and the lumped species are per kg of solution. */
@@ -57,14 +48,23 @@ hc_status hc_feed_seawater(double sp, hc_feed *out)
         return HC_ERR_NOT_FINITE;
     if (sp < 2.0 || sp > 42.0)
         return HC_ERR_SALINITY_RANGE;
+    /* The reference composition as it stands (hc_seawater: Millero et al.
+     * 2008, Table 4), then lumped and balanced here like any analysis. */
+    hc_sw_composition c;
+    hc_status st = hc_seawater_composition(sp, 0, &c);
+    if (st != HC_OK)
+        return st;
     memset(out, 0, sizeof *out);
     snprintf(out->name, sizeof out->name, "seawater");
-    double scale = sp / 35.0; /* S_R = (35.16504 / 35) S_P, composition constant */
-    double mol[HC_ION_COUNT];
-    for (int i = 0; i < HC_ION_COUNT; i++)
-        mol[i] = scale * ref_g_kg[i] / hc_ion_molar_mass((hc_ion)i);
-    double water = 1.0 - scale * ref_sr_total / 1000.0;
-    hc_status st = finish(mol, scale * ref_br_g_kg / M_BR, scale * ref_sr_g_kg / M_SR, water, out);
+    static const struct { hc_sw_ion from; hc_ion to; } map[] = {
+        {HC_SW_NA, HC_ION_NA}, {HC_SW_K, HC_ION_K}, {HC_SW_MG, HC_ION_MG},
+        {HC_SW_CA, HC_ION_CA}, {HC_SW_CL, HC_ION_CL}, {HC_SW_SO4, HC_ION_SO4},
+        {HC_SW_HCO3, HC_ION_HCO3}, {HC_SW_CO3, HC_ION_CO3},
+    };
+    double water = 1.0 - c.salinity_g_kg / 1000.0, mol[HC_ION_COUNT] = {0};
+    for (size_t i = 0; i < sizeof map / sizeof map[0]; i++)
+        mol[map[i].to] = c.molality[map[i].from] * water; /* per kg of seawater */
+    st = finish(mol, c.molality[HC_SW_BR] * water, c.molality[HC_SW_SR] * water, water, out);
     out->practical_salinity = sp;
     return st;
 }

@@ -54,16 +54,21 @@ static const struct mineral_def defs[HC_MINERAL_COUNT] = {
                            "MgCl2.6H2O"},
 };
 
-/* Van 't Hoff data: Delta_r H [J/mol] and Delta_r Cp [J/(mol K)] at 25 degC
- * from the NBS tables (Wagman et al. 1982) [from memory]:
- * halite: dH = -240.12 - 167.159 + 411.153 kJ; dCp = 46.4 - 136.4 - 50.50.
- * gypsum: dH = -542.83 - 909.27 - 2 (285.83) + 2022.63 kJ;
- *         dCp = -31.5 (Shock & Helgeson 1988) - 293 + 2 (75.29) - 186.02. */
+/* Halite: van 't Hoff data, Delta_r H [J/mol] and Delta_r Cp [J/(mol K)] at
+ * 25 degC from the NBS tables (Wagman et al. 1982) [from memory]:
+ * dH = -240.12 - 167.159 + 411.153 kJ; dCp = 46.4 - 136.4 - 50.50. */
 struct vant_hoff { hc_mineral mineral; double dh, dcp; };
 static const struct vant_hoff vh[] = {
     {HC_MIN_HALITE, 3874.0, -140.5},
-    {HC_MIN_GYPSUM, -1130.0, -360.0},
 };
+
+/* Gypsum: log10 K(T) = A + B T + C/T + D log10 T with the coefficients of
+ * the PHREEQC database phreeqc.dat (Parkhurst & Appelo 2013, USGS Techniques
+ * and Methods 6-A43), used as a change from 25 degC. */
+static double gypsum_analytic(double tk)
+{
+    return 68.2401 - 3221.51 / tk - 25.0627 * log10(tk);
+}
 
 /* Returns the coefficient, 0 for invalid arguments. */
 int hc_mineral_ion_coeff(hc_mineral mineral, hc_ion ion)
@@ -100,14 +105,17 @@ hc_stage hc_mineral_stage(hc_mineral mineral)
 /* Returns 1 or 0. */
 int hc_mineral_has_temperature_function(hc_mineral mineral)
 {
+    if (mineral == HC_MIN_GYPSUM)
+        return 1;
     for (size_t i = 0; i < sizeof vh / sizeof vh[0]; i++)
         if (vh[i].mineral == mineral)
             return 1;
     return 0;
 }
 
-/* ln K(T) = ln K(T0) + dH/R (1/T0 - 1/T) + dCp/R (ln(T/T0) + T0/T - 1),
- * the integrated Gibbs-Helmholtz equation with a constant dCp.
+/* Halite: ln K(T) = ln K(T0) + dH/R (1/T0 - 1/T) + dCp/R (ln(T/T0) + T0/T - 1),
+ * the integrated Gibbs-Helmholtz equation with a constant dCp; gypsum: the
+ * analytic expression above. Both as changes from HMW84's 25 degC value.
  * Returns HC_OK, HC_ERR_NOT_FINITE, HC_ERR_TEMPERATURE_RANGE, HC_ERR_ARGUMENT. */
 hc_status hc_mineral_log_k(hc_mineral mineral, double t_c, double *log_k)
 {
@@ -127,6 +135,8 @@ hc_status hc_mineral_log_k(hc_mineral mineral, double t_c, double *log_k)
                         vh[i].dcp / r_gas * (log(tk / t0) + t0 / tk - 1.0);
         lk += ln_inc / log(10.0);
     }
+    if (mineral == HC_MIN_GYPSUM)
+        lk += gypsum_analytic(tk) - gypsum_analytic(t0);
     *log_k = lk;
     return HC_OK;
 }

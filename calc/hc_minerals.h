@@ -2,10 +2,12 @@
  * log10 K and saturation indices SI = log10(IAP / K).
  *
  * log K at 25 degC: Harvie, Moller & Weare (1984, GCA 48, 723), Table 3.
- * Temperature: halite and gypsum follow the van 't Hoff equation with a
- * constant heat capacity of reaction, with Delta_r H and Delta_r Cp from the
- * NBS tables (Wagman et al. 1982, J. Phys. Chem. Ref. Data 11, suppl. 2)
- * [values from memory, checked against measured solubilities in the tests].
+ * Temperature, as changes from HMW84's 25 degC values: halite follows the
+ * van 't Hoff equation with a constant heat capacity of reaction, Delta_r H
+ * and Delta_r Cp from the NBS tables (Wagman et al. 1982, J. Phys. Chem.
+ * Ref. Data 11, suppl. 2) [values from memory, checked against measured
+ * solubilities in the tests]; gypsum follows the analytic log K of the
+ * PHREEQC database phreeqc.dat (Parkhurst & Appelo 2013).
  * Every other mineral keeps its 25 degC log K; its SI away from 25 degC is
  * approximate, which the evaporation path reports.
  * Error convention: hc_status (HC_OK = 0). Pure and re-entrant. */

@@ -1,7 +1,7 @@
 /* The evaporation path of a site's feed water: what is dissolved, what has
  * deposited and how saturated each mineral is, from the feed to bischofite.
  *
- * Built once per site (hc_path_build allocates; about 30 ms, see make bench)
+ * Built once per site (hc_path_build allocates; about 2 ms, see make bench)
  * and then read per sample without allocation (microseconds).
  * Water is removed in steps of 2 % of the remaining liquid water (a
  * geometric grid in ln W); at each step the brine is brought to equilibrium

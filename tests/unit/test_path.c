@@ -240,6 +240,44 @@ static void newton_from_bad_starts(void **unused)
     assert_true(ref_present[HC_MIN_HALITE]);
 }
 
+static void every_temperature_reaches_bischofite(void **unused)
+{
+    (void)unused;
+    /* Robustness of the solver over the model's range (no source needed):
+     * both modes reach bischofite at 0..50 degC for feeds of S_P 20-40, and
+     * halite begins between CF 10 and 11.2 for S_P 35 at every temperature
+     * (its solubility changes by 3 % over the range, Potter et al. 1977 [S]). */
+    for (double sp = 20.0; sp <= 40.0; sp += 10.0) {
+        hc_feed f;
+        assert_int_equal(hc_feed_seawater(sp, &f), HC_OK);
+        for (double t = 0.0; t <= 50.0; t += 5.0)
+            for (int mode = 0; mode < 2; mode++) {
+                hc_path *p = NULL;
+                assert_int_equal(hc_path_build(&f, t, (hc_path_mode)mode, &p), HC_OK);
+                assert_true(hc_path_complete(p));
+                if (sp == 30.0) {
+                    /* S_P 30 feed: halite at CF 10-11.2 times 35/30 */
+                    double cf = hc_path_stage_cf(p, HC_STAGE_HALITE) * 30.0 / 35.0;
+                    assert_true(cf > 10.0 && cf < 11.2);
+                }
+                hc_path_free(p);
+            }
+    }
+}
+
+static void bittern_drain_before_magnesium_salts(void **unused)
+{
+    (void)unused;
+    /* Common practice, no source: bittern is drained at about 29-30 deg Be,
+     * before magnesium salts spoil the salt (one published balance uses 29,
+     * Baseggio 1974 [S]). The model must put the magnesium sulfates later. */
+    const hc_path_onset *o = onset_of(frac_path, HC_MIN_EPSOMITE);
+    assert_non_null(o);
+    assert_true(o->baume > 30.0);
+    o = onset_of(frac_path, HC_MIN_KAINITE);
+    assert_true(o != NULL && o->baume > 30.0);
+}
+
 static void bad_arguments(void **unused)
 {
     (void)unused;
@@ -265,6 +303,8 @@ int main(void)
         cmocka_unit_test(density_along_path),
         cmocka_unit_test(equilibrium_mode_redissolves),
         cmocka_unit_test(newton_from_bad_starts),
+        cmocka_unit_test(every_temperature_reaches_bischofite),
+        cmocka_unit_test(bittern_drain_before_magnesium_salts),
         cmocka_unit_test(bad_arguments),
     };
     return cmocka_run_group_tests(tests, setup, teardown);
