@@ -86,7 +86,9 @@ const hc_path_point *hc_path_step(const hc_path *path, size_t i); /* NULL past t
 double hc_path_temperature(const hc_path *path);
 hc_path_mode hc_path_mode_of(const hc_path *path);
 const hc_feed *hc_path_feed(const hc_path *path);
-int hc_path_complete(const hc_path *path); /* 1 when it reached bischofite */
+/* 1 when the path reached bischofite. A feed without enough magnesium
+ * never does, and a calcium-chloride brine leaves the model's minerals. */
+int hc_path_complete(const hc_path *path);
 /* Largest amount of `mineral` present at any step [mol per kg feed]. */
 double hc_path_max_precipitated(const hc_path *path, hc_mineral mineral);
 

@@ -327,8 +327,10 @@ static void print_tables(const struct path_request *rq, const hc_path *p)
                hc_stage_name(s.stage), dep);
     }
     if (!hc_path_complete(p))
-        printf("\nwarning: the path stopped before bischofite (the solver did not converge "
-               "further)\n");
+        printf("\nwarning: the path ends at CF %.0f without bischofite: the feed has too little "
+               "magnesium, or its brine leaves what the model covers (ionic strength above 40 "
+               "mol/kg, or minerals it lacks such as the calcium chlorides)\n",
+               hc_path_step(p, count - 1)->concentration_factor);
     if (rq->t_c < 0.0 || rq->t_c > 50.0)
         printf("\nwarning: %s\n", hc_warning_text(HC_WARN_TEMPERATURE_EXTRAPOLATED));
 }

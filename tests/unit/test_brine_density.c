@@ -39,7 +39,7 @@ static void laliberte_own_check_values(void **unused)
     double m[HC_ION_COUNT], rho;
     nacl_solution(0.0037838838, m);
     assert_int_equal(hc_brine_density_mixture(m, 0.0, &rho), HC_OK);
-    assert_true(fabs(rho - 1002.6250120) < 2e-3); /* molar masses differ in the 5th digit */
+    assert_true(fabs(rho - 1002.6250120) < 1e-5);
 }
 
 static void eos80_reference_is_right(void **unused)
