@@ -147,7 +147,7 @@ hc_status hc_path_build_ex(const hc_feed *feed, double t_c, hc_path_mode mode,
         opt.step = 0.02;
     if (opt.max_cf == 0.0)
         opt.max_cf = 2000.0;
-    if (!(opt.step > 0.001 && opt.step <= 0.2) || !(opt.max_cf > 1.0))
+    if (!(opt.step > 0.001 && opt.step <= 0.2) || !(opt.max_cf > 1.0 && opt.max_cf <= 1e5))
         return HC_ERR_ARGUMENT;
     hc_pitzer_params pitzer;
     hc_mineral_set set;

@@ -66,7 +66,7 @@ typedef struct {
 typedef struct {
     unsigned mineral_flags; /* HC_MINERALS_* (anhydrite is off by default) */
     double step;            /* ln W step; 0 gives 0.02 */
-    double max_cf;          /* stop beyond this CF; 0 gives 2000 */
+    double max_cf;          /* stop beyond this CF (1..1e5); 0 gives 2000 */
 } hc_path_options;
 
 /* Builds the path of `feed` at t_c [degC]. *out is allocated on success

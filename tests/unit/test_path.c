@@ -292,6 +292,17 @@ static void bad_arguments(void **unused)
     hc_path_options opt = {.step = 5.0};
     assert_int_equal(hc_path_build_ex(&f, 25.0, HC_PATH_FRACTIONAL, &opt, &p),
                      HC_ERR_ARGUMENT);
+    opt.step = 0.0;
+    opt.max_cf = INFINITY;
+    assert_int_equal(hc_path_build_ex(&f, 25.0, HC_PATH_FRACTIONAL, &opt, &p),
+                     HC_ERR_ARGUMENT);
+    opt.max_cf = NAN;
+    assert_int_equal(hc_path_build_ex(&f, 25.0, HC_PATH_FRACTIONAL, &opt, &p),
+                     HC_ERR_ARGUMENT);
+    assert_null(p);
+    /* A feed with a negative amount is refused, not built. */
+    f.molality[HC_ION_K] = -0.01;
+    assert_int_equal(hc_path_build(&f, 25.0, HC_PATH_FRACTIONAL, &p), HC_ERR_NEGATIVE);
     assert_null(p);
     hc_path_free(NULL);
 }
