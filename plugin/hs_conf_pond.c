@@ -5,6 +5,7 @@
 #include <string.h>
 
 #include "hs_conf_keys.h"
+#include "hs_stage_table.h"
 
 typedef hs_pond P;
 
@@ -102,11 +103,20 @@ static void pond_finish(hs_site *site, hs_cfg *cfg, size_t index)
                      "or stage_storage", p->name);
     if (has_table) {
         FILE *f = fopen(p->stage_storage, "r");
-        if (!f)
+        if (!f) {
             hs_cfg_error(cfg, where(cfg, index, "stage_storage"),
                          "stage_storage: cannot open %s", p->stage_storage);
-        else
+        } else {
             fclose(f);
+            /* The table itself: every defect named by its own file and line
+             * (a non-monotone table above all). */
+            struct hs_stage_table t;
+            char why[HS_DIAG_LEN - 64];
+            if (hs_stage_table_load(p->stage_storage, &t, why, sizeof why) != 0)
+                hs_cfg_error(cfg, where(cfg, index, "stage_storage"), "stage_storage: %s", why);
+            else
+                hs_stage_table_free(&t);
+        }
     }
     if (hs_cfg_key_line(cfg, &hs_section_pond, index, "side_slope") && !has_area)
         hs_cfg_error(cfg, where(cfg, index, "side_slope"), "side_slope needs area");

@@ -53,6 +53,11 @@ int hs_rt_hydro_init(hs_runtime *rt)
         rp->report.days_to_next_stage_low = rp->report.days_to_next_stage_high = NAN;
         rp->report.dissolved_salt_t = rp->report.deposited_salt_t = NAN;
         rp->report.net_evaporation_mm_day = NAN;
+        /* the rest of the report's numbers are unknown too, not zero */
+        rp->report.area_m2 = rp->report.expected_evaporation_mm_day = NAN;
+        rp->report.net_evaporation_low_mm_day = rp->report.net_evaporation_high_mm_day = NAN;
+        rp->report.days_to_target_expected = rp->report.days_to_next_stage_expected = NAN;
+        rp->report.balance_density_kg_m3 = NAN;
         if (shape_of(p, rp, &cfg.shape) != 0)
             continue;
         rp->hydro_ok = hs_hydro_init(&rp->hydro, &cfg) == 0;

@@ -53,6 +53,7 @@ static void usage(FILE *out)
             "  --rate-mm-day E          net evaporation [mm/day]\n"
             "  --rate-spread S          its day-to-day spread (one s.d.) [mm/day]\n"
             "  --target-density KG_M3   target at the reference temperature [kg/m3]\n"
+            "  --target-cf CF           or a target concentration factor (against the feed)\n"
             "  --reference-temperature DEGC   for the target density (default 15)\n"
             "  --humidity RH            air relative humidity 0..1: slow the rate as the\n"
             "                           brine's water activity falls (Salhotra et al. 1985)\n"
@@ -65,7 +66,7 @@ static void usage(FILE *out)
 struct request {
     struct hs_cli_pond pond;
     struct hs_hcli_common common;
-    double rate_mm_day, rate_spread_mm_day, target_kg_m3, humidity, pan_mm_day;
+    double rate_mm_day, rate_spread_mm_day, target_kg_m3, target_cf, humidity, pan_mm_day;
     int crystalliser;
     const char *only_pond;
 };
@@ -75,7 +76,7 @@ static int parse(int argc, char **argv, struct request *rq)
 {
     hs_hopt_pond_init(&rq->pond, "");
     hs_hcli_common_init(&rq->common);
-    rq->rate_mm_day = rq->rate_spread_mm_day = rq->target_kg_m3 = NAN;
+    rq->rate_mm_day = rq->rate_spread_mm_day = rq->target_kg_m3 = rq->target_cf = NAN;
     rq->humidity = rq->pan_mm_day = NAN;
     rq->crystalliser = 0;
     rq->only_pond = NULL;
@@ -117,6 +118,8 @@ static int parse(int argc, char **argv, struct request *rq)
             num = &rq->rate_spread_mm_day;
         else if (strcmp(a, "--target-density") == 0)
             num = &rq->target_kg_m3;
+        else if (strcmp(a, "--target-cf") == 0)
+            num = &rq->target_cf;
         else if (strcmp(a, "--humidity") == 0)
             num = &rq->humidity;
         else if (strcmp(a, "--pan-mm-day") == 0)
@@ -133,6 +136,14 @@ static int parse(int argc, char **argv, struct request *rq)
     }
     if (isfinite(rq->humidity) && (rq->humidity < 0 || rq->humidity >= 1)) {
         fprintf(stderr, "halostage " CMD ": --humidity must be in 0..1 (a fraction, not %%)\n");
+        return 2;
+    }
+    if (isfinite(rq->target_cf) && rq->target_cf < 1) {
+        fprintf(stderr, "halostage " CMD ": --target-cf must be at least 1 (the feed)\n");
+        return 2;
+    }
+    if (isfinite(rq->target_cf) && isfinite(rq->target_kg_m3)) {
+        fprintf(stderr, "halostage " CMD ": give --target-density or --target-cf, not both\n");
         return 2;
     }
     if (isfinite(rq->rate_spread_mm_day) && rq->rate_spread_mm_day < 0) {
@@ -186,9 +197,12 @@ static void print_text(const struct hs_hcli_pond_view *pv, const struct hs_hydro
     if (isfinite(r->expected_evaporation_mm_day))
         printf("%-24s %.2f mm/day (pan x coefficient x water activity)\n",
                "expected evaporation", r->expected_evaporation_mm_day);
-    if (isfinite(pv->target_kg_m3)) {
+    if (isfinite(pv->target_kg_m3) || isfinite(pv->cf_target)) {
         char what[64];
-        snprintf(what, sizeof what, "to %.1f kg/m3", pv->target_kg_m3);
+        if (isfinite(pv->target_kg_m3))
+            snprintf(what, sizeof what, "to %.1f kg/m3", pv->target_kg_m3);
+        else
+            snprintf(what, sizeof what, "to CF %.2f", pv->cf_target);
         print_days(what, r->days_to_target_low, r->days_to_target_expected,
                    r->days_to_target_high);
     }
@@ -272,6 +286,10 @@ int hs_cmd_forecast(int argc, char **argv)
             continue;
         rc = hs_hcli_pond_view(CMD, &ctx, name, &rq.pond, 1, rq.target_kg_m3, rq.rate_mm_day,
                                rq.rate_spread_mm_day, &pv);
+        if (rc == 0 && isfinite(rq.target_cf)) {
+            pv.target_kg_m3 = NAN;
+            pv.cf_target = rq.target_cf;
+        }
         if (rc == 0) {
             pv.crystalliser = pv.crystalliser || rq.crystalliser;
             rc = forecast_one(&rq, &pv);

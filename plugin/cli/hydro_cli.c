@@ -374,6 +374,8 @@ json_t *hs_hcli_state_json(const struct hs_hcli_pond_view *pv)
     rc |= json_object_set_new(o, "target_density_kg_m3",
                               isfinite(pv->target_kg_m3) ? json_real(pv->target_kg_m3)
                                                          : json_null());
+    rc |= json_object_set_new(o, "target_concentration_factor",
+                              isfinite(pv->cf_target) ? json_real(pv->cf_target) : json_null());
     rc |= json_object_set_new(o, "feed", json_string(pv->model.feed.name));
     if (rc != 0) {
         json_decref(o);

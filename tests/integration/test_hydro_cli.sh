@@ -157,8 +157,12 @@ check "plan --config names both ponds" test "$(field "$pl" 'd["from"] + ">" + d[
 refuse 2 "no pond 'c9'" forecast --config "$cfg" --pond c9
 refuse 2 "name both ponds" plan --config "$cfg" --from c3 --target-density 1200
 cp "$HS_TMP/bad.csv" "$HS_TMP/p.csv"
-refuse 2 "p.csv:4: level_m must increase" forecast --config "$cfg" --pond x1 --level 0.3 \
+refuse 78 "site.ini:[0-9]+: stage_storage: .*p.csv:4: level_m must increase" forecast --config "$cfg" --pond x1 --level 0.3 \
     --density 1225 --temperature 25 --rate-mm-day 5
+"$HS_BUILD/halostaged" --config "$cfg" --check >/dev/null 2>"$HS_TMP/chk.err"
+rc=$?
+check "halostaged --check refuses the non-monotone table (exit $rc) with both files' lines" \
+    grep -qE "site.ini:[0-9]+: stage_storage: .*p.csv:4: level_m must increase" "$HS_TMP/chk.err"
 echo "[site]" >"$HS_TMP/broken.ini"
 refuse 78 "broken.ini" forecast --config "$HS_TMP/broken.ini"
 hs_finish
