@@ -10,6 +10,7 @@
 
 #include "hs_log.h"
 #include "hs_runtime_private.h"
+#include "hs_hydro_store.h"
 #include "hs_stage_table.h"
 
 static int shape_of(const hs_pond *p, struct hs_rt_pond *rp, hc_pond_shape *shape)
@@ -63,6 +64,14 @@ int hs_rt_hydro_init(hs_runtime *rt)
         rp->hydro_ok = hs_hydro_init(&rp->hydro, &cfg) == 0;
         if (!rp->hydro_ok)
             hs_log(HSP_LOG_WARNING, "[pond %s]: hydrology off (geometry refused)", p->name);
+        /* After a restart, carry on from the recorded daily rates and the
+         * salt deposited so far rather than from nothing. */
+        struct hs_hydro_history h;
+        if (rp->hydro_ok && rt->store != NULL &&
+            hs_hydro_history_read(rt->store, p->name, hs_rt_wall_ms(), cfg.window_days, &h) == 0 &&
+            (h.n > 0 || isfinite(h.deposited_salt_t)))
+            hs_hydro_seed(&rp->hydro, h.rate, h.n,
+                          isfinite(h.deposited_salt_t) ? 1000 * h.deposited_salt_t : 0);
     }
     return 0;
 }

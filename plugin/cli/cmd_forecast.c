@@ -231,8 +231,9 @@ static int forecast_one(const struct request *rq, const struct hs_hcli_pond_view
         fprintf(stderr, "halostage " CMD ": %s: unusable geometry\n", pv->label);
         return 1;
     }
-    if (pv->n_rates > 0)
-        hs_hydro_seed(&h, pv->rates, pv->n_rates, 0);
+    if (pv->n_rates > 0 || isfinite(pv->deposited_salt_t))
+        hs_hydro_seed(&h, pv->rates, pv->n_rates,
+                      isfinite(pv->deposited_salt_t) ? 1000 * pv->deposited_salt_t : 0);
     struct hs_hydro_sample smp = {0, pv->pond->level_m, pv->state.density_kg_m3,
                                   pv->state.salinity_g_kg, pv->state.concentration_factor,
                                   pv->state.water_activity};

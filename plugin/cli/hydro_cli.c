@@ -11,8 +11,8 @@
 #include "hc_feed.h"
 #include "hp_state_json.h"
 #include "hs_config.h"
+#include "hs_hydro_store.h"
 
-#define DAY_MS 86400000LL
 /* How far back the store is read for the latest state and daily rates. */
 #define HISTORY_DAYS 60
 #define DEFAULT_T_REF_C 15.0
@@ -113,53 +113,15 @@ const char *hs_hcli_pond_name(const struct hs_hcli_context *ctx, size_t i)
 
 /* ---- the store's history of one pond ---------------------------------- */
 
-struct history {
-    int have_state;
-    double level_m, density_kg_m3, temperature_c;
-    int64_t day[HS_HYDRO_MAX_DAYS];   /* day numbers of rates[], oldest first */
-    double rate[HS_HYDRO_MAX_DAYS];
-    int n;
-};
-
-/* Keeps the newest usable state, and one daily net evaporation per UTC day
- * (the last value the daemon recorded that day). */
-static void take_row(void *arg, const hs_state_row *row)
-{
-    struct history *h = arg;
-    if (row->quality <= HS_QUALITY_UNCERTAIN && isfinite(row->state.density_kg_m3)) {
-        h->have_state = 1;
-        h->level_m = row->extra.depth_m;
-        h->density_kg_m3 = row->state.density_kg_m3;
-        h->temperature_c = row->state.temperature_c;
-    }
-    double r = row->extra.net_evaporation_mm_day;
-    if (!isfinite(r))
-        return;
-    int64_t d = row->t_ms / DAY_MS;
-    if (h->n > 0 && h->day[h->n - 1] == d) {
-        h->rate[h->n - 1] = r;
-        return;
-    }
-    if (h->n == HS_HYDRO_MAX_DAYS) {
-        memmove(h->day, h->day + 1, (HS_HYDRO_MAX_DAYS - 1) * sizeof h->day[0]);
-        memmove(h->rate, h->rate + 1, (HS_HYDRO_MAX_DAYS - 1) * sizeof h->rate[0]);
-        h->n--;
-    }
-    h->day[h->n] = d;
-    h->rate[h->n] = r;
-    h->n++;
-}
-
 static int read_history(const char *cmd, struct hs_hcli_context *ctx, const char *pond,
-                        struct history *h)
+                        struct hs_hydro_history *h)
 {
-    memset(h, 0, sizeof *h);
-    h->level_m = h->density_kg_m3 = h->temperature_c = NAN;
-    if (ctx->store == NULL)
+    if (ctx->store == NULL) {
+        hs_hydro_history_read(NULL, pond, 0, 0, h); /* fills the unknowns */
         return 0;
+    }
     int64_t now = (int64_t)time(NULL) * 1000;
-    if (hs_store_states(ctx->store, pond, now - HISTORY_DAYS * DAY_MS, now + DAY_MS, take_row,
-                        h) < 0) {
+    if (hs_hydro_history_read(ctx->store, pond, now, HISTORY_DAYS, h) != 0) {
         fprintf(stderr, "halostage %s: %s\n", cmd, hs_store_error(ctx->store));
         return 1;
     }
@@ -302,17 +264,18 @@ int hs_hcli_pond_view(const char *cmd, struct hs_hcli_context *ctx, const char *
     }
     merge_pond(&pv->own, p, cli);
 
-    struct history h;
+    struct hs_hydro_history h;
     int rc = read_history(cmd, ctx, name, &h);
     if (rc != 0)
         return rc;
     if (!isfinite(pv->own.level_m))
-        pv->own.level_m = h.level_m;
+        pv->own.level_m = h.depth_m;
     if (!isfinite(pv->own.density_kg_m3))
         pv->own.density_kg_m3 = h.density_kg_m3;
     for (int i = 0; i < h.n; i++)
         pv->rates[i] = h.rate[i];
     pv->n_rates = h.n;
+    pv->deposited_salt_t = h.deposited_salt_t;
     double t_c = isfinite(ctx->common->temperature_c) ? ctx->common->temperature_c
                                                        : h.temperature_c;
     if (!isfinite(t_c))

@@ -71,6 +71,7 @@ struct hs_hcli_pond_view {
     double cf_target, cf_next_stage;   /* NaN: none */
     double rates[HS_HYDRO_MAX_DAYS];   /* the store's daily rates, oldest first */
     int n_rates;
+    double deposited_salt_t;           /* the store's latest (NaN: none) */
     double rate_mm_day, rate_spread_mm_day; /* explicit (NaN: from rates) */
     int crystalliser;
 };
