@@ -64,7 +64,7 @@ if command -v mosquitto >/dev/null; then
             mqtt="off (mosquitto did not start; see $out/mosquitto.log)"
         fi
     else
-        mqtt="off (this build has no [mqtt] configuration yet)"
+        mqtt="off (this build has no [mqtt] configuration)"
     fi
 fi
 
@@ -91,7 +91,7 @@ while :; do
     [ -t 1 ] && printf '\033[H\033[2J'
     echo "halostage demo: invented salt works, simulator at ${speed}x (1 s here = $((speed / 60)) min there)"
     echo "MQTT $mqtt; ${left}s left (Ctrl-C stops)"
-    echo "DAYS: time to the pond's target density at the recent pace, in real days"
+    echo "TO TARGET: time until the pond reaches its density_out at the recent pace (real time)"
     echo
     "$build/halostage" status --config "$out/demo.ini" 2>&1 || true
     echo

@@ -123,6 +123,7 @@ typedef struct {
 } hs_feed;
 
 struct hs_transfer_conf;
+struct hs_mqtt_conf;
 
 typedef struct hs_site {
     char path[HS_PATH_MAX];        /* the configuration file as given */
@@ -133,6 +134,7 @@ typedef struct hs_site {
     hs_signal *signals; size_t n_signals;
     hs_feed *feeds;    size_t n_feeds;
     struct hs_transfer_conf *transfers; size_t n_transfers; /* hs_conf_transfer.h */
+    struct hs_mqtt_conf *mqtt;         /* hs_conf_mqtt.h; NULL without [mqtt] */
     /* Other section types ([mqtt], [alarm NAME], [transfer NAME], ...) add
      * their arrays below, each owned and released by its own file. */
 } hs_site;

@@ -62,14 +62,31 @@ static void num(char *buf, size_t len, double v, int decimals)
         snprintf(buf, len, "-");
 }
 
+/* A time span given in days, in the unit that reads best: "12-15 d",
+ * "5.2 h", "40 min". A range shows both ends when they differ visibly. */
 static void days(char *buf, size_t len, double lo, double hi)
 {
-    if (!isfinite(lo) && !isfinite(hi))
+    if (!isfinite(lo) && !isfinite(hi)) {
         snprintf(buf, len, "-");
-    else if (isfinite(lo) && isfinite(hi) && fabs(hi - lo) >= 0.5)
-        snprintf(buf, len, "%.0f-%.0f", lo, hi);
+        return;
+    }
+    double ref = isfinite(hi) ? hi : lo;
+    double scale = 1.0;
+    const char *unit = "d";
+    if (ref < 1.0 / 24.0) {
+        scale = 1440.0;
+        unit = "min";
+    } else if (ref < 1.0) {
+        scale = 24.0;
+        unit = "h";
+    }
+    double a = lo * scale, b = hi * scale;
+    if (isfinite(a) && isfinite(b) && b - a >= 0.1 * b + 0.5)
+        snprintf(buf, len, "%.0f-%.0f %s", a, b, unit);
+    else if (!isfinite(b))
+        snprintf(buf, len, ">%.0f %s", a, unit);
     else
-        snprintf(buf, len, "%.1f", isfinite(lo) ? lo : hi);
+        snprintf(buf, len, "%.1f %s", isfinite(a) ? (a + b) / 2 : b, unit);
 }
 
 /* "trigger-met,rain" from the stored reasons JSON. */
@@ -112,7 +129,7 @@ static void print_table(const hs_site *site, hs_store *st, const struct alarm_li
 {
     printf("site %s, %s\n", site->site.name, site->site.database);
     printf("%-9s %-12s %-17s %8s %6s %7s %10s %9s %-8s %s\n", "POND", "ROLE", "STAGE",
-           "kg/m3", "Be", "LEVEL m", "VOLUME m3", "DAYS", "QUALITY", "ALARMS");
+           "kg/m3", "Be", "LEVEL m", "VOLUME m3", "TO TARGET", "QUALITY", "ALARMS");
     for (size_t i = 0; i < site->n_ponds; i++) {
         const hs_pond *p = &site->ponds[i];
         hs_state_row row;
