@@ -10,6 +10,8 @@
 
 #include "hs_log.h"
 #include "hs_runtime_private.h"
+#include "hc_balance.h"
+#include "hs_conf_transfer.h"
 #include "hs_hydro_store.h"
 #include "hs_stage_table.h"
 
@@ -59,6 +61,7 @@ int hs_rt_hydro_init(hs_runtime *rt)
         rp->report.net_evaporation_low_mm_day = rp->report.net_evaporation_high_mm_day = NAN;
         rp->report.days_to_target_expected = rp->report.days_to_next_stage_expected = NAN;
         rp->report.balance_density_kg_m3 = NAN;
+        rp->rain_last_m = NAN;
         if (shape_of(p, rp, &cfg.shape) != 0)
             continue;
         rp->hydro_ok = hs_hydro_init(&rp->hydro, &cfg) == 0;
@@ -142,12 +145,78 @@ static void trend_add(struct hs_rt_pond *rp, double t_s, double cf)
         rp->trend_n++;
 }
 
+/* A reading that is good now, or NULL. */
+static const hs_reading *good_reading(const hs_runtime *rt, int signal)
+{
+    if (signal < 0 || (size_t)signal >= rt->site.n_signals)
+        return NULL;
+    const hs_reading *r = &rt->readings[signal];
+    return r->have && r->quality == HS_QUALITY_GOOD && isfinite(r->value) ? r : NULL;
+}
+
+/* Rain on the pond since the last look, from its accumulating gauge, into
+ * the day's balance. A falling total is a counter reset: start again. */
+static void feed_rain(hs_runtime *rt, size_t pond)
+{
+    struct hs_rt_pond *rp = &rt->ponds[pond];
+    const hs_signal *sg = hs_site_signal(&rt->site, (int)pond, HS_Q_RAIN);
+    const hs_reading *r = sg != NULL ? good_reading(rt, (int)(sg - rt->site.signals)) : NULL;
+    if (r == NULL)
+        return;
+    double d = r->value - rp->rain_last_m; /* [m] */
+    if (isfinite(d) && d > 0 && d < 0.5)
+        hs_hydro_rain(&rp->hydro, d * 1000.0);
+    rp->rain_last_m = r->value;
+}
+
+/* Brine pumped out of `pond` since the last look, by each transfer whose
+ * source it is: rated flow x the time its pump ran. Running is known from
+ * the run-feedback signal, or from the command where the site actuates;
+ * an advisory transfer without feedback cannot be counted (the balance
+ * then sees pumping as evaporation or rain: give pumps feedback). */
+static void feed_transfers(hs_runtime *rt, size_t pond, int64_t now_ms)
+{
+    for (size_t i = 0; i < rt->site.n_transfers; i++) {
+        const hs_transfer_conf *t = &rt->site.transfers[i];
+        struct hs_rt_transfer *x = &rt->transfers[i];
+        if (t->source_index != (int)pond)
+            continue;
+        int64_t since = x->flow_ms;
+        x->flow_ms = now_ms;
+        if (since <= 0 || now_ms <= since || !isfinite(t->rated_flow_m3_h))
+            continue;
+        int running;
+        const hs_reading *fb = good_reading(rt, t->feedback_index);
+        if (fb != NULL)
+            running = fb->value > 0.5;
+        else if (t->actuate)
+            running = x->state.running;
+        else
+            continue;
+        if (!running)
+            continue;
+        double v_m3;
+        if (hc_pumped_volume((double)(now_ms - since) / 1000.0, t->rated_flow_m3_h, &v_m3) != HC_OK)
+            continue;
+        struct hs_rt_pond *src = &rt->ponds[pond];
+        const hc_brine_state *s = &src->view.state;
+        double rho = src->view.have_state ? s->density_kg_m3 : NAN;
+        double sal = src->view.have_state ? s->salinity_g_kg : NAN;
+        if (src->hydro_ok)
+            hs_hydro_transfer(&src->hydro, 0, v_m3, rho, sal);
+        if (t->dest_index >= 0 && rt->ponds[t->dest_index].hydro_ok)
+            hs_hydro_transfer(&rt->ponds[t->dest_index].hydro, 1, v_m3, rho, sal);
+    }
+}
+
 void hs_rt_hydro_update(hs_runtime *rt, size_t pond, int64_t now_ms)
 {
     struct hs_rt_pond *rp = &rt->ponds[pond];
     const hs_pond *p = &rt->site.ponds[pond];
+    feed_transfers(rt, pond, now_ms);
     if (!rp->hydro_ok)
         return;
+    feed_rain(rt, pond);
     const hc_brine_curve *curve = hs_brine_models_curve(rt->models, p->feed_index);
     const hc_brine_state *s = &rp->view.state;
     if (isfinite(rp->view.depth_m)) {

@@ -41,6 +41,7 @@ struct hs_rt_transfer {
     double rain_v[HS_RT_RAIN_SLOTS];
     unsigned rain_n, rain_head;
     double predicted_mix_kg_m3;   /* last mixing prediction, NaN unknown */
+    int64_t flow_ms;              /* wall time up to which pumping is in the balances */
 };
 
 /* Per-pond memory between cycles. */
@@ -57,6 +58,7 @@ struct hs_rt_pond {
     unsigned trend_n, trend_head;
     struct hs_stage_table table;  /* stage-storage table when the pond has one */
     int table_loaded;
+    double rain_last_m;           /* last rain-gauge total fed to the balance, NaN none */
 };
 
 struct hs_runtime {
