@@ -231,8 +231,20 @@ void hs_rt_hydro_update(hs_runtime *rt, size_t pond, int64_t now_ms)
     }
     /* the pond's target is its density_out; the next stage from the path */
     double cf_target = NAN, cf_next = NAN;
-    if (curve != NULL && isfinite(p->density_out_kg_m3))
-        hc_curve_cf_at_density(curve, p->density_out_kg_m3, &cf_target);
+    /* density_out is stated at the site's reference temperature, so it is
+     * read off the path there (the curve's densities are at the path's own
+     * temperature) */
+    const hc_path *path = hs_brine_models_path(rt->models, p->feed_index);
+    double t_ref = rt->site.site.reference_temperature_c;
+    unsigned w = 0;
+    if (curve != NULL && isfinite(p->density_out_kg_m3)) {
+        if (path == NULL || !isfinite(t_ref) ||
+            hc_path_cf_at_density(path, p->density_out_kg_m3, t_ref, &cf_target, &w) != HC_OK ||
+            (w & (HC_WARN_BELOW_FEED | HC_WARN_BEYOND_PATH)))
+            cf_target = NAN;
+        if (isnan(cf_target))
+            hc_curve_cf_at_density(curve, p->density_out_kg_m3, &cf_target);
+    }
     if (rp->view.have_state && s->next_stage != HC_STAGE_NONE)
         cf_next = hc_path_stage_cf(hs_brine_models_path(rt->models, p->feed_index), s->next_stage);
     hs_hydro_report(&rp->hydro, curve, cf_target, cf_next, NAN, NAN, &rp->report);
