@@ -86,6 +86,11 @@ typedef struct {
     int64_t max_shelve_ms;  /* longest shelve an operator may ask for */
 } hs_alarm_rule;
 
+/* NULL-terminated name lists, in enum order (priorities start at urgent). */
+extern const char *const hs_rule_kind_names[HS_RULE_KIND_COUNT + 1];
+extern const char *const hs_alarm_quantity_names[HS_QTY_COUNT + 1];
+extern const char *const hs_alarm_priority_names[5];
+
 /* Fills a rule of the kind with our defaults (limits, quantity, delays,
  * priority); the config overrides them. Sources of the defaults are in
  * hs_alarm_rules.c. */

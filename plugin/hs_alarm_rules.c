@@ -4,23 +4,25 @@
 
 #include "hs_alarm.h"
 
-static const char *const kind_names[HS_RULE_KIND_COUNT] = {
+const char *const hs_rule_kind_names[HS_RULE_KIND_COUNT + 1] = {
     "near-saturation", "gypsum-in-feed", "bittern-limit",   "density-band",
     "level-high",      "level-high-high", "level-low",      "density-fall",
-    "sensor-stale",    "bus-down",
+    "sensor-stale",    "bus-down",        NULL,
 };
+#define kind_names hs_rule_kind_names
 
 static const char *const state_names[HS_ALARM_STATE_COUNT] = {
     "normal",   "unacknowledged", "acknowledged",   "returned-unacknowledged",
     "shelved",  "suppressed",     "out-of-service",
 };
 
-static const char *const quantity_names[HS_QTY_COUNT] = {
+const char *const hs_alarm_quantity_names[HS_QTY_COUNT + 1] = {
     "halite_si", "gypsum_si", "density_kg_m3", "baume",
-    "depth_m",   "density_fall_kg_m3", "sample_age_s", "bus_down",
+    "depth_m",   "density_fall_kg_m3", "sample_age_s", "bus_down", NULL,
 };
+#define quantity_names hs_alarm_quantity_names
 
-static const char *const priority_names[] = {NULL, "urgent", "high", "medium", "low"};
+const char *const hs_alarm_priority_names[5] = {"urgent", "high", "medium", "low", NULL};
 
 static int lookup(const char *const *names, int n, const char *name)
 {
@@ -56,12 +58,13 @@ int hs_alarm_quantity_from_name(const char *name)
 }
 const char *hs_alarm_priority_name(hs_alarm_priority p)
 {
-    return p >= HS_PRIORITY_URGENT && p <= HS_PRIORITY_LOW ? priority_names[p] : NULL;
+    return p >= HS_PRIORITY_URGENT && p <= HS_PRIORITY_LOW ? hs_alarm_priority_names[p - 1]
+                                                            : NULL;
 }
 int hs_alarm_priority_from_name(const char *name)
 {
-    int i = lookup(priority_names, 5, name);
-    return i < 1 ? -1 : i;
+    int i = lookup(hs_alarm_priority_names, 4, name);
+    return i < 0 ? -1 : i + 1;
 }
 
 const char *hs_alarm_result_text(hs_alarm_result r)

@@ -220,7 +220,8 @@ json_t *hs_command_apply(hs_commands *c, const char *verb, const void *payload, 
 static void send_reply(hs_commands *c, json_t *reply, int ok)
 {
     char topic[HS_TOPIC_MAX];
-    if (hs_topic(topic, sizeof topic, c->topics, ok ? "reply" : "error", NULL, NULL) == 0 &&
+    if (!c->sink->journal_only &&
+        hs_topic(topic, sizeof topic, c->topics, ok ? "reply" : "error", NULL, NULL) == 0 &&
         hs_enqueue_json(c->sink->store, HS_MSG_REPLY, topic, reply, 0) != 0)
         c->sink->errors++;
     if (ok)

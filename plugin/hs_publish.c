@@ -41,6 +41,12 @@ int hs_topic(char *buf, size_t len, const hs_topics *t, const char *what, const 
     return n < 0 || (size_t)n >= len ? -1 : 0;
 }
 
+int hs_topic_commands(char *buf, size_t len, const hs_topics *t)
+{
+    int n = snprintf(buf, len, "%s/%s/command/#", t->prefix, t->site);
+    return n < 0 || (size_t)n >= len ? -1 : 0;
+}
+
 void hs_iso8601_ms(char *buf, size_t len, int64_t t_ms)
 {
     time_t secs = (time_t)(t_ms >= 0 ? t_ms / 1000 : (t_ms - 999) / 1000);
@@ -162,6 +168,8 @@ void hs_alarm_sink_emit(void *ctx, const hs_alarm_event *ev)
         sink->errors++;
         return;
     }
+    if (sink->journal_only)
+        return;
     if (hs_topic(topic, sizeof topic, sink->topics, "alarm", ev->pond, ev->rule) != 0) {
         sink->errors++;
         return;

@@ -44,6 +44,9 @@ int hs_topic_level_ok(const char *name);
 int hs_topic(char *buf, size_t len, const hs_topics *t, const char *what, const char *a,
              const char *b);
 
+/* The command subscription, "<prefix>/<site>/command/#". 0 / -1. */
+int hs_topic_commands(char *buf, size_t len, const hs_topics *t);
+
 /* "2026-01-01T00:00:00.000Z" into buf (at least 32 bytes). */
 void hs_iso8601_ms(char *buf, size_t len, int64_t t_ms);
 
@@ -65,6 +68,7 @@ int hs_enqueue_state(hs_store *st, const hs_topics *t, const char *pond, int64_t
 typedef struct {
     hs_store *store;
     const hs_topics *topics;
+    int journal_only;              /* 1: MQTT off, journal without queueing */
     int errors;                    /* failed journal/queue writes */
 } hs_alarm_sink;
 void hs_alarm_sink_emit(void *sink, const hs_alarm_event *ev);
@@ -87,6 +91,12 @@ typedef void (*hs_inbound_fn)(void *ctx, const char *topic, const void *payload,
  * publishes the retained gateway status (online) directly, and re-sends
  * unacknowledged rows from the oldest. 0 / -1 (store error). */
 int hs_publisher_pump(hs_publisher *p, int wait_ms, hs_inbound_fn fn, void *ctx);
+
+/* Before a clean shutdown: publishes the retained gateway status offline
+ * (a clean disconnect does not fire the last will) and waits up to
+ * timeout_ms for the broker to acknowledge it. Returns 0 when acknowledged,
+ * -1 otherwise (not connected or no answer in time). */
+int hs_publisher_goodbye(hs_publisher *p, int timeout_ms);
 
 typedef struct {
     int connected;

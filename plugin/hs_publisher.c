@@ -25,8 +25,10 @@ struct hs_publisher {
     hs_publisher_stats stats;
     hs_inbound_fn inbound;
     void *inbound_ctx;
-    int failed;                   /* a store error during event handling */
+    int goodbye_acked;            /* the offline status was acknowledged */
 };
+
+#define GOODBYE_TAG (-1) /* tag of the offline status; row ids are positive */
 
 hs_publisher *hs_publisher_new(hs_store *st, hp_mqtt *link, const hs_topics *t, int window)
 {
@@ -90,13 +92,15 @@ static void mark_done(hs_publisher *p, int64_t id)
     p->done[p->ndone++] = id;
 }
 
-static void publish_gateway(hs_publisher *p)
+static int publish_gateway(hs_publisher *p, int online, int64_t tag)
 {
     char topic[HS_TOPIC_MAX];
-    char *text = hs_gateway_payload(&p->topics, 1);
+    int rc = -1;
+    char *text = hs_gateway_payload(&p->topics, online);
     if (text && hs_topic(topic, sizeof topic, &p->topics, "gateway", NULL, NULL) == 0)
-        hp_mqtt_publish(p->link, topic, text, strlen(text), 1, 1, 0); /* tag 0: not a row */
+        rc = hp_mqtt_publish(p->link, topic, text, strlen(text), 1, 1, tag);
     free(text);
+    return rc;
 }
 
 static void on_event(void *ctx, const hp_mqtt_event *ev)
@@ -107,13 +111,15 @@ static void on_event(void *ctx, const hp_mqtt_event *ev)
         p->connected = 1;
         p->stats.connects++;
         forget_inflight(p);
-        publish_gateway(p);
+        publish_gateway(p, 1, 0); /* tag 0: not an outbox row */
         break;
     case HP_MQTT_DISCONNECTED:
         p->connected = 0;
         forget_inflight(p);
         break;
     case HP_MQTT_DELIVERED:
+        if (ev->tag == GOODBYE_TAG)
+            p->goodbye_acked = 1;
         if (ev->tag > 0) {
             remove_inflight(p, ev->tag);
             mark_done(p, ev->tag);
@@ -169,4 +175,17 @@ int hs_publisher_pump(hs_publisher *p, int wait_ms, hs_inbound_fn fn, void *ctx)
     if (room <= 0)
         return 0;
     return hs_store_outbox_peek(p->st, p->last_sent, room, send_row, p) < 0 ? -1 : 0;
+}
+
+int hs_publisher_goodbye(hs_publisher *p, int timeout_ms)
+{
+    p->inbound = NULL; /* commands that arrive now are left unanswered */
+    p->goodbye_acked = 0;
+    if (!p->connected || publish_gateway(p, 0, GOODBYE_TAG) != 0)
+        return -1;
+    for (int waited = 0; !p->goodbye_acked && p->connected && waited < timeout_ms; waited += 20)
+        hp_mqtt_poll(p->link, 20, on_event, p);
+    if (p->ndone > 0 && hs_store_outbox_done(p->st, p->done, p->ndone) == 0)
+        p->ndone = 0;
+    return p->goodbye_acked ? 0 : -1;
 }

@@ -6,6 +6,7 @@
 #include <string.h>
 
 #include "hc_level.h"
+#include "hs_conf_alarm.h"
 #include "hs_conf_mqtt.h"
 #include "hs_config.h"
 #include "hs_log.h"
@@ -78,6 +79,7 @@ static int alarms_open(hs_runtime *rt)
     rt->alarms = hs_alarm_new(last + 1);
     if (rt->alarms == NULL)
         return -1;
+    hs_conf_alarms_apply(&rt->site, rt->alarms); /* first: a configured rule wins */
     add_alarm_rules(rt);
     hs_store_journal_latest(rt->store, restore_alarm, rt);
     return 0;

@@ -44,6 +44,13 @@ int hs_rt_mqtt_open(hs_runtime *rt)
     const hs_mqtt_conf *m = rt->site.mqtt;
     rt->link = NULL;
     rt->publisher = NULL;
+    /* Alarm transitions from operator commands (the CLI's queue) are
+     * journalled even with publishing off; nothing is queued for MQTT then. */
+    hs_topics_init(&rt->topics, m ? m->topic_prefix : "halostage", rt->site.site.name);
+    rt->alarm_sink = (hs_alarm_sink){.store = rt->store, .topics = &rt->topics,
+                                     .journal_only = 1};
+    rt->commands = (hs_commands){.engine = rt->alarms, .sink = &rt->alarm_sink,
+                                 .topics = &rt->topics};
     if (m == NULL || !m->enabled) {
         hs_log(HSP_LOG_NOTICE, "%s: publishing is off", m == NULL ? "no [mqtt] section"
                                                                   : "[mqtt] enabled = no");
@@ -89,7 +96,8 @@ int hs_rt_mqtt_open(hs_runtime *rt)
         rt->link = NULL;
         return -1;
     }
-    rt->alarm_sink = (hs_alarm_sink){.store = rt->store, .topics = &rt->topics};
+    rt->alarm_sink = (hs_alarm_sink){.store = rt->store, .topics = &rt->topics,
+                                     .journal_only = 0};
     rt->commands = (hs_commands){.engine = rt->alarms, .sink = &rt->alarm_sink,
                                  .topics = &rt->topics};
     hs_log(HSP_LOG_NOTICE, "MQTT: %s as %s, topics %s/%s/...", m->uri, m->client_id,

@@ -134,7 +134,8 @@ typedef struct hs_site {
     hs_signal *signals; size_t n_signals;
     hs_feed *feeds;    size_t n_feeds;
     struct hs_transfer_conf *transfers; size_t n_transfers; /* hs_conf_transfer.h */
-    struct hs_mqtt_conf *mqtt;         /* hs_conf_mqtt.h; NULL without [mqtt] */
+    struct hs_mqtt_conf *mqtt;     /* hs_conf_mqtt.h; NULL without [mqtt] */
+    struct hs_alarm_conf *alarms; size_t n_alarms; /* hs_conf_alarm.h */
     /* Other section types ([mqtt], [alarm NAME], [transfer NAME], ...) add
      * their arrays below, each owned and released by its own file. */
 } hs_site;

@@ -186,6 +186,8 @@ typedef int (*hs_outbox_fn)(void *ctx, const hs_outbox_msg *msg); /* nonzero sto
 int hs_store_outbox_peek(hs_store *st, int64_t after_id, int max, hs_outbox_fn fn, void *ctx);
 /* Deletes rows the broker acknowledged. 0 / -1. */
 int hs_store_outbox_done(hs_store *st, const int64_t *ids, size_t n);
+/* Changes the outbox bound (rows) of an open store; at least 1. */
+void hs_store_set_outbox_max(hs_store *st, int64_t rows);
 /* Rows waiting and rows dropped by policy since open. */
 int hs_store_outbox_count(hs_store *st, int64_t *waiting);
 int64_t hs_store_outbox_dropped(const hs_store *st);

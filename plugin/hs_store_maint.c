@@ -70,12 +70,15 @@ static int fold_minutes(hs_store *st, int64_t from, int64_t to)
 
 static int fold_hours(hs_store *st, int64_t from, int64_t to)
 {
+    /* Series by series (CROSS JOIN keeps series outside), so that each
+     * range is a primary-key range of the rollup table. */
     return run_range(st,
                      "INSERT INTO rollup(series_id, step_s, t_ms, n, vmin, vsum, vmax, worst)"
-                     " SELECT series_id, 3600, (t_ms / 3600000) * 3600000, sum(n), min(vmin),"
-                     " total(vsum), max(vmax), max(worst) FROM rollup"
-                     " WHERE step_s = 60 AND t_ms >= ?1 AND t_ms < ?2"
-                     " GROUP BY series_id, t_ms / 3600000" UPSERT_TAIL,
+                     " SELECT r.series_id, 3600, (r.t_ms / 3600000) * 3600000, sum(r.n),"
+                     " min(r.vmin), total(r.vsum), max(r.vmax), max(r.worst)"
+                     " FROM series s CROSS JOIN rollup r ON r.series_id = s.id"
+                     " AND r.step_s = 60 AND r.t_ms >= ?1 AND r.t_ms < ?2"
+                     " WHERE true GROUP BY r.series_id, r.t_ms / 3600000" UPSERT_TAIL,
                      from, to);
 }
 
@@ -118,9 +121,11 @@ int hs_store_maintain(hs_store *st, int64_t now_ms)
         raw_cut = minute_done;
     if (run_range(st, "DELETE FROM sample WHERE t_ms < ?1 AND ?2 = ?2", raw_cut, 0) != 0 ||
         run_range(st, "DELETE FROM pond_state WHERE t_ms < ?1 AND ?2 = ?2", raw_cut, 0) != 0 ||
-        run_range(st, "DELETE FROM rollup WHERE step_s = 60 AND t_ms < ?1 AND ?2 = ?2",
+        run_range(st, "DELETE FROM rollup WHERE series_id IN (SELECT id FROM series)"
+                      " AND step_s = 60 AND t_ms < ?1 AND ?2 = ?2",
                   now_ms - st->opt.minute_retention_ms, 0) != 0 ||
-        run_range(st, "DELETE FROM rollup WHERE step_s = 3600 AND t_ms < ?1 AND ?2 = ?2",
+        run_range(st, "DELETE FROM rollup WHERE series_id IN (SELECT id FROM series)"
+                      " AND step_s = 3600 AND t_ms < ?1 AND ?2 = ?2",
                   now_ms - st->opt.hour_retention_ms, 0) != 0)
         goto fail;
     if (hs_store_flush(st) != 0)

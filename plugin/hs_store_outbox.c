@@ -35,6 +35,11 @@ int hs_store_outbox_count(hs_store *st, int64_t *waiting)
 
 int64_t hs_store_outbox_dropped(const hs_store *st) { return st->outbox_dropped; }
 
+void hs_store_set_outbox_max(hs_store *st, int64_t rows)
+{
+    st->opt.outbox_max_rows = rows < 1 ? 1 : rows;
+}
+
 int hs_store_outbox_put(hs_store *st, hs_msg_kind kind, const char *topic, const void *payload,
                         size_t len, int qos, int retained)
 {

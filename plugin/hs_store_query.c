@@ -62,6 +62,48 @@ static int emit_points(hs_store *st, sqlite3_stmt *s, int raw, hs_point_fn fn, v
     return ok;
 }
 
+/* Rollup rows come in time order (primary key); buckets of step_ms are
+ * combined here rather than by GROUP BY, which would sort them again. */
+static int emit_combined(hs_store *st, sqlite3_stmt *s, int64_t step_ms, hs_point_fn fn,
+                         void *ctx)
+{
+    int rc, n = 0, open = 0;
+    hs_point acc = {0};
+    double sum = 0.0;
+    while ((rc = sqlite3_step(s)) == SQLITE_ROW) {
+        int64_t t = sqlite3_column_int64(s, 0);
+        int64_t bucket = t / step_ms * step_ms;
+        int64_t cnt = sqlite3_column_int64(s, 4);
+        double lo = hs_col_num(s, 1), total = hs_col_num(s, 2), hi = hs_col_num(s, 3);
+        hs_quality worst = (hs_quality)sqlite3_column_int(s, 5);
+        if (open && bucket != acc.t_ms) {
+            acc.mean = acc.count ? sum / (double)acc.count : NAN;
+            fn(ctx, &acc);
+            n++;
+            open = 0;
+        }
+        if (!open) {
+            acc = (hs_point){.t_ms = bucket, .min = lo, .max = hi, .count = 0, .worst = worst};
+            sum = 0.0;
+            open = 1;
+        }
+        acc.min = fmin(acc.min, lo);
+        acc.max = fmax(acc.max, hi);
+        acc.count += cnt;
+        sum += total;
+        if (worst > acc.worst)
+            acc.worst = worst;
+    }
+    if (rc == SQLITE_DONE && open) {
+        acc.mean = acc.count ? sum / (double)acc.count : NAN;
+        fn(ctx, &acc);
+        n++;
+    }
+    int ok = rc == SQLITE_DONE ? n : hs_store_fail_db(st, "reading history");
+    sqlite3_finalize(s);
+    return ok;
+}
+
 int hs_store_history(hs_store *st, const char *series, int64_t since_ms, int64_t until_ms,
                      int64_t step_ms, hs_point_fn fn, void *ctx)
 {
@@ -94,19 +136,20 @@ int hs_store_history(hs_store *st, const char *series, int64_t since_ms, int64_t
     } else {
         int step_s = step_ms % HS_HOUR_MS == 0 ? 3600 : 60;
         if (sqlite3_prepare_v2(st->db,
-                               "SELECT (t_ms / ?4) * ?4, min(vmin), total(vsum) / sum(n),"
-                               " max(vmax), sum(n), max(worst) FROM rollup"
-                               " WHERE series_id = ?3 AND step_s = ?5 AND t_ms >= ?1"
-                               " AND t_ms < ?2 GROUP BY t_ms / ?4 ORDER BY 1",
+                               "SELECT t_ms, vmin, vsum, vmax, n, worst FROM rollup"
+                               " WHERE series_id = ?3 AND step_s = ?4 AND t_ms >= ?1"
+                               " AND t_ms < ?2 ORDER BY t_ms",
                                -1, &s, NULL) != SQLITE_OK)
             return hs_store_fail_db(st, "reading history");
         sqlite3_bind_int64(s, 3, id);
-        sqlite3_bind_int64(s, 4, step_ms);
-        sqlite3_bind_int(s, 5, step_s);
+        sqlite3_bind_int(s, 4, step_s);
+        sqlite3_bind_int64(s, 1, since_ms);
+        sqlite3_bind_int64(s, 2, until_ms);
+        return emit_combined(st, s, step_ms, fn, ctx);
     }
     sqlite3_bind_int64(s, 1, since_ms);
     sqlite3_bind_int64(s, 2, until_ms);
-    return emit_points(st, s, step_ms == 0, fn, ctx);
+    return emit_points(st, s, 1, fn, ctx);
 }
 
 static hc_stage stage_col(sqlite3_stmt *s, int col)

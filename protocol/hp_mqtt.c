@@ -123,10 +123,6 @@ static void on_connected(void *ctx, char *cause)
 {
     hp_mqtt *m = ctx;
     (void)cause;
-    if (m->opt.subscribe) {
-        MQTTAsync_responseOptions ro = MQTTAsync_responseOptions_initializer;
-        MQTTAsync_subscribe(m->client, m->opt.subscribe, 1, &ro);
-    }
     push(m, HP_MQTT_CONNECTED, 0, NULL, NULL, 0, 0, NULL);
 }
 
@@ -250,6 +246,7 @@ int hp_mqtt_start(hp_mqtt *m, char *err, size_t errlen)
     MQTTAsync_SSLOptions ssl = MQTTAsync_SSLOptions_initializer;
     co.keepAliveInterval = m->opt.keepalive_s;
     co.cleansession = 1;
+    co.MQTTVersion = MQTTVERSION_3_1_1;
     co.maxInflight = m->opt.max_inflight;
     co.automaticReconnect = 1;
     co.minRetryInterval = m->opt.min_retry_s;
@@ -348,6 +345,11 @@ int hp_mqtt_poll(hp_mqtt *m, int timeout_ms, void (*fn)(void *ctx, const hp_mqtt
         list->ev.topic = list->topic;
         list->ev.payload = list->payload;
         list->ev.reason = list->reason;
+        if (list->ev.type == HP_MQTT_CONNECTED && m->opt.subscribe) {
+            /* Renewed at every connect (clean sessions), from the owner's
+             * thread rather than paho's callback. */
+            MQTTAsync_subscribe(m->client, m->opt.subscribe, 1, NULL);
+        }
         if (fn)
             fn(ctx, &list->ev);
         free(list->topic);

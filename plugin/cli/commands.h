@@ -23,4 +23,8 @@ int hs_cmd_status(int argc, char **argv);
 int hs_cmd_forecast(int argc, char **argv);
 int hs_cmd_plan(int argc, char **argv);
 
+int hs_cmd_history(int argc, char **argv);
+int hs_cmd_export(int argc, char **argv);
+int hs_cmd_ack(int argc, char **argv);
+
 #endif

@@ -1,0 +1,25 @@
+/* Shared by the CLI's history views (history, export, ack): opening the
+ * site's store for reading, and time arguments. Error convention: 0 / -1
+ * with the reason already printed on stderr (or in msg). */
+#ifndef HS_CLI_STORE_OPTS_H
+#define HS_CLI_STORE_OPTS_H
+
+#include <stddef.h>
+#include <stdint.h>
+
+#include "hs_config.h"
+#include "hs_store.h"
+
+/* Loads config and opens its database (HS_STORE_READ). Returns 0, or the
+ * exit status to return (78 bad config, 1 no store) after printing why. On
+ * success the caller frees with hs_site_free() and hs_store_close(). */
+int hs_cli_open(const char *config, hs_site *site, hs_store **st);
+
+/* A point in time: a duration back from now ("7d", "90min"), "now", or a
+ * UTC date/time ("2026-03-01", "2026-03-01T06:00", "2026-03-01T06:00:00Z").
+ * 0, or -1 with a reason in msg. */
+int hs_cli_time(const char *text, int64_t now_ms, int64_t *out_ms, char *msg, size_t len);
+
+int64_t hs_cli_now_ms(void);
+
+#endif
