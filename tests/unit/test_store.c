@@ -91,6 +91,28 @@ static void schema_created_and_versioned(void **unused)
     assert_non_null(strstr(err, "newer"));
 }
 
+static void migrates_an_older_file(void **unused)
+{
+    (void)unused;
+    hs_store *st = open_writer(NULL);
+    hs_store_close(st);
+    /* Make it look like a version-1 file: the rollup index that version 2
+     * drops, and the old version number. */
+    sqlite3 *db;
+    assert_int_equal(sqlite3_open(path, &db), SQLITE_OK);
+    assert_int_equal(sqlite3_exec(db, "CREATE INDEX rollup_step_t ON rollup(step_s, t_ms);"
+                                      "PRAGMA user_version = 1;", NULL, NULL, NULL), SQLITE_OK);
+    sqlite3_close(db);
+    char err[256];
+    assert_null(hs_store_open(path, HS_STORE_READ, NULL, err, sizeof err));
+    assert_non_null(strstr(err, "older")); /* the CLI does not migrate */
+    st = open_writer(NULL);
+    hs_store_close(st);
+    assert_int_equal(scalar("PRAGMA user_version"), hs_store_schema_version());
+    assert_int_equal(scalar("SELECT count(*) FROM sqlite_master WHERE name = 'rollup_step_t'"),
+                     0);
+}
+
 static void wal_and_strict(void **unused)
 {
     (void)unused;
@@ -484,6 +506,7 @@ int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test_setup_teardown(schema_created_and_versioned, setup, teardown),
+        cmocka_unit_test_setup_teardown(migrates_an_older_file, setup, teardown),
         cmocka_unit_test_setup_teardown(wal_and_strict, setup, teardown),
         cmocka_unit_test_setup_teardown(batch_visible_only_when_committed, setup, teardown),
         cmocka_unit_test_setup_teardown(state_round_trip, setup, teardown),
