@@ -132,9 +132,16 @@ done
 check "written coil shows as c1 pump-run = 1" test "$ok_run" -eq 0
 stop_sim
 
-# --- faults: exception, NaN, sentinel, hung unit behind the gateway.
-check "simulator with faults starts" start_sim --fault analysers:3=exception \
-    --fault analysers:4=nan --fault analysers:5=sentinel --fault analysers:9=timeout
+# --- faults: exception, NaN, sentinel, hung unit behind the gateway (from a
+# fault file, the simulator's configuration route).
+cat >"$HS_TMP/faults" <<'FAULTS'
+# unit 3 answers exception 04, 4 sends NaN, 5 sentinels, 9 never answers
+analysers:3=exception
+analysers:4=nan
+analysers:5=sentinel
+analysers:9=timeout
+FAULTS
+check "simulator with faults starts" start_sim --faults "$HS_TMP/faults"
 "$D" --config "$CFG" --once --json >"$HS_TMP/fault.json" 2>/dev/null
 rc=$?
 check "faults: exit 1" test "$rc" -eq 1
@@ -171,6 +178,32 @@ print(d, a)
 sys.exit(0 if d == {"comm-fail"} and a == {"good"} else 1)
 PYEOF
 stop_sim
+
+# --- a bad fault file is refused with its line.
+printf 'analysers:3=exception\nanalysers=melt\n' >"$HS_TMP/badfaults"
+"$SIM_BIN" --config "$CFG" --faults "$HS_TMP/badfaults" >/dev/null 2>"$HS_TMP/badfaults.err"
+rc=$?
+check "simulator refuses a bad fault file at its line" test "$rc" -ne 0 -a \
+    -n "$(grep -F "$HS_TMP/badfaults:2: 'analysers=melt'" "$HS_TMP/badfaults.err")"
+
+# --- a device that goes away: its values turn stale after stale_after, with
+# the last good value; the other bus stays good.
+sed -e 's/^stale_after = 60s/stale_after = 1s/' "$CFG" >"$HS_TMP/stale.ini"
+check "simulator starts (stale)" start_sim
+"$PROBE" --config "$HS_TMP/stale.ini" --seconds 3.5 >"$HS_TMP/stale.json" &
+PROBE_PID=$!
+HS_PIDS+=("$PROBE_PID")
+sleep 1   # the scenario's timeline, not a readiness wait: let good reads happen first
+stop_sim
+wait "$PROBE_PID"
+check "a vanished device: its points go stale once, the other bus stays good" $PY - "$HS_TMP/stale.json" <<'PYEOF'
+import json, sys
+b = {o["bus"]: o for o in map(json.loads, open(sys.argv[1])) if "bus" in o}
+d, a = b["dikes"]["samples"], b["analysers"]["samples"]
+print(d, a)
+# 19 dike points, each stale once; the analysers lost their server too.
+sys.exit(0 if d["good"] > 0 and d["stale"] == 19 and d["comm-fail"] > 0 else 1)
+PYEOF
 
 # --- a hung device does not change another bus's cycle time.
 check "simulator starts (baseline)" start_sim

@@ -1,6 +1,6 @@
 /* halostage-sim --config FILE [--speed N] [--rtu BUS=PTY]...
  *               [--fault BUS[:UNIT]=KIND[:MS]]...
- *               [--truth FILE]
+ *               [--truth FILE] [--faults FILE]
  * KIND: timeout, exception, drop, nan, sentinel, latency:MS. BUS * is every bus.
  * Stops on SIGTERM or SIGINT. */
 #include <getopt.h>
@@ -26,7 +26,8 @@ static void usage(FILE *to)
     fprintf(to, "usage: halostage-sim --config FILE [--speed N] [--rtu BUS=PTY]...\n"
                 "                     [--fault BUS[:UNIT]=KIND]... [--truth FILE]\n"
                 "  KIND: timeout, exception, drop, nan, sentinel, latency:MS; BUS * = all\n"
-                "  --truth FILE: keep the model's true pond values in FILE (JSON)\n");
+                "  --truth FILE: keep the model's true pond values in FILE (JSON)\n"
+                "  --faults FILE: faults from a file, one BUS[:UNIT]=KIND a line, # comments\n");
 }
 
 static int parse_fault(sim *s, const char *text)
@@ -69,16 +70,48 @@ static int parse_fault(sim *s, const char *text)
     return 0;
 }
 
+/* One fault a line (BUS[:UNIT]=KIND), blank lines and # comments allowed.
+ * 0, or -1 after printing FILE:LINE: reason. */
+static int read_fault_file(sim *s, const char *path)
+{
+    FILE *f = fopen(path, "r");
+    char line[256];
+    int n = 0, rc = 0;
+    if (!f) {
+        fprintf(stderr, "halostage-sim: %s: cannot open\n", path);
+        return -1;
+    }
+    while (fgets(line, sizeof line, f)) {
+        n++;
+        char *p = line, *end;
+        while (*p == ' ' || *p == '\t')
+            p++;
+        end = p + strcspn(p, "#\r\n");
+        while (end > p && (end[-1] == ' ' || end[-1] == '\t'))
+            end--;
+        *end = '\0';
+        if (*p && parse_fault(s, p) != 0) {
+            fprintf(stderr, "halostage-sim: %s:%d: '%s' is not BUS[:UNIT]=KIND (KIND timeout, "
+                    "exception, drop, nan, sentinel or latency:MS), or too many faults\n",
+                    path, n, p);
+            rc = -1;
+        }
+    }
+    fclose(f);
+    return rc;
+}
+
 int main(int argc, char **argv)
 {
     static const struct option opts[] = {
         {"config", required_argument, NULL, 'c'}, {"speed", required_argument, NULL, 's'},
         {"rtu", required_argument, NULL, 'r'},    {"fault", required_argument, NULL, 'f'},
         {"truth", required_argument, NULL, 't'},
+        {"faults", required_argument, NULL, 'F'},
         {"help", no_argument, NULL, 'h'},         {NULL, 0, NULL, 0},
     };
     static sim s;
-    const char *config = NULL, *truth = NULL;
+    const char *config = NULL, *truth = NULL, *fault_file = NULL;
     const char *rtu[16], *faults[SIM_FAULTS_MAX];
     int n_rtu = 0, n_faults = 0, c;
     s.speed = 1.0;
@@ -97,6 +130,7 @@ int main(int argc, char **argv)
         case 'r': if (n_rtu < 16) rtu[n_rtu++] = optarg; break;
         case 'f': if (n_faults < SIM_FAULTS_MAX) faults[n_faults++] = optarg; break;
         case 't': truth = optarg; break;
+        case 'F': fault_file = optarg; break;
         case 'h': usage(stdout); return 0;
         default: usage(stderr); return 2;
         }
@@ -136,6 +170,8 @@ int main(int argc, char **argv)
                     "timeout, exception, drop, nan, sentinel or latency:MS\n", faults[i]);
             goto out;
         }
+    if (fault_file && read_fault_file(&s, fault_file) != 0)
+        goto out;
     if (sim_model_init(&s) != 0)
         goto out;
     struct sigaction sa = {0};
