@@ -16,6 +16,7 @@ struct problem {
     double base_water;
     int list[MAXA]; /* minerals present */
     int count;
+    int carbonate;  /* speciate at the set's pCO2 (alkalinity in the CO3 slot) */
 };
 
 /* Dissolved amounts and water for amounts n[] of the present minerals.
@@ -48,13 +49,20 @@ static int composition(const struct problem *p, const double n[], double mol[HC_
 static hc_status residuals(const struct problem *p, const double n[], double f[],
                            hc_equilibrium *state)
 {
-    double mol[HC_ION_COUNT], water, m[HC_ION_COUNT];
+    double mol[HC_ION_COUNT], water, total[HC_ION_COUNT], m[HC_ION_COUNT];
     if (composition(p, n, mol, &water) != 0)
         return HC_ERR_DOMAIN;
     for (int i = 0; i < HC_ION_COUNT; i++)
-        m[i] = mol[i] / water;
+        total[i] = mol[i] / water;
     hc_pitzer_result r;
-    hc_status st = hc_pitzer_eval(p->pitzer, m, &r);
+    hc_carbonate_result cr = {.ph = NAN};
+    hc_status st;
+    if (p->carbonate) {
+        st = hc_carbonate_speciate(p->pitzer, &p->set->carbonate, total, m, &r, &cr);
+    } else {
+        memcpy(m, total, sizeof m);
+        st = hc_pitzer_eval(p->pitzer, m, &r);
+    }
     if (st != HC_OK)
         return st;
     for (int k = 0; k < p->count; k++) {
@@ -65,6 +73,8 @@ static hc_status residuals(const struct problem *p, const double n[], double f[]
     }
     if (state != NULL) {
         memcpy(state->molality, m, sizeof m);
+        memcpy(state->total, total, sizeof total);
+        state->carbonate = cr;
         state->water_kg = water;
         state->pitzer = r;
         hc_saturation_indices(p->set, m, &r, state->saturation_index);
@@ -254,7 +264,16 @@ hc_status hc_equilibrate(const hc_pitzer_params *pitzer, const hc_mineral_set *s
         if (base_mol[i] < 0.0)
             return HC_ERR_NEGATIVE;
     }
-    struct problem p = {pitzer, set, base_mol, base_water_kg, {0}, 0};
+    /* Open to CO2: alkalinity is what is conserved, held as CO3
+     * equivalents so that CaCO3 can draw on all of it. */
+    double base[HC_ION_COUNT];
+    memcpy(base, base_mol, sizeof base);
+    int carbonate = set->open_to_co2 && base[HC_ION_HCO3] + base[HC_ION_CO3] > 0.0;
+    if (carbonate) {
+        base[HC_ION_CO3] += 0.5 * base[HC_ION_HCO3];
+        base[HC_ION_HCO3] = 0.0;
+    }
+    struct problem p = {pitzer, set, base, base_water_kg, {0}, 0, carbonate};
     double amount[MAXA];
     for (int m = 0; m < HC_MINERAL_COUNT; m++)
         if (present[m] && set->enabled[m]) {

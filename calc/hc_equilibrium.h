@@ -19,7 +19,9 @@
 #include "hc_status.h"
 
 typedef struct {
-    double molality[HC_ION_COUNT];   /* [mol/kg water] */
+    double molality[HC_ION_COUNT];   /* free ions [mol/kg water] */
+    double total[HC_ION_COUNT];      /* totals (hc_carbonate.h convention) [mol/kg water] */
+    hc_carbonate_result carbonate;   /* pH and carbonate species; pH NaN without alkalinity */
     double water_kg;                 /* liquid water left [kg] */
     double saturation_index[HC_MINERAL_COUNT];
     hc_pitzer_result pitzer;
@@ -30,6 +32,10 @@ typedef struct {
  * available [kg]. present[] (in: a guess, out: the assemblage) and n[] (in:
  * a guess, out: amounts precipitated [mol], 0 for minerals not present).
  * Only minerals enabled in `set` can be present; n >= 0 always.
+ * Carbonate: when `set` is open to CO2 and the base carries alkalinity
+ * (HCO3 + 2 CO3), HCO3 and CO3 count together as alkalinity (the split
+ * given does not matter), the brine is speciated at the set's pCO2 for
+ * every evaluation, and CaCO3 takes 2 eq of alkalinity per mole.
  * HC_ERR_NOT_FINITE, HC_ERR_NEGATIVE, HC_ERR_NO_CONVERGENCE, HC_ERR_DOMAIN
  * (the water would be used up), else HC_OK. */
 hc_status hc_equilibrate(const hc_pitzer_params *pitzer, const hc_mineral_set *set,

@@ -9,8 +9,8 @@
 #define M_BR 79.904 /* g/mol, IUPAC 2013 */
 #define M_SR 87.62
 
-/* Moles per kg solution -> model molality; lumps Br and Sr, drops carbonate,
- * balances with Cl. mol[] and the lumped species are per kg of solution. */
+/* Moles per kg solution -> model molality; lumps Br and Sr, keeps the
+ * carbonate alkalinity, balances with Cl. mol[] and the lumped species are per kg of solution. */
 static hc_status finish(const double mol[HC_ION_COUNT], double br, double sr, double water,
                         hc_feed *out)
 {
@@ -28,9 +28,7 @@ static hc_status finish(const double mol[HC_ION_COUNT], double br, double sr, do
     if (!(cat_eq > 0.0))
         return HC_ERR_ARGUMENT;
     out->imbalance_percent = 100.0 * out->imbalance_eq / cat_eq;
-    out->dropped_carbonate = m[HC_ION_HCO3] + 2.0 * m[HC_ION_CO3];
-    m[HC_ION_HCO3] = 0.0;
-    m[HC_ION_CO3] = 0.0;
+    out->carbonate_alkalinity = m[HC_ION_HCO3] + 2.0 * m[HC_ION_CO3];
     double residual = hc_charge_balance(m); /* > 0: too few anions */
     if (m[HC_ION_CL] + residual < 0.0)
         return HC_ERR_DOMAIN;

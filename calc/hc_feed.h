@@ -5,9 +5,9 @@
  * Table 4) scaled to a practical salinity. A site can give its own
  * major-ion analysis in g/kg of solution or mg/L.
  * Lumping (the usual one for this model): Br counts as Cl and Sr as Ca, mole
- * for mole. The path does not model the carbonate system, so HCO3 and CO3
- * are dropped (and reported). Electroneutrality is then restored with Cl and
- * the adjustment is reported.
+ * for mole. HCO3 and CO3 are kept: their sum HCO3 + 2 CO3 is the carbonate
+ * alkalinity that the path conserves (hc_carbonate.h). Electroneutrality
+ * is then restored with Cl and the adjustment is reported.
  * Error convention: hc_status (HC_OK = 0). Pure. */
 #ifndef HC_FEED_H
 #define HC_FEED_H
@@ -31,10 +31,10 @@ typedef struct {
 
 typedef struct {
     char name[32];
-    double molality[HC_ION_COUNT]; /* model composition [mol/kg water], carbonate dropped */
+    double molality[HC_ION_COUNT]; /* model composition [mol/kg water] */
     double water_mass_fraction;    /* kg water per kg feed solution [1] */
     double practical_salinity;     /* PSS-78 of a seawater feed; NaN for an analysis */
-    double dropped_carbonate;      /* HCO3 + 2 CO3 dropped [eq/kg water] */
+    double carbonate_alkalinity;   /* HCO3 + 2 CO3 [eq/kg water] */
     double imbalance_eq;           /* charge imbalance of the analysis as given [eq/kg water] */
     double imbalance_percent;      /* 100 * imbalance / (sum of cation equivalents) */
     double chloride_adjustment;    /* Cl added (negative: removed) to balance [mol/kg water] */

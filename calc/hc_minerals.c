@@ -70,6 +70,15 @@ static double gypsum_analytic(double tk)
     return 68.2401 - 3221.51 / tk - 25.0627 * log10(tk);
 }
 
+/* Calcite and aragonite: log10 K(T) = a + b T + c/T + d log10 T, Plummer &
+ * Busenberg (1982, GCA 46, 1011) Table 5, used as a change from 25 degC. */
+static double caco3_analytic(hc_mineral m, double tk)
+{
+    double c = m == HC_MIN_CALCITE ? 2839.319 : 2903.293;
+    double a = m == HC_MIN_CALCITE ? -171.9065 : -171.9773;
+    return a - 0.077993 * tk + c / tk + 71.595 * log10(tk);
+}
+
 /* Returns the coefficient, 0 for invalid arguments. */
 int hc_mineral_ion_coeff(hc_mineral mineral, hc_ion ion)
 {
@@ -105,7 +114,7 @@ hc_stage hc_mineral_stage(hc_mineral mineral)
 /* Returns 1 or 0. */
 int hc_mineral_has_temperature_function(hc_mineral mineral)
 {
-    if (mineral == HC_MIN_GYPSUM)
+    if (mineral == HC_MIN_GYPSUM || mineral == HC_MIN_CALCITE || mineral == HC_MIN_ARAGONITE)
         return 1;
     for (size_t i = 0; i < sizeof vh / sizeof vh[0]; i++)
         if (vh[i].mineral == mineral)
@@ -137,12 +146,21 @@ hc_status hc_mineral_log_k(hc_mineral mineral, double t_c, double *log_k)
     }
     if (mineral == HC_MIN_GYPSUM)
         lk += gypsum_analytic(tk) - gypsum_analytic(t0);
+    if (mineral == HC_MIN_CALCITE || mineral == HC_MIN_ARAGONITE)
+        lk += caco3_analytic(mineral, tk) - caco3_analytic(mineral, t0);
     *log_k = lk;
     return HC_OK;
 }
 
-/* Returns HC_OK or the error of hc_mineral_log_k. */
+/* Returns HC_OK or the error of hc_mineral_set_at_pco2. */
 hc_status hc_mineral_set_at(double t_c, unsigned flags, hc_mineral_set *out)
+{
+    return hc_mineral_set_at_pco2(t_c, flags, HC_LOG_PCO2_AIR, out);
+}
+
+/* Returns HC_OK, the error of hc_mineral_log_k or of hc_carbonate_params_at. */
+hc_status hc_mineral_set_at_pco2(double t_c, unsigned flags, double log_p_co2,
+                                 hc_mineral_set *out)
 {
     memset(out, 0, sizeof *out);
     out->t_c = t_c;
@@ -154,6 +172,16 @@ hc_status hc_mineral_set_at(double t_c, unsigned flags, hc_mineral_set *out)
     }
     if (!(flags & HC_MINERALS_WITH_ANHYDRITE))
         out->enabled[HC_MIN_ANHYDRITE] = 0;
+    /* One CaCO3 phase at a time: aragonite unless calcite is asked for. */
+    out->enabled[(flags & HC_MINERALS_CALCITE) ? HC_MIN_ARAGONITE : HC_MIN_CALCITE] = 0;
+    if (flags & HC_MINERALS_NO_CARBONATE) {
+        out->enabled[HC_MIN_ARAGONITE] = out->enabled[HC_MIN_CALCITE] = 0;
+    } else {
+        hc_status st = hc_carbonate_params_at(t_c, log_p_co2, &out->carbonate);
+        if (st != HC_OK)
+            return st;
+        out->open_to_co2 = 1;
+    }
     if (t_c < 0.0 || t_c > 50.0)
         out->warnings |= HC_WARN_TEMPERATURE_EXTRAPOLATED;
     return HC_OK;

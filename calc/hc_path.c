@@ -23,6 +23,8 @@ struct run {
     unsigned char present[HC_MINERAL_COUNT];
     double cumulative[HC_MINERAL_COUNT]; /* [mol per kg feed water] */
     hc_equilibrium eq;
+    int caco3;                       /* the CaCO3 phase waiting to nucleate, or -1 */
+    double caco3_onset_si;           /* SI at which it nucleates */
 };
 
 /* One evaporation step of d_evap kg. Returns HC_OK or the solver's error;
@@ -39,8 +41,8 @@ static hc_status advance_once(struct run *r, double d_evap)
         st = hc_equilibrate(r->pitzer, r->set, r->dissolved, base_w, next.present, n, &next.eq);
         if (st != HC_OK)
             return st;
-        for (int i = 0; i < HC_ION_COUNT; i++)
-            next.dissolved[i] = next.eq.molality[i] * next.eq.water_kg;
+        for (int i = 0; i < HC_ION_COUNT; i++) /* totals: ion pairs stay with their ions */
+            next.dissolved[i] = next.eq.total[i] * next.eq.water_kg;
         for (int m = 0; m < HC_MINERAL_COUNT; m++) {
             next.cumulative[m] += n[m];
             next.n[m] = n[m];
@@ -58,6 +60,18 @@ static hc_status advance_once(struct run *r, double d_evap)
     next.evaporated = r->evaporated + d_evap;
     *r = next;
     return HC_OK;
+}
+
+/* CaCO3 nucleation: the CaCO3 phase stays out until its SI reaches
+ * r->caco3_onset_si, then joins and the brine is brought back to
+ * equilibrium at the same water. Returns HC_OK or the solver's error. */
+static hc_status nucleate(struct run *r, hc_mineral_set *set)
+{
+    if (r->caco3 < 0 || set->enabled[r->caco3] ||
+        !(r->eq.saturation_index[r->caco3] >= r->caco3_onset_si))
+        return HC_OK;
+    set->enabled[r->caco3] = 1;
+    return advance_once(r, 0.0);
 }
 
 /* A step, split in halves (recursively) when the solver fails. */
@@ -81,13 +95,20 @@ static void record(const struct run *r, const hc_feed *feed, double t_c, hc_path
     memset(p, 0, sizeof *p);
     p->concentration_factor = 1.0 / r->water;
     p->water_removed_fraction = r->evaporated;
+    /* Free ions with the neutral ion pairs counted in their ions, so that
+     * the dissolved mass (and the density from it) misses nothing. */
     memcpy(p->molality, r->eq.molality, sizeof p->molality);
+    p->molality[HC_ION_CA] += r->eq.carbonate.caco3_pair;
+    p->molality[HC_ION_MG] += r->eq.carbonate.mgco3_pair;
+    p->molality[HC_ION_CO3] += r->eq.carbonate.caco3_pair + r->eq.carbonate.mgco3_pair;
     for (int m = 0; m < HC_MINERAL_COUNT; m++)
         p->precipitated[m] = r->cumulative[m] * feed->water_mass_fraction;
     memcpy(p->saturation_index, r->eq.saturation_index, sizeof p->saturation_index);
     p->water_activity = r->eq.pitzer.water_activity;
     p->ionic_strength = r->eq.pitzer.ionic_strength;
     p->osmotic_coefficient = r->eq.pitzer.osmotic_coefficient;
+    p->ph = r->eq.carbonate.ph;
+    p->alkalinity = r->eq.carbonate.alkalinity;
     if (hc_brine_density(p->molality, t_c, &p->density_kg_m3) != HC_OK)
         p->density_kg_m3 = NAN;
     double g = hc_solute_g_per_kg_water(p->molality);
@@ -96,16 +117,18 @@ static void record(const struct run *r, const hc_feed *feed, double t_c, hc_path
 
 /* Onset of mineral m, which has first deposited at point `cur`; prev and
  * prev2 (may be NULL) are the two points before. The CF is where the SI trend
- * of the previous points reaches zero, kept within [prev, cur]. */
-static void onset_between(hc_mineral m, const hc_path_point *prev2, const hc_path_point *prev,
-                          const hc_path_point *cur, hc_path_onset *o)
+ * of the previous points reaches `threshold` (0, or the CaCO3 nucleation
+ * SI), kept within [prev, cur]. */
+static void onset_between(hc_mineral m, double threshold, const hc_path_point *prev2,
+                          const hc_path_point *prev, const hc_path_point *cur, hc_path_onset *o)
 {
     double l1 = log(prev->concentration_factor), l2 = log(cur->concentration_factor);
-    double s1 = prev->saturation_index[m], lon = l1;
+    double s1 = prev->saturation_index[m] - threshold, lon = l1;
     if (s1 < 0.0 && isfinite(s1)) {
         lon = l2;
         if (prev2 != NULL && isfinite(prev2->saturation_index[m])) {
-            double l0 = log(prev2->concentration_factor), s0 = prev2->saturation_index[m];
+            double l0 = log(prev2->concentration_factor);
+            double s0 = prev2->saturation_index[m] - threshold;
             if (s1 > s0 && l1 > l0)
                 lon = l1 - s1 * (l1 - l0) / (s1 - s0);
         }
@@ -149,12 +172,20 @@ hc_status hc_path_build_ex(const hc_feed *feed, double t_c, hc_path_mode mode,
         opt.max_cf = 2000.0;
     if (!(opt.step > 0.001 && opt.step <= 0.2) || !(opt.max_cf > 1.0 && opt.max_cf <= 1e5))
         return HC_ERR_ARGUMENT;
+    if (!(opt.log_p_co2 >= -8.0 && opt.log_p_co2 <= 0.0))
+        return HC_ERR_ARGUMENT;
     hc_pitzer_params pitzer;
     hc_mineral_set set;
     hc_status st = hc_pitzer_params_at(t_c, &pitzer);
     if (st != HC_OK)
         return st;
-    st = hc_mineral_set_at(t_c, opt.mineral_flags, &set);
+    if (opt.caco3_onset_si == 0.0)
+        opt.caco3_onset_si = HC_CACO3_ONSET_SI;
+    if (!(opt.caco3_onset_si < 2.0))
+        return HC_ERR_ARGUMENT;
+    if (opt.log_p_co2 == 0.0)
+        opt.log_p_co2 = HC_LOG_PCO2_AIR;
+    st = hc_mineral_set_at_pco2(t_c, opt.mineral_flags, opt.log_p_co2, &set);
     if (st != HC_OK)
         return st;
 
@@ -182,19 +213,40 @@ hc_status hc_path_build_ex(const hc_feed *feed, double t_c, hc_path_mode mode,
     r.water = 1.0;
     memcpy(r.total, feed->molality, sizeof r.total);
     memcpy(r.dissolved, feed->molality, sizeof r.dissolved);
+    /* CaCO3 waits for its nucleation SI (a negative setting: equilibrium). */
+    r.caco3 = set.enabled[HC_MIN_ARAGONITE] ? HC_MIN_ARAGONITE
+              : set.enabled[HC_MIN_CALCITE] ? HC_MIN_CALCITE : -1;
+    r.caco3_onset_si = opt.caco3_onset_si;
+    if (r.caco3 >= 0 && opt.caco3_onset_si > 0.0)
+        set.enabled[r.caco3] = 0;
+    else
+        r.caco3 = -1;
     st = advance(&r, 0.0, 0);
+    if (st == HC_OK)
+        st = nucleate(&r, &set);
     if (st != HC_OK)
         goto fail;
     record(&r, feed, t_c, &pts[0]);
     path->count = 1;
 
     unsigned char seen[HC_MINERAL_COUNT] = {0};
+    /* Minerals the feed itself deposits begin at CF 1. */
+    for (int m = 0; m < HC_MINERAL_COUNT; m++) {
+        if (!(r.cumulative[m] > 0.0))
+            continue;
+        seen[m] = 1;
+        onset_between((hc_mineral)m, 0.0, NULL, &pts[0], &pts[0],
+                      &path->onsets[path->onset_count++]);
+        hc_stage s = hc_mineral_stage((hc_mineral)m);
+        if (s >= 0 && !(path->stage_cf[s] <= 1.0))
+            path->stage_cf[s] = 1.0;
+    }
     int past_end = -1;
     for (int k = 1; k < MAX_STEPS && path->count < cap; k++) {
         double target = 1.0 - exp(-opt.step * k);
         if (target <= r.evaporated)
             continue;
-        if (advance(&r, target - r.evaporated, 0) != HC_OK)
+        if (advance(&r, target - r.evaporated, 0) != HC_OK || nucleate(&r, &set) != HC_OK)
             break; /* the path stops here; hc_path_complete tells */
         hc_path_point *cur = &pts[path->count];
         record(&r, feed, t_c, cur);
@@ -208,7 +260,10 @@ hc_status hc_path_build_ex(const hc_feed *feed, double t_c, hc_path_mode mode,
             seen[m] = 1;
             const hc_path_point *prev = &pts[path->count - 2];
             const hc_path_point *prev2 = path->count >= 3 ? &pts[path->count - 3] : NULL;
-            onset_between((hc_mineral)m, prev2, prev, cur, &path->onsets[path->onset_count]);
+            double thr = (m == HC_MIN_ARAGONITE || m == HC_MIN_CALCITE) && opt.caco3_onset_si > 0.0
+                             ? opt.caco3_onset_si : 0.0;
+            onset_between((hc_mineral)m, thr, prev2, prev, cur,
+                          &path->onsets[path->onset_count]);
             double cf = path->onsets[path->onset_count].concentration_factor;
             path->onset_count++;
             hc_stage s = hc_mineral_stage((hc_mineral)m);

@@ -16,8 +16,10 @@
  * Quantities: CF = initial water mass / remaining liquid water mass (not a
  * volume ratio). water_removed_fraction = water evaporated / initial water.
  * Precipitated amounts are cumulative, mol per kg of feed solution.
- * The carbonate system is not modelled (hc_feed drops HCO3 and CO3), so the
- * path has no carbonate stage.
+ * Carbonate: the feed's alkalinity is kept and the brine stays open to a
+ * fixed CO2 pressure (air, 10^-3.4 atm, unless set); CaCO3 forms as
+ * aragonite by default (calcite with HC_MINERALS_CALCITE), which makes the
+ * carbonate stage (hc_carbonate.h, hc_minerals.h).
  * Error convention: hc_status (HC_OK = 0). Pure apart from hc_path_build's
  * allocation (freed by hc_path_free). A built path is read-only and may be
  * shared between threads. */
@@ -36,12 +38,22 @@
 
 typedef enum { HC_PATH_FRACTIONAL, HC_PATH_EQUILIBRIUM } hc_path_mode;
 
+/* Saturation index CaCO3 must reach before it first deposits. Seawater is
+ * already supersaturated with aragonite (this model: SI +0.49 at CF 1;
+ * surface ocean Omega(aragonite) 3 to 4, from memory) yet deposits none:
+ * nucleation needs more. The value places the onset where field brines
+ * show it, CF 1.5 to 2 (DOMAIN sec. 7 [S]); it is fitted to that, not a
+ * published constant. Once formed, CaCO3 stays at equilibrium. */
+#define HC_CACO3_ONSET_SI 0.9
+
 typedef struct hc_path hc_path;
 
 typedef struct {
     double concentration_factor;    /* [1] */
     double water_removed_fraction;  /* evaporated / initial water [1] */
-    double molality[HC_ION_COUNT];  /* [mol/kg water] */
+    double molality[HC_ION_COUNT];  /* [mol/kg water]; HCO3/CO3 as speciated at the
+                                       path's pCO2, CaCO3(aq) and MgCO3(aq) counted
+                                       in Ca, Mg and CO3 */
     double precipitated[HC_MINERAL_COUNT]; /* cumulative [mol per kg feed solution];
                                                equilibrium mode: solids present */
     double saturation_index[HC_MINERAL_COUNT]; /* log10(IAP/K); -HUGE_VAL if an ion is absent */
@@ -50,6 +62,8 @@ typedef struct {
     double osmotic_coefficient;     /* [1] */
     double density_kg_m3;           /* at the path temperature [kg/m3] */
     double salinity_g_kg;           /* dissolved salts per kg brine [g/kg] */
+    double ph;                      /* -log10 a(H+) at the path's pCO2; NaN without alkalinity */
+    double alkalinity;              /* carbonate alkalinity [eq/kg water] */
 } hc_path_point;
 
 typedef struct {
@@ -67,6 +81,10 @@ typedef struct {
     unsigned mineral_flags; /* HC_MINERALS_* (anhydrite is off by default) */
     double step;            /* ln W step; 0 gives 0.02 */
     double max_cf;          /* stop beyond this CF (1..1e5); 0 gives 2000 */
+    double log_p_co2;       /* log10 pCO2 [atm], -8..0; 0 gives HC_LOG_PCO2_AIR (-3.4);
+                               1 atm itself cannot be asked for (no pond sees it) */
+    double caco3_onset_si;  /* CaCO3 nucleation SI (< 2); 0 gives HC_CACO3_ONSET_SI;
+                               negative: plain equilibrium from the feed on */
 } hc_path_options;
 
 /* Builds the path of `feed` at t_c [degC]. *out is allocated on success

@@ -10,8 +10,10 @@
  * other parameters keep their 25 degC values. Outside 0..50 degC the result
  * carries HC_WARN_TEMPERATURE_EXTRAPOLATED; outside -5..80 degC it is refused.
  *
- * Carbonate: the HMW84 binary carbonate parameters and theta values are
- * included; carbonate triplets (psi) and the ion pairs MgCO3/CaCO3 are not.
+ * Carbonate: the HMW84 binary carbonate parameters, theta and psi values
+ * are included (at their 25 degC values); Ca-CO3 and Mg-CO3 have no
+ * parameters because HMW84 treats them as the ion pairs CaCO3(aq) and
+ * MgCO3(aq), which hc_carbonate.h speciates.
  *
  * Error convention: hc_status (HC_OK = 0). Pure and re-entrant. */
 #ifndef HC_PITZER_H

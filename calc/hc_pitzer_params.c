@@ -47,10 +47,19 @@ static const struct triplet hmw_psi_cca[] = {
     {K, MG, CL, -0.022},   {K, MG, SO4, -0.048},
     {K, CA, CL, -0.025},   {K, CA, SO4, 0.0},
     {MG, CA, CL, -0.012},  {MG, CA, SO4, 0.024},
+    /* carbonate triplets (HMW84 Table 2, as transcribed in the pytzer library) */
+    {NA, K, HCO3, -0.003}, {NA, K, CO3, 0.003},
 };
 static const struct triplet hmw_psi_aac[] = {
     {CL, SO4, NA, 0.0014}, {CL, SO4, K, 0.0},
     {CL, SO4, MG, -0.004}, {CL, SO4, CA, -0.018},
+    /* carbonate triplets (HMW84 Table 2, as transcribed in the pytzer library;
+     * Peiper & Pitzer 1982 fitted -0.0143 for Na,Cl,HCO3, HMW84 lists -0.15) */
+    {CL, HCO3, NA, -0.15},  {CL, HCO3, MG, -0.096},
+    {CL, CO3, NA, 0.0085},  {CL, CO3, K, 0.004},
+    {SO4, HCO3, NA, -0.005}, {SO4, HCO3, MG, -0.161},
+    {SO4, CO3, NA, -0.005}, {SO4, CO3, K, -0.009},
+    {HCO3, CO3, NA, 0.002}, {HCO3, CO3, K, 0.012},
 };
 
 /* Moller (1988) eq. 13: P(T) = a1 + a2 T + a3/T + a4 ln T + a5/(T-263)

@@ -13,6 +13,7 @@
 #include "cli/ion_args.h"
 #include "hc_baume.h"
 #include "hc_brine_density.h"
+#include "hc_carbonate.h"
 #include "hc_minerals.h"
 #include "hc_pitzer.h"
 #include "hc_state.h"
@@ -25,6 +26,7 @@ struct brine_request {
     double t_c;
     double t_ref_c;
     double modulus;
+    double log_p_co2;       /* NaN: take HCO3/CO3 as given, no speciation */
     int json;
 };
 
@@ -41,6 +43,10 @@ static void usage(FILE *out)
             "  --temperature DEGC           brine temperature [degC], default 25\n"
             "  --reference-temperature T    for specific gravity and Baume: 15 (default), 20, 60F\n"
             "  --modulus M                  Baume modulus, default 145\n"
+            "  --pco2-log LOG10_ATM         speciate the carbonate at this CO2 pressure (air:\n"
+            "                               -3.4): HCO3 + 2 CO3 is kept as alkalinity, pH and\n"
+            "                               the CaCO3/MgCO3 ion pairs are computed; without it\n"
+            "                               HCO3 and CO3 are taken as given, free, without pH\n"
             "  --json                       one JSON object instead of the table\n");
 }
 
@@ -51,6 +57,7 @@ static int parse(int argc, char **argv, struct brine_request *rq)
     rq->t_c = 25.0;
     rq->t_ref_c = 15.0;
     rq->modulus = 145.0;
+    rq->log_p_co2 = NAN;
     int have = 0;
     for (int i = 1; i < argc; i++) {
         const char *a = argv[i];
@@ -75,6 +82,13 @@ static int parse(int argc, char **argv, struct brine_request *rq)
             rc = hs_cli_parse_number(CMD, a, v, &rq->t_c);
         } else if (strcmp(a, "--reference-temperature") == 0) {
             rc = hs_cli_parse_tref(CMD, v, &rq->t_ref_c);
+        } else if (strcmp(a, "--pco2-log") == 0) {
+            rc = hs_cli_parse_number(CMD, a, v, &rq->log_p_co2);
+            if (rc == 0 && !(rq->log_p_co2 >= -8.0 && rq->log_p_co2 <= 0.0)) {
+                fprintf(stderr, "halostage " CMD ": --pco2-log %s: outside -8..0 (log10 atm; "
+                                "air is -3.4)\n", v);
+                rc = -1;
+            }
         } else if (strcmp(a, "--modulus") == 0) {
             rc = hs_cli_parse_number(CMD, a, v, &rq->modulus);
             if (rc == 0 && !hc_baume_modulus_valid(rq->modulus)) {
@@ -98,6 +112,9 @@ static int parse(int argc, char **argv, struct brine_request *rq)
 
 struct brine_result {
     hc_brine_state state;
+    double molality[HC_ION_COUNT]; /* free ions: as given unless speciated [mol/kg] */
+    int speciated;
+    hc_carbonate_result carbonate;
     hc_pitzer_result pitzer;
     double charge_balance;  /* sum m z [eq/kg] */
     double mean_gamma;      /* NaN unless one cation and one anion */
@@ -127,14 +144,23 @@ static hc_status compute(const struct brine_request *rq, struct brine_result *r,
     *what = "--temperature";
     hc_status st = hc_pitzer_params_at(rq->t_c, &pp);
     if (st == HC_OK)
-        st = hc_mineral_set_at(rq->t_c, 0, &set);
+        st = hc_mineral_set_at_pco2(rq->t_c, HC_MINERALS_DEFAULT,
+                                    isfinite(rq->log_p_co2) ? rq->log_p_co2 : HC_LOG_PCO2_AIR,
+                                    &set);
     if (st != HC_OK)
         return st;
     *what = "--molality";
-    st = hc_pitzer_eval(&pp, rq->molality, &r->pitzer);
+    memcpy(r->molality, rq->molality, sizeof r->molality);
+    r->speciated = isfinite(rq->log_p_co2) &&
+                   rq->molality[HC_ION_HCO3] + rq->molality[HC_ION_CO3] > 0.0;
+    if (r->speciated)
+        st = hc_carbonate_speciate(&pp, &set.carbonate, rq->molality, r->molality, &r->pitzer,
+                                   &r->carbonate);
+    else
+        st = hc_pitzer_eval(&pp, rq->molality, &r->pitzer);
     if (st != HC_OK)
         return st;
-    hc_saturation_indices(&set, rq->molality, &r->pitzer, s->saturation_index);
+    hc_saturation_indices(&set, r->molality, &r->pitzer, s->saturation_index);
     for (int m = 0; m < HC_MINERAL_COUNT; m++)
         if (!isfinite(s->saturation_index[m]))
             s->saturation_index[m] = NAN;
@@ -179,10 +205,20 @@ static int print_json(const struct brine_request *rq, const struct brine_result 
     json_t *gam = json_object(), *mol = json_object();
     int ok = o != NULL && gam != NULL && mol != NULL;
     for (int i = 0; ok && i < HC_ION_COUNT; i++) {
-        if (rq->molality[i] <= 0.0)
+        if (r->molality[i] <= 0.0)
             continue;
         ok = json_object_set_new(gam, hc_ion_name((hc_ion)i), json_real(r->pitzer.gamma[i])) == 0 &&
-             json_object_set_new(mol, hc_ion_name((hc_ion)i), json_real(rq->molality[i])) == 0;
+             json_object_set_new(mol, hc_ion_name((hc_ion)i), json_real(r->molality[i])) == 0;
+    }
+    if (ok && r->speciated) {
+        const hc_carbonate_result *c = &r->carbonate;
+        ok = json_object_set_new(o, "ph", json_real(c->ph)) == 0 &&
+             json_object_set_new(o, "log_pco2_atm", json_real(rq->log_p_co2)) == 0 &&
+             json_object_set_new(o, "alkalinity_eq_kg", json_real(c->alkalinity)) == 0 &&
+             json_object_set_new(o, "dic_mol_kg", json_real(c->dic)) == 0 &&
+             json_object_set_new(o, "co2_mol_kg", json_real(c->co2)) == 0 &&
+             json_object_set_new(o, "caco3_pair_mol_kg", json_real(c->caco3_pair)) == 0 &&
+             json_object_set_new(o, "mgco3_pair_mol_kg", json_real(c->mgco3_pair)) == 0;
     }
     if (ok)
         ok = json_object_set_new(o, "molality", mol) == 0 &&
@@ -214,9 +250,18 @@ static void print_table(const struct brine_request *rq, const struct brine_resul
     printf("Brine at %.2f degC (Pitzer model, HMW84)\n", rq->t_c);
     printf("  %-8s %12s %10s %10s\n", "ion", "mol/kg", "gamma", "activity");
     for (int i = 0; i < HC_ION_COUNT; i++)
-        if (rq->molality[i] > 0.0)
-            printf("  %-8s %12.6g %10.4f %10.4g\n", hc_ion_name((hc_ion)i), rq->molality[i],
-                   r->pitzer.gamma[i], rq->molality[i] * r->pitzer.gamma[i]);
+        if (r->molality[i] > 0.0)
+            printf("  %-8s %12.6g %10.4f %10.4g\n", hc_ion_name((hc_ion)i), r->molality[i],
+                   r->pitzer.gamma[i], r->molality[i] * r->pitzer.gamma[i]);
+    if (r->speciated) {
+        const hc_carbonate_result *c = &r->carbonate;
+        printf("  (free ions, speciated at pCO2 10^%.2f atm; ion pairs CaCO3 %.3g, MgCO3 %.3g "
+               "mol/kg)\n", rq->log_p_co2, c->caco3_pair, c->mgco3_pair);
+        printf("\n  %-26s %.3f (activity scale)\n", "pH", c->ph);
+        printf("  %-26s %.4g eq/kg\n", "carbonate alkalinity", c->alkalinity);
+        printf("  %-26s %.4g mol/kg (CO2(aq) %.3g)\n", "dissolved inorganic C", c->dic,
+               c->co2);
+    }
     printf("\n  %-26s %.4f mol/kg\n", "ionic strength", r->pitzer.ionic_strength);
     printf("  %-26s %.4f\n", "osmotic coefficient", r->pitzer.osmotic_coefficient);
     printf("  %-26s %.4f\n", "water activity", r->pitzer.water_activity);

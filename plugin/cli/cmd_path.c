@@ -26,6 +26,7 @@ struct path_request {
     double t_ref_c;
     double modulus;
     unsigned mineral_flags;
+    double log_p_co2;
     int json;
     int all_steps;
 };
@@ -49,6 +50,11 @@ static void usage(FILE *out)
             "                              fractional (default): solids stay behind, as in a\n"
             "                              pond chain; equilibrium: solids stay in contact\n"
             "  --with-anhydrite            let anhydrite form (ponds make gypsum instead)\n"
+            "  --calcite                   CaCO3 forms as calcite; default aragonite (what\n"
+            "                              ponds make: Mg2+ in the brine inhibits calcite)\n"
+            "  --no-carbonate              drop HCO3/CO3: no CaCO3, no CO2 exchange\n"
+            "  --pco2-log LOG10_ATM        CO2 pressure the ponds see, log10 atm, default -3.4\n"
+            "                              (air, about 400 uatm); -8..-0.1\n"
             "  --reference-temperature T   for specific gravity and Baume: 15 (default), 20, 60F\n"
             "  --modulus M                 Baume modulus, default 145\n"
             "  --all-steps                 every step in the table, not a selection\n"
@@ -82,6 +88,14 @@ static int parse(int argc, char **argv, struct path_request *rq)
         }
         if (strcmp(a, "--with-anhydrite") == 0) {
             rq->mineral_flags |= HC_MINERALS_WITH_ANHYDRITE;
+            continue;
+        }
+        if (strcmp(a, "--calcite") == 0) {
+            rq->mineral_flags |= HC_MINERALS_CALCITE;
+            continue;
+        }
+        if (strcmp(a, "--no-carbonate") == 0) {
+            rq->mineral_flags |= HC_MINERALS_NO_CARBONATE;
             continue;
         }
         if (i + 1 >= argc) {
@@ -124,6 +138,13 @@ static int parse(int argc, char **argv, struct path_request *rq)
             }
         } else if (strcmp(a, "--temperature") == 0) {
             rc = hs_cli_parse_number(CMD, a, v, &rq->t_c);
+        } else if (strcmp(a, "--pco2-log") == 0) {
+            rc = hs_cli_parse_number(CMD, a, v, &rq->log_p_co2);
+            if (rc == 0 && !(rq->log_p_co2 >= -8.0 && rq->log_p_co2 <= -0.1)) {
+                fprintf(stderr, "halostage " CMD ": --pco2-log %s: outside -8..-0.1 (log10 "
+                                "atm; air is -3.4)\n", v);
+                rc = -1;
+            }
         } else if (strcmp(a, "--mode") == 0) {
             if (strcmp(v, "fractional") == 0)
                 rq->mode = HC_PATH_FRACTIONAL;
@@ -196,7 +217,7 @@ static json_t *feed_json(const hc_feed *f)
                                                      : json_null());
     json_object_set_new(o, "charge_imbalance_percent", json_real(f->imbalance_percent));
     json_object_set_new(o, "chloride_adjustment_mol_kg", json_real(f->chloride_adjustment));
-    json_object_set_new(o, "carbonate_dropped_eq_kg", json_real(f->dropped_carbonate));
+    json_object_set_new(o, "carbonate_alkalinity_eq_kg", json_real(f->carbonate_alkalinity));
     return o;
 }
 
@@ -221,6 +242,8 @@ static json_t *step_json(const struct path_request *rq, const hc_path *p, size_t
     json_object_set_new(o, "water_removed_fraction", json_real(pt->water_removed_fraction));
     json_object_set_new(o, "precipitated_mol_per_kg_feed", pre);
     json_object_set_new(o, "ionic_strength", json_real(pt->ionic_strength));
+    json_object_set_new(o, "ph", isfinite(pt->ph) ? json_real(pt->ph) : json_null());
+    json_object_set_new(o, "alkalinity_eq_kg", json_real(pt->alkalinity));
     return o;
 }
 
@@ -261,6 +284,15 @@ static int print_json(const struct path_request *rq, const hc_path *p)
                                                           ? "fractional" : "equilibrium"));
         json_object_set_new(root, "reference_temperature_c", json_real(rq->t_ref_c));
         json_object_set_new(root, "baume_modulus", json_real(rq->modulus));
+        int carb = !(rq->mineral_flags & HC_MINERALS_NO_CARBONATE);
+        json_object_set_new(root, "log_pco2_atm",
+                            carb ? json_real(rq->log_p_co2 != 0.0 ? rq->log_p_co2
+                                                                  : HC_LOG_PCO2_AIR)
+                                 : json_null());
+        json_object_set_new(root, "caco3_phase",
+                            carb ? json_string((rq->mineral_flags & HC_MINERALS_CALCITE)
+                                                   ? "calcite" : "aragonite")
+                                 : json_null());
         json_object_set_new(root, "complete", json_boolean(hc_path_complete(p)));
         json_object_set_new(root, "steps", steps);
         json_object_set_new(root, "onsets", onsets);
@@ -289,8 +321,15 @@ static void print_tables(const struct path_request *rq, const hc_path *p)
         if (f->molality[i] > 0.0)
             printf(" %s %.5g", hc_ion_name((hc_ion)i), f->molality[i]);
     printf("\n  charge imbalance as given %+.3f %%, balanced with Cl %+.3g mol/kg; carbonate "
-           "dropped %.3g eq/kg (not modelled)\n", f->imbalance_percent, f->chloride_adjustment,
-           f->dropped_carbonate);
+           "alkalinity %.3g eq/kg\n", f->imbalance_percent, f->chloride_adjustment,
+           f->carbonate_alkalinity);
+    const hc_path_point *p0 = hc_path_step(p, 0);
+    if (rq->mineral_flags & HC_MINERALS_NO_CARBONATE)
+        printf("  carbonate left out (--no-carbonate)\n");
+    else
+        printf("  open to CO2 at 10^%.2f atm; feed pH %.2f; CaCO3 as %s\n",
+               rq->log_p_co2 != 0.0 ? rq->log_p_co2 : HC_LOG_PCO2_AIR, p0->ph,
+               (rq->mineral_flags & HC_MINERALS_CALCITE) ? "calcite" : "aragonite");
     printf("  SG and Baume at %g/%g degC, modulus %g\n\n", rq->t_ref_c, rq->t_ref_c,
            rq->modulus);
 
@@ -354,7 +393,7 @@ int hs_cmd_path(int argc, char **argv)
         return 1;
     }
     hc_path *p = NULL;
-    hc_path_options opt = {.mineral_flags = rq.mineral_flags};
+    hc_path_options opt = {.mineral_flags = rq.mineral_flags, .log_p_co2 = rq.log_p_co2};
     st = hc_path_build_ex(&feed, rq.t_c, rq.mode, &opt, &p);
     if (st != HC_OK) {
         if (st == HC_ERR_TEMPERATURE_RANGE)

@@ -1,5 +1,5 @@
 /* Speed of the brine thermodynamics: us per Pitzer evaluation (seawater and
- * a near-bittern brine), ms per evaporation path (built once per site, both
+ * a near-bittern brine), us per carbonate speciation, ms per evaporation path (built once per site, both
  * modes), and ns per runtime state lookup (from CF, from density at the path
  * temperature and at another one, from conductivity). Inputs vary so that
  * nothing is constant-folded; the best of several rounds is reported. */
@@ -8,6 +8,8 @@
 #include <time.h>
 
 #include "hc_brine_density.h"
+#include "hc_carbonate.h"
+#include "hc_minerals.h"
 #include "hc_path.h"
 #include "hc_pitzer.h"
 
@@ -45,8 +47,36 @@ static double bench_pitzer(const double base[HC_ION_COUNT], double *sink)
     return best;
 }
 
+/* ns per carbonate speciation at air pCO2 of `base` scaled by 0.9..1.1. */
+static double bench_speciate(const double base[HC_ION_COUNT], double *sink)
+{
+    enum { N = 20000 };
+    hc_pitzer_params p;
+    hc_carbonate_params c;
+    if (hc_pitzer_params_at(25.0, &p) != HC_OK ||
+        hc_carbonate_params_at(25.0, HC_LOG_PCO2_AIR, &c) != HC_OK)
+        exit(1);
+    double best = 1e300;
+    for (int r = 0; r < ROUNDS; r++) {
+        double t0 = now_ns(), acc = 0.0;
+        for (int i = 0; i < N; i++) {
+            double f = 0.9 + 0.2 * (i % 1000) / 1000.0, m[HC_ION_COUNT], fr[HC_ION_COUNT];
+            for (int k = 0; k < HC_ION_COUNT; k++)
+                m[k] = base[k] * f;
+            hc_pitzer_result res;
+            hc_carbonate_result cr;
+            if (hc_carbonate_speciate(&p, &c, m, fr, &res, &cr) == HC_OK)
+                acc += cr.ph;
+        }
+        double dt = (now_ns() - t0) / N;
+        best = dt < best ? dt : best;
+        *sink += acc;
+    }
+    return best;
+}
+
 /* ms per path build. */
-static double bench_build(hc_path_mode mode, size_t *steps)
+static double bench_build(hc_path_mode mode, unsigned flags, size_t *steps)
 {
     hc_feed f;
     if (hc_feed_seawater(35.0, &f) != HC_OK)
@@ -54,8 +84,9 @@ static double bench_build(hc_path_mode mode, size_t *steps)
     double best = 1e300;
     for (int r = 0; r < ROUNDS; r++) {
         hc_path *p = NULL;
+        hc_path_options opt = {.mineral_flags = flags};
         double t0 = now_ns();
-        if (hc_path_build(&f, 25.0, mode, &p) != HC_OK) {
+        if (hc_path_build_ex(&f, 25.0, mode, &opt, &p) != HC_OK) {
             fprintf(stderr, "bench_thermo: path build failed\n");
             exit(1);
         }
@@ -114,11 +145,17 @@ int main(void)
     const double bittern[HC_ION_COUNT] = {1.43, 0.635, 3.31, 0.0005, 6.53, 1.08, 0, 0};
     printf("pitzer eval, seawater:        %8.3f us\n", bench_pitzer(seawater, &sink) / 1e3);
     printf("pitzer eval, bittern:         %8.3f us\n", bench_pitzer(bittern, &sink) / 1e3);
+    const double seawater_c[HC_ION_COUNT] = {0.4861, 0.01058, 0.05474, 0.01075,
+                                             0.5668, 0.02927, 0.00178, 0.00025};
+    printf("carbonate speciation, seawater: %6.3f us (air pCO2, Pitzer passes included)\n",
+           bench_speciate(seawater_c, &sink) / 1e3);
     size_t steps = 0;
-    double ms = bench_build(HC_PATH_FRACTIONAL, &steps);
+    double ms = bench_build(HC_PATH_FRACTIONAL, 0, &steps);
     printf("path build, fractional:       %8.2f ms (%zu steps)\n", ms, steps);
-    ms = bench_build(HC_PATH_EQUILIBRIUM, &steps);
+    ms = bench_build(HC_PATH_EQUILIBRIUM, 0, &steps);
     printf("path build, equilibrium:      %8.2f ms (%zu steps)\n", ms, steps);
+    ms = bench_build(HC_PATH_FRACTIONAL, HC_MINERALS_NO_CARBONATE, &steps);
+    printf("path build, fractional:       %8.2f ms (%zu steps, --no-carbonate)\n", ms, steps);
     hc_feed f;
     hc_path *p = NULL;
     if (hc_feed_seawater(35.0, &f) != HC_OK ||

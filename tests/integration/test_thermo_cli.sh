@@ -56,15 +56,31 @@ refuse 1 'outside -5..80' brine --molality Na=1,Cl=1 --temperature 95
 refuse 1 'ionic strength' brine --molality Na=45,Cl=45
 refuse 2 'unknown option' brine --molality Na=1,Cl=1 --colour red
 
+# Seawater speciated at the air's pCO2: pH 8.1-8.3 on the activity scale
+# (Zeebe & Wolf-Gladrow 2001) [M]; alkalinity kept as given (definition).
+"$HS" brine --molality Na=0.486,K=0.0106,Mg=0.0547,Ca=0.0107,Cl=0.5668,SO4=0.0293,HCO3=0.00178,CO3=0.00025 \
+    --pco2-log -3.4 --json >"$out"
+check "brine --pco2-log: seawater pH 8.1-8.3, alkalinity kept" test "$(field "$out" \
+    '8.1 < d["ph"] < 8.3 and abs(d["alkalinity_eq_kg"] - 0.00228) < 1e-9')" = True
+refuse 2 'outside -8..0' brine --molality Na=1,Cl=1 --pco2-log 2
+
 # --- path ----------------------------------------------------------------
 "$HS" path --json >"$out"
 check "path --json exits 0" test $? -eq 0
 check "path reaches bischofite" test "$(field "$out" 'd["complete"]')" = True
-# Stage sequence from gypsum through halite into the magnesium and potash
-# salts to bischofite (DESIGN.md order; HMW84 fractional path [C]).
-check "stage sequence gypsum..bischofite" test "$(field "$out" \
+# Stage sequence from carbonate (aragonite, field onset CF 1.5-2, DOMAIN 7
+# [S]) and gypsum through halite into the magnesium and potash salts to
+# bischofite (DESIGN.md order; HMW84 fractional path [C]).
+check "stage sequence carbonate..bischofite" test "$(field "$out" \
     '" ".join(dict.fromkeys(s["stage"] for s in d["steps"]))')" = \
-    "seawater gypsum halite magnesium-sulfate potash bischofite"
+    "seawater carbonate gypsum halite magnesium-sulfate potash bischofite"
+check "path: feed pH at the air's pCO2 8.1-8.3 (seawater, activity scale) [M]" \
+    test "$(field "$out" '8.1 < d["steps"][0]["ph"] < 8.3 and d["caco3_phase"] == "aragonite"')" = True
+"$HS" path --no-carbonate --json >"$out"
+check "path --no-carbonate: no carbonate stage, no pH" test "$(field "$out" \
+    '"carbonate" not in [s["stage"] for s in d["steps"]] and d["steps"][0]["ph"] is None')" = True
+refuse 2 'outside -8..-0.1' path --pco2-log 1
+"$HS" path --json >"$out"
 # Onsets: gypsum CF 3.4, halite 10.65 (HMW84 fractional [C]); halite at
 # 26.0 deg Be (Baseggio 1974) [S].
 check "gypsum onset CF 3.2-4.1" test "$(field "$out" \
@@ -103,5 +119,5 @@ check "calc: conductivity near halite warns and prefers density" test "$(field "
     '"conductivity-weak" in d["warnings"] and "density-source-preferred" in d["warnings"]')" = True
 "$HS" calc --conductivity 53.07 --temperature 25 --json >"$out"
 check "calc: seawater keeps PSS-78 and gains its next stage" test "$(field "$out" \
-    'd["method"] + " " + d["stage"] + " " + d["next_stage"]')" = "pss78 seawater gypsum"
+    'd["method"] + " " + d["stage"] + " " + d["next_stage"]')" = "pss78 seawater carbonate"
 hs_finish

@@ -81,10 +81,10 @@ static void late_onsets_and_stage_order(void **unused)
 {
     (void)unused;
     /* Stages in DESIGN.md order, each beginning later than the one before. */
-    const hc_stage order[] = {HC_STAGE_GYPSUM, HC_STAGE_HALITE, HC_STAGE_MAGNESIUM_SULFATE,
-                              HC_STAGE_POTASH, HC_STAGE_BISCHOFITE};
+    const hc_stage order[] = {HC_STAGE_CARBONATE, HC_STAGE_GYPSUM, HC_STAGE_HALITE,
+                              HC_STAGE_MAGNESIUM_SULFATE, HC_STAGE_POTASH, HC_STAGE_BISCHOFITE};
     double prev = 1.0;
-    for (int i = 0; i < 5; i++) {
+    for (int i = 0; i < 6; i++) {
         double cf = hc_path_stage_cf(frac_path, order[i]);
         assert_true(isfinite(cf) && cf > prev);
         prev = cf;
@@ -94,9 +94,10 @@ static void late_onsets_and_stage_order(void **unused)
      * glauberite 13, polyhalite 38, epsomite 60, kainite 72, carnallite 117,
      * bischofite 160 with water activity 0.34; the table gives two or three
      * figures, so accept 5 %. (Epsomite about 70 and K salts about 90 are
-     * observed, McCaffrey et al. 1987 [M]: the model runs early there.) */
+     * observed, McCaffrey et al. 1987 [M]: the model runs early there.)
+     * Glauberite is checked apart below: carbonate moves it. */
     const struct { hc_mineral m; double cf; } want[] = {
-        {HC_MIN_GYPSUM, 3.4},       {HC_MIN_HALITE, 10.65},    {HC_MIN_GLAUBERITE, 13.0},
+        {HC_MIN_GYPSUM, 3.4},       {HC_MIN_HALITE, 10.65},
         {HC_MIN_POLYHALITE, 38.0},  {HC_MIN_EPSOMITE, 60.0},   {HC_MIN_KAINITE, 72.0},
         {HC_MIN_CARNALLITE, 117.0}, {HC_MIN_BISCHOFITE, 160.0},
     };
@@ -105,6 +106,14 @@ static void late_onsets_and_stage_order(void **unused)
         assert_non_null(o);
         assert_true(fabs(o->concentration_factor / want[i].cf - 1.0) < 0.05);
     }
+    /* Glauberite: HMW84 fractional CF 13 [C] was computed without
+     * carbonate. Aragonite takes about 0.9 mmol Ca per kg of water before
+     * gypsum, so gypsum takes that much less SO4 and glauberite (a sodium
+     * calcium sulfate) saturates earlier: CF 12.2 here against 13.5 with
+     * --no-carbonate [C, this model]. Accept 13 within 10 %. */
+    const hc_path_onset *g = onset_of(frac_path, HC_MIN_GLAUBERITE);
+    assert_non_null(g);
+    assert_true(fabs(g->concentration_factor / 13.0 - 1.0) < 0.10);
     const hc_path_onset *b = onset_of(frac_path, HC_MIN_BISCHOFITE);
     assert_true(fabs(b->water_activity - 0.34) < 0.02);
     /* Final liquor SG about 1.33-1.34 [S] (DOMAIN sec. 7). */
