@@ -118,6 +118,8 @@ hc_status hc_path_point_at_cf(const hc_path *path, double cf, hc_path_point *out
     out->osmotic_coefficient = lerp(a->osmotic_coefficient, b->osmotic_coefficient, f);
     out->density_kg_m3 = lerp(a->density_kg_m3, b->density_kg_m3, f);
     out->salinity_g_kg = lerp(a->salinity_g_kg, b->salinity_g_kg, f);
+    out->ph = lerp(a->ph, b->ph, f); /* NaN without carbonate */
+    out->alkalinity = lerp(a->alkalinity, b->alkalinity, f);
     return HC_OK;
 }
 

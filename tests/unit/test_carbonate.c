@@ -220,6 +220,19 @@ static void path_carbonate_stage(void **unused)
      * without carbonate there is no pH. */
     assert_true(hc_path_step(with, 0)->ph > 8.1 && hc_path_step(with, 0)->ph < 8.3);
     assert_true(isnan(hc_path_step(without, 0)->ph));
+    /* Lookups between steps carry pH and alkalinity (between the two
+     * neighbouring steps' values: linear interpolation). */
+    hc_path_point q;
+    assert_int_equal(hc_path_point_at_cf(with, 1.3, &q, NULL), HC_OK);
+    size_t k = 1;
+    while (hc_path_step(with, k)->concentration_factor < 1.3)
+        k++;
+    const hc_path_point *lo = hc_path_step(with, k - 1), *hi = hc_path_step(with, k);
+    assert_true(q.ph >= fmin(lo->ph, hi->ph) && q.ph <= fmax(lo->ph, hi->ph));
+    assert_true(q.alkalinity >= fmin(lo->alkalinity, hi->alkalinity) &&
+                q.alkalinity <= fmax(lo->alkalinity, hi->alkalinity));
+    assert_int_equal(hc_path_point_at_cf(without, 1.3, &q, NULL), HC_OK);
+    assert_true(isnan(q.ph) && q.alkalinity == 0.0);
     assert_true(isnan(hc_path_stage_cf(without, HC_STAGE_CARBONATE)));
     /* Calcite when asked for; never aragonite then. Calcite's lower
      * solubility (log K 0.19 lower, HMW84/DOMAIN sec. 5) lays down at
