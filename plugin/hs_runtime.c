@@ -7,6 +7,7 @@
 
 #include "hc_level.h"
 #include "hs_conf_alarm.h"
+#include "hs_conf_mqtt.h"
 #include "hs_config.h"
 #include "hs_log.h"
 #include "hs_runtime_private.h"
@@ -243,7 +244,9 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
             evaluate_pond(rt, i, now);
     if (periodic) {
         hs_alarm_tick(rt->alarms, now, alarm_emit, rt);
-        hs_rt_transfers_run(rt, mono, now);
+        /* no transfer decides on a site that has not been read yet */
+        if (rt->warm)
+            hs_rt_transfers_run(rt, mono, now);
         rt->next_eval_ms = mono + EVAL_EVERY_MS;
         rt->cycles++;
     }
@@ -279,6 +282,15 @@ int hs_runtime_reload(hs_runtime *rt, const char *config_path)
         hs_site_free(&fresh);
         return HSP_ERR_CONFIG;
     }
+    const hs_mqtt_conf *om = rt->site.mqtt, *nm = fresh.mqtt;
+    int old_mqtt_differs = (om == NULL) != (nm == NULL) ||
+                           (om != NULL && (strcmp(om->uri, nm->uri) != 0 ||
+                                           strcmp(om->topic_prefix, nm->topic_prefix) != 0 ||
+                                           strcmp(om->client_id, nm->client_id) != 0 ||
+                                           strcmp(om->username, nm->username) != 0 ||
+                                           strcmp(om->password_file, nm->password_file) != 0 ||
+                                           strcmp(om->ca_file, nm->ca_file) != 0 ||
+                                           om->enabled != nm->enabled));
     /* keep each transfer's timing memory across the reload, by name, so a
      * reload never restarts a pump's minimum off time */
     size_t n_old = rt->site.n_transfers;
@@ -293,6 +305,10 @@ int hs_runtime_reload(hs_runtime *rt, const char *config_path)
     hs_alarm_free(rt->alarms);
     rt->alarms = NULL;
     snprintf(rt->config_path, sizeof rt->config_path, "%s", config_path);
+    if (old_mqtt_differs)
+        hs_log(HSP_LOG_WARNING, "%s: [mqtt] changed: that takes a restart; the running link "
+               "stays as it was", config_path);
+    rt->warm = 0;
     int ok = site_parts_open(rt, models) == 0 && alarms_open(rt) == 0;
     for (size_t i = 0; ok && old_names != NULL && i < rt->site.n_transfers; i++)
         for (size_t j = 0; j < n_old; j++)

@@ -137,6 +137,7 @@ size_t hs_rt_drain(hs_runtime *rt, int64_t now_ms)
 void hs_rt_age_readings(hs_runtime *rt, int64_t now_ms)
 {
     const hs_site *site = &rt->site;
+    int warm = 1;
     for (size_t b = 0; b < site->n_buses; b++) {
         size_t n = rt->bus_n_points[b], failing = 0;
         /* before a first answer a bus counts as down only once it has had
@@ -148,11 +149,19 @@ void hs_rt_age_readings(hs_runtime *rt, int64_t now_ms)
                 failing++;
         }
         int down = n > 0 && failing == n;
+        int answered = 0;
+        for (size_t i = 0; i < n && !answered; i++)
+            answered = rt->readings[rt->bus_signals[b][i]].have;
+        if (n > 0 && !answered && !down)
+            warm = 0;
         if (down != rt->bus_down[b])
             hs_log(down ? HSP_LOG_WARNING : HSP_LOG_NOTICE, "[bus %s] is %s", site->buses[b].name,
                    down ? "down: no point answers" : "up again");
         rt->bus_down[b] = down;
     }
+    if (warm && !rt->warm)
+        hs_log(HSP_LOG_INFO, "every bus has answered or is known down: transfers decide from now");
+    rt->warm = rt->warm || warm;
     for (size_t s = 0; s < site->n_signals; s++) {
         hs_reading *r = &rt->readings[s];
         const hs_signal *sig = &site->signals[s];

@@ -74,6 +74,7 @@ struct hs_runtime {
     size_t *bus_n_points;
     hs_reading *readings;         /* per signal */
     int *bus_down;                /* per bus: every point of it failing */
+    int warm;                     /* every bus has answered once or is known down */
 
     struct hs_rt_pond *ponds;     /* per pond */
     struct hs_rt_transfer *transfers; /* per transfer */

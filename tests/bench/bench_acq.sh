@@ -33,7 +33,8 @@ for o in map(json.loads, open(sys.argv[1])):
     per = o["transactions"] / o["cycles"]
     print(f"demo bus {o['bus']:10s}: {per:.2f} transactions/cycle, plan {o['plan_reads']}, "
           f"minimum {o['min_reads']}, ratio {per / o['min_reads']:.2f}; "
-          f"mean cycle {o['mean_cycle_ms']:.1f} ms over {o['cycles']} cycles")
+          f"mean cycle {o['mean_cycle_ms']:.1f} ms over {o['cycles']} cycles "
+          f"(a ratio a little above 1 is the cycle still running when the probe stops)")
 PYEOF
 
 # 2. 50 TCP devices with 20 ms latency each
