@@ -50,7 +50,9 @@ static json_t *refuse(json_t *reply, int *ok, const char *fmt, const char *arg)
     char msg[256];
     snprintf(msg, sizeof msg, fmt, arg ? arg : "");
     json_object_set_new(reply, "ok", json_false());
-    json_object_set_new(reply, "error", json_string(msg));
+    json_t *text = json_string(msg);
+    /* Never a refusal without a reason, even if msg is not valid UTF-8. */
+    json_object_set_new(reply, "error", text ? text : json_string("command refused"));
     *ok = 0;
     return reply;
 }
@@ -108,8 +110,16 @@ json_t *hs_command_apply(hs_commands *c, const char *verb, const void *payload, 
             if (strcmp(key, key_names[i]) == 0)
                 k = i;
         if (k < 0 || verbs[v].keys[k] == 0) {
+            /* At most 60 bytes of the key, cut between UTF-8 characters so
+             * that the reply stays valid JSON text. */
             char what[96];
-            snprintf(what, sizeof what, "%.60s", key);
+            size_t cut = strlen(key);
+            if (cut > 60) {
+                cut = 60;
+                while (cut > 0 && ((unsigned char)key[cut] & 0xc0) == 0x80)
+                    cut--;
+            }
+            snprintf(what, sizeof what, "%.*s", (int)cut, key);
             json_decref(in);
             return refuse(reply, ok, "key '%s' is not part of this command", what);
         }

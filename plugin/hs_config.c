@@ -611,8 +611,11 @@ static void final_passes(hs_cfg *cfg)
         bool seen = false;
         for (size_t i = 0; i < cfg->n_objs && !seen; i++)
             seen = cfg->objs[i].type == type;
+        /* Named at the file's last line (where one would add it), so that
+         * every message about the file's content reads FILE:LINE:. */
         if (type->required && !seen)
-            hs_cfg_error(cfg, 0, "missing section [%s%s]", type->kind,
+            hs_cfg_error(cfg, cfg->line > 0 ? cfg->line : 1,
+                         "missing section [%s%s] (none in the file)", type->kind,
                          type->named ? " NAME" : "");
     }
     for (size_t i = 0; i < cfg->n_objs; i++)

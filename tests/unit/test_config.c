@@ -140,7 +140,7 @@ static void missing_required(void **s)
 static void missing_site(void **s)
 {
     (void)s;
-    expect_error("[pond c]\nrole = bittern\narea = 1 ha\n[bus x]\ntype = tcp\nhost = h\n", 0,
+    expect_error("[pond c]\nrole = bittern\narea = 1 ha\n[bus x]\ntype = tcp\nhost = h\n", 6,
                  "missing section [site]");
 }
 static void unknown_bus(void **s)
