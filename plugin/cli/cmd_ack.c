@@ -13,6 +13,7 @@
 #include <string.h>
 #include <time.h>
 
+#include "ion_args.h"
 #include "commands.h"
 #include "store_opts.h"
 
@@ -44,6 +45,7 @@ int hs_cmd_ack(int argc, char **argv)
     int unshelve = 0, c;
     char msg[256];
     optind = 1;
+    opterr = 0; /* one line of our own instead of getopt's and the usage */
     while ((c = getopt_long(argc, argv, "c:e:p:r:s:Uo:n:w:h", opts, NULL)) != -1) {
         switch (c) {
         case 'c': config = optarg; break;
@@ -61,7 +63,7 @@ int hs_cmd_ack(int argc, char **argv)
         case 'n': note = optarg; break;
         case 'w': wait_s = optarg; break;
         case 'h': usage(stdout); return 0;
-        default: usage(stderr); return 2;
+        default: hs_cli_bad_option("ack", argv, argc); return 2;
         }
     }
     if (oper == NULL)
@@ -70,8 +72,7 @@ int hs_cmd_ack(int argc, char **argv)
     if (config == NULL || optind < argc || (shelve && unshelve) || oper == NULL ||
         (event != 0) == (pond != NULL) || ((shelve || unshelve) && (event || !rule))) {
         fprintf(stderr, "halostage ack: need --config and either --event or --pond; shelving "
-                        "needs --pond and --rule; --operator when $USER is not set\n");
-        usage(stderr);
+                        "needs --pond and --rule; --operator when $USER is not set (see --help)\n");
         return 2;
     }
     int64_t wait_ms = 0, shelve_ms = 0;

@@ -173,6 +173,20 @@ static int parse_request(int argc, char **argv, struct calc_request *rq)
         fprintf(stderr, "halostage calc: --temperature is required\n");
         return 2;
     }
+    /* Values no brine can have are typing mistakes: refuse them rather than
+     * print the state at the end of the evaporation path. Bounds are
+     * generous (common practice, no source: saturated NaCl brine is near
+     * 250 mS/cm at 25 degC and the densest bitterns near 1400 kg/m3). */
+    if (rq->have_conductivity && rq->conductivity_ms_cm > 1000.0) {
+        fprintf(stderr, "halostage calc: --conductivity %g: above 1000 mS/cm, beyond any brine\n",
+                rq->conductivity_ms_cm);
+        return 2;
+    }
+    if (rq->have_density && rq->density_kg_m3 > 2000.0) {
+        fprintf(stderr, "halostage calc: --density %g: above 2000 kg/m3, beyond any brine\n",
+                rq->density_kg_m3);
+        return 2;
+    }
     return 0;
 }
 

@@ -8,6 +8,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "ion_args.h"
 #include "commands.h"
 #include "hs_publish.h"
 #include "store_opts.h"
@@ -147,6 +148,7 @@ int hs_cmd_export(int argc, char **argv)
     const char *what = "states";
     int csv = 0, c;
     optind = 1;
+    opterr = 0; /* one line of our own instead of getopt's and the usage */
     while ((c = getopt_long(argc, argv, "c:p:s:u:w:xh", opts, NULL)) != -1) {
         switch (c) {
         case 'c': config = optarg; break;
@@ -156,14 +158,13 @@ int hs_cmd_export(int argc, char **argv)
         case 'w': what = optarg; break;
         case 'x': csv = 1; break;
         case 'h': usage(stdout); return 0;
-        default: usage(stderr); return 2;
+        default: hs_cli_bad_option("export", argv, argc); return 2;
         }
     }
     if (config == NULL || !csv || optind < argc ||
         (strcmp(what, "states") != 0 && strcmp(what, "alarms") != 0)) {
         fprintf(stderr, "halostage export: need --csv and --config; --what is states or "
-                        "alarms\n");
-        usage(stderr);
+                        "alarms (see --help)\n");
         return 2;
     }
     char msg[256];

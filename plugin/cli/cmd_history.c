@@ -12,6 +12,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "ion_args.h"
 #include "commands.h"
 #include "hs_publish.h"
 #include "store_opts.h"
@@ -200,6 +201,7 @@ int hs_cmd_history(int argc, char **argv)
     int json = 0, c;
     char msg[256];
     optind = 1;
+    opterr = 0; /* one line of our own instead of getopt's and the usage */
     while ((c = getopt_long(argc, argv, "c:p:s:u:t:g:l:jh", opts, NULL)) != -1) {
         switch (c) {
         case 'c': config = optarg; break;
@@ -217,13 +219,12 @@ int hs_cmd_history(int argc, char **argv)
             break;
         case 'j': json = 1; break;
         case 'h': usage(stdout); return 0;
-        default: usage(stderr); return 2;
+        default: hs_cli_bad_option("history", argv, argc); return 2;
         }
     }
     if (config == NULL || since_s == NULL || (pond == NULL) == (signal == NULL) || optind < argc) {
         fprintf(stderr, "halostage history: need --config, --since and one of --pond or "
-                        "--signal\n");
-        usage(stderr);
+                        "--signal (see --help)\n");
         return 2;
     }
     int64_t now = hs_cli_now_ms(), since, until, step = 0;

@@ -11,6 +11,7 @@
 #include <string.h>
 #include <time.h>
 
+#include "ion_args.h"
 #include "commands.h"
 #include "hp_state_json.h"
 #include "hs_alarm.h"
@@ -239,16 +240,17 @@ int hs_cmd_status(int argc, char **argv)
     const char *config = NULL;
     int json = 0, c;
     optind = 1;
+    opterr = 0; /* one line of our own instead of getopt's and the usage */
     while ((c = getopt_long(argc, argv, "c:jh", opts, NULL)) != -1) {
         switch (c) {
         case 'c': config = optarg; break;
         case 'j': json = 1; break;
         case 'h': usage(stdout); return 0;
-        default: usage(stderr); return 2;
+        default: hs_cli_bad_option("status", argv, argc); return 2;
         }
     }
     if (config == NULL || optind != argc) {
-        usage(stderr);
+        fputs("halostage status: need --config FILE and nothing else (see --help)\n", stderr);
         return 2;
     }
     hs_site site;

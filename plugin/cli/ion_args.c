@@ -1,3 +1,4 @@
+#include <getopt.h>
 #include <errno.h>
 #include <math.h>
 #include <stdio.h>
@@ -20,6 +21,18 @@ int hs_cli_parse_number(const char *cmd, const char *opt, const char *text, doub
     }
     *out = v;
     return 0;
+}
+
+void hs_cli_bad_option(const char *cmd, char *const *argv, int argc)
+{
+    /* getopt leaves optind past the offending word (and past a missing value). */
+    const char *word = optind > 0 && optind <= argc ? argv[optind - 1] : "?";
+    if (optopt != 0 && word[0] == '-' && word[1] != '-')
+        fprintf(stderr, "halostage %s: option '-%c' unknown or missing its value (see --help)\n",
+                cmd, optopt);
+    else
+        fprintf(stderr, "halostage %s: option '%.80s' unknown or missing its value (see --help)\n",
+                cmd, word);
 }
 
 /* Returns 0 or -1 (message printed). */
