@@ -24,6 +24,9 @@ static const hs_key mqtt_keys[] = {
     KEY_PATH("key_file", M, key_file, HS_NO_DEFAULT, 0, "client key (PEM), with cert_file"),
     KEY_UINT("keepalive", M, keepalive_s, 5, 3600, "30", 0, "MQTT keepalive in seconds"),
     KEY_UINT("window", M, window, 1, 1024, "64", 0, "QoS 1 messages in flight at once"),
+    KEY_UINT("outbox_max", M, outbox_max, 100, 10000000, "100000", 0,
+             "messages kept while the broker is away; when full the oldest pond states give "
+             "way, alarms never"),
     KEY_BOOL("enabled", M, enabled, "yes", 0, "no: keep the section but publish nothing"),
     {NULL},
 };

@@ -20,6 +20,7 @@ typedef struct hs_mqtt_conf {
     char key_file[HS_PATH_MAX];  /* and its key */
     unsigned keepalive_s;
     unsigned window;           /* QoS 1 messages in flight */
+    unsigned outbox_max;       /* rows kept while the broker is away; then states give way */
     bool enabled;
 } hs_mqtt_conf;
 

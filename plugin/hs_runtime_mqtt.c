@@ -61,6 +61,7 @@ int hs_rt_mqtt_open(hs_runtime *rt)
                rt->site.path, m->line);
         return -1;
     }
+    hs_store_set_outbox_max(rt->store, m->outbox_max);
     char password[256] = "";
     if (m->password_file[0] && read_password(m->password_file, password, sizeof password) != 0)
         return -1;

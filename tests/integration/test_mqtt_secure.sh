@@ -19,7 +19,11 @@ mkcert() {
     openssl x509 -req -in "$D/server.csr" -CA "$D/ca.pem" -CAkey "$D/ca.key" \
         -CAcreateserial -days 2 -extfile "$D/san.ext" -out "$D/server.pem" &&
     openssl req -x509 -newkey ec -pkeyopt ec_paramgen_curve:prime256v1 -nodes -days 2 -subj "/CN=another CA" \
-        -keyout "$D/other.key" -out "$D/other.pem"
+        -keyout "$D/other.key" -out "$D/other.pem" &&
+    openssl req -newkey ec -pkeyopt ec_paramgen_curve:prime256v1 -nodes -subj "/CN=gateway-7" \
+        -keyout "$D/client.key" -out "$D/client.csr" &&
+    openssl x509 -req -in "$D/client.csr" -CA "$D/ca.pem" -CAkey "$D/ca.key" \
+        -CAcreateserial -days 2 -out "$D/client.pem"
 }
 mkcert >"$D/openssl.log" 2>&1 || not_ok "openssl makes the test certificates"
 chmod 644 "$D"/*.key  # the broker may run as another user (PITFALLS.md)
@@ -33,6 +37,7 @@ chmod 644 "$D/broker.passwd"
 
 PORT=$(hs_free_port)
 PORT2=$(hs_free_port)
+PORT3=$(hs_free_port)
 {
     echo "allow_anonymous false"
     echo "password_file $D/broker.passwd"
@@ -44,6 +49,12 @@ PORT2=$(hs_free_port)
         echo "certfile $D/server.pem"
         echo "keyfile $D/server.key"
     done
+    # A listener that also wants a client certificate from our CA.
+    echo "listener $PORT3 127.0.0.1"
+    echo "cafile $D/ca.pem"
+    echo "certfile $D/server.pem"
+    echo "keyfile $D/server.key"
+    echo "require_certificate true"
 } >"$D/broker.conf"
 mosquitto -c "$D/broker.conf" >"$D/broker.log" 2>&1 &
 HS_PIDS+=("$!")
@@ -92,6 +103,15 @@ check "the 127.0.0.2 listener works without the name check" test $? -eq 27
 "$AGENT" --db "$D/host.db" --uri "mqtts://127.0.0.2:$PORT2" --ca "$D/ca.pem" --user gateway-7 \
     --password-file "$D/pw-good" --alarms 1 --timeout-s 3 >"$D/host.log" 2>&1
 check "host name mismatch: never connected" test "$(grep -c '^connected' "$D/host.log")" -eq 0
+# A client certificate where the broker asks for one.
+"$AGENT" --db "$D/cert.db" --uri "mqtts://127.0.0.1:$PORT3" --ca "$D/ca.pem" \
+    --cert "$D/client.pem" --key "$D/client.key" --user gateway-7 \
+    --password-file "$D/pw-good" --alarms 2 --timeout-s 20 >"$D/cert.log" 2>&1
+check "client certificate: the outbox drains" grep -q "^drained" "$D/cert.log"
+"$AGENT" --db "$D/nocert.db" --uri "mqtts://127.0.0.1:$PORT3" --ca "$D/ca.pem" \
+    --user gateway-7 --password-file "$D/pw-good" --alarms 1 --timeout-s 3 >"$D/nocert.log" 2>&1
+check "no client certificate where one is required: never connected" \
+    test "$(grep -c '^connected' "$D/nocert.log")" -eq 0
 # mqtts without a CA file is refused before anything starts.
 "$AGENT" --db "$D/noca.db" --uri "$URI" --alarms 1 --timeout-s 4 >"$D/noca.log" 2>&1
 check "mqtts without a CA is refused (exit 78)" test $? -eq 78

@@ -127,6 +127,7 @@ static void mqtt_defaults(void **unused)
     assert_string_equal(site.mqtt->client_id, "halostaged-test-works");
     assert_int_equal(site.mqtt->keepalive_s, 30);
     assert_true(site.mqtt->enabled);
+    assert_int_equal(site.mqtt->outbox_max, 100000);
     hs_site_free(&site);
 }
 
