@@ -13,7 +13,7 @@
 #include <string.h>
 #include <time.h>
 
-#include "ion_args.h"
+#include "cli_number.h"
 #include "commands.h"
 #include "store_opts.h"
 

@@ -11,7 +11,7 @@
 #include <string.h>
 #include <time.h>
 
-#include "ion_args.h"
+#include "cli_number.h"
 #include "commands.h"
 #include "hp_state_json.h"
 #include "hs_alarm.h"
