@@ -115,6 +115,7 @@ static int site_parts_open(hs_runtime *rt, hs_brine_models *models)
     for (size_t i = 0; i < site->n_signals; i++)
         rt->readings[i] = (hs_reading){.value = NAN, .quality = HS_QUALITY_BAD};
     for (size_t i = 0; i < site->n_ponds; i++) {
+        hs_pond_aids_clear(&rt->ponds[i].aids);
         hc_state_clear(&rt->ponds[i].view.state);
         rt->ponds[i].view.depth_m = NAN;
         rt->ponds[i].view.quality = HS_QUALITY_BAD;
@@ -193,7 +194,8 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
 static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms)
 {
     struct hs_rt_pond *p = &rt->ponds[i];
-    hs_pond_evaluate(&rt->site, i, rt->readings, rt->models, rt->gravity_m_s2, now_ms, &p->view);
+    hs_pond_evaluate(&rt->site, i, rt->readings, rt->models, &p->aids, rt->gravity_m_s2, now_ms,
+                     &p->view);
     hs_rt_hydro_update(rt, i, now_ms);
     if (p->view.have_state) {
         hs_pond_extra extra;

@@ -47,6 +47,8 @@ struct hs_rt_transfer {
 /* Per-pond memory between cycles. */
 struct hs_rt_pond {
     hs_pond_view view;
+    hs_pond_aids aids;            /* calibration and manual reading (hs_runtime_calib.c) */
+    hc_calibration calibration;   /* aids.calibration points here when fitted */
     int dirty;                    /* new samples since the last evaluation */
     int64_t last_state_ms;        /* wall time of the last stored state */
     struct hs_hydro hydro;
