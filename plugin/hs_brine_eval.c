@@ -382,6 +382,10 @@ void hs_pond_evaluate(const hs_site *site, size_t pond, const hs_reading *readin
     return;
 no_state:
     hc_state_clear(&v->state);
+    /* what is known still shows (commissioning reads it from --once) */
+    v->state.temperature_c = usable(temp) ? temp->value : NAN;
+    v->state.reference_temperature_c = site->site.reference_temperature_c;
+    v->state.baume_modulus = site->site.baume_modulus;
     v->quality = HS_QUALITY_BAD;
     depth_of(site, pond, readings, g_m_s2, v);
 }
