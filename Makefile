@@ -152,12 +152,17 @@ demo: deps
 BINDIR    := $(PREFIX)/bin
 PLUGINDIR := $(PREFIX)/lib/halostage
 DOCDIR    := $(PREFIX)/share/doc/halostage
+MANDIR    := $(PREFIX)/share/man
 UNITDIR   ?= /etc/systemd/system
 CONFDIR   ?= /etc/halostage
 STATEDIR  ?= /var/lib/halostage
 install: all
 	install -d $(DESTDIR)$(BINDIR) $(DESTDIR)$(PLUGINDIR) $(DESTDIR)$(DOCDIR) \
-	    $(DESTDIR)$(UNITDIR) $(DESTDIR)$(CONFDIR)
+	    $(DESTDIR)$(UNITDIR) $(DESTDIR)$(CONFDIR) \
+	    $(DESTDIR)$(MANDIR)/man1 $(DESTDIR)$(MANDIR)/man5 $(DESTDIR)$(MANDIR)/man8
+	install -m 0644 plugin/cli/halostage.1 $(DESTDIR)$(MANDIR)/man1/
+	install -m 0644 config/halostage.conf.5 $(DESTDIR)$(MANDIR)/man5/
+	install -m 0644 plugin/host/halostaged.8 $(DESTDIR)$(MANDIR)/man8/
 	install -m 0755 $(BUILD)/halostage $(BUILD)/halostaged $(DESTDIR)$(BINDIR)/
 	install -m 0644 $(BUILD)/halostage.so $(DESTDIR)$(PLUGINDIR)/
 	install -m 0644 plugin/halostage_plugin.h README.md $(DESTDIR)$(DOCDIR)/
