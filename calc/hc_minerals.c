@@ -95,6 +95,17 @@ int hc_mineral_water(hc_mineral mineral)
     return defs[mineral].water;
 }
 
+double hc_mineral_molar_mass(hc_mineral mineral)
+{
+    if ((int)mineral < 0 || mineral >= HC_MINERAL_COUNT)
+        return 0.0;
+    /* M = sum nu_i M_i + n_w M_w; ion masses in g/mol, water in kg/mol. */
+    double g_mol = defs[mineral].water * HC_WATER_KG_PER_MOL * 1000.0;
+    for (int i = 0; i < HC_ION_COUNT; i++)
+        g_mol += defs[mineral].nu[i] * hc_ion_molar_mass((hc_ion)i);
+    return g_mol / 1000.0;
+}
+
 /* Returns the formula, NULL for an invalid mineral. */
 const char *hc_mineral_formula(hc_mineral mineral)
 {

@@ -49,6 +49,9 @@ typedef struct {
 int hc_mineral_ion_coeff(hc_mineral mineral, hc_ion ion);
 /* Moles of water of crystallisation per mole of mineral. */
 int hc_mineral_water(hc_mineral mineral);
+/* Formula mass [kg/mol], water of crystallisation included, from the ions'
+ * molar masses (hc_ion_molar_mass) and water's; 0 if invalid. */
+double hc_mineral_molar_mass(hc_mineral mineral);
 /* Chemical formula, e.g. "CaSO4.2H2O"; NULL if invalid. */
 const char *hc_mineral_formula(hc_mineral mineral);
 /* Stage in which the mineral deposits in a pond chain (calcium sulfates,

@@ -2,15 +2,6 @@
 #include "hc_minerals.h"
 #include "hc_path_private.h"
 
-/* Formula mass of a mineral [kg/mol], water of crystallisation included. */
-static double mineral_kg_per_mol(hc_mineral m)
-{
-    double g = hc_mineral_water(m) * HC_WATER_KG_PER_MOL * 1000.0;
-    for (int i = 0; i < HC_ION_COUNT; i++)
-        g += hc_mineral_ion_coeff(m, (hc_ion)i) * hc_ion_molar_mass((hc_ion)i);
-    return g / 1000.0;
-}
-
 /* Returns the number of rows hc_path_curve fills. */
 size_t hc_path_curve_rows(const hc_path *path)
 {
@@ -27,7 +18,7 @@ hc_status hc_path_curve(const hc_path *path, size_t n, double *cf, double *densi
         return HC_ERR_ARGUMENT;
     double kg_per_mol[HC_MINERAL_COUNT];
     for (int m = 0; m < HC_MINERAL_COUNT; m++)
-        kg_per_mol[m] = mineral_kg_per_mol((hc_mineral)m);
+        kg_per_mol[m] = hc_mineral_molar_mass((hc_mineral)m);
     double per_feed_water = 1.0 / path->feed.water_mass_fraction;
     for (size_t k = 0; k < n; k++) {
         const hc_path_point *p = &path->points[path->rising[k]];

@@ -10,18 +10,6 @@
 #include "hc_brine_density.h"
 #include "hc_minerals.h"
 
-double hs_mineral_molar_mass(hc_mineral mineral)
-{
-    double g = 0; /* [g/mol] */
-    for (int i = 0; i < HC_ION_COUNT; i++) {
-        int c = hc_mineral_ion_coeff(mineral, (hc_ion)i);
-        if (c != 0)
-            g += c * hc_ion_molar_mass((hc_ion)i);
-    }
-    g += hc_mineral_water(mineral) * HC_WATER_KG_PER_MOL * 1000.0;
-    return g / 1000.0;
-}
-
 void hs_ion_molar_masses(double mm[HC_ION_COUNT])
 {
     for (int i = 0; i < HC_ION_COUNT; i++)
@@ -65,7 +53,7 @@ int hs_brine_curve_from_path(const hc_path *path, struct hs_brine_curve *out, ch
     }
     double mineral_mass[HC_MINERAL_COUNT];
     for (int m = 0; m < HC_MINERAL_COUNT; m++)
-        mineral_mass[m] = hs_mineral_molar_mass((hc_mineral)m);
+        mineral_mass[m] = hc_mineral_molar_mass((hc_mineral)m);
     size_t rows = 0;
     for (size_t i = 0; i < n; i++) {
         const hc_path_point *p = hc_path_step(path, i);

@@ -31,9 +31,6 @@ int hs_brine_curve_from_path(const hc_path *path, struct hs_brine_curve *out, ch
                              size_t errlen);
 void hs_brine_curve_free(struct hs_brine_curve *c);
 
-/* Formula mass of a mineral [kg/mol] from its ions and water. */
-double hs_mineral_molar_mass(hc_mineral mineral);
-
 /* Molar masses of the model's ions [kg/mol], indexed by hc_ion. */
 void hs_ion_molar_masses(double mm_kg_mol[HC_ION_COUNT]);
 

@@ -3,41 +3,15 @@
  * clean goodbye at close: send everything the outbox holds, then the
  * retained gateway-offline status, then disconnect (so the will never
  * fires on a clean stop). */
-#include <errno.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include <sys/stat.h>
+#include <limits.h>
 
 #include "hs_conf_mqtt.h"
 #include "hs_log.h"
 #include "hs_runtime_private.h"
-
-/* The first line of a secret file. The file must not be readable or
- * writable by others; the owner and group may read it (a service group). */
-static int read_password(const char *path, char *buf, size_t len)
-{
-    struct stat st;
-    if (stat(path, &st) != 0) {
-        hs_log(HSP_LOG_ERR, "[mqtt] password_file %s: %s", path, strerror(errno));
-        return -1;
-    }
-    if (st.st_mode & (S_IROTH | S_IWOTH)) {
-        hs_log(HSP_LOG_ERR, "[mqtt] password_file %s: readable or writable by others; "
-               "chmod o= it first", path);
-        return -1;
-    }
-    FILE *f = fopen(path, "r");
-    if (f == NULL || fgets(buf, (int)len, f) == NULL) {
-        hs_log(HSP_LOG_ERR, "[mqtt] password_file %s: cannot read a first line", path);
-        if (f)
-            fclose(f);
-        return -1;
-    }
-    fclose(f);
-    buf[strcspn(buf, "\r\n")] = '\0';
-    return 0;
-}
+#include "hs_secret.h"
 
 int hs_rt_mqtt_open(hs_runtime *rt)
 {
@@ -62,9 +36,12 @@ int hs_rt_mqtt_open(hs_runtime *rt)
         return -1;
     }
     hs_store_set_outbox_max(rt->store, m->outbox_max);
-    char password[256] = "";
-    if (m->password_file[0] && read_password(m->password_file, password, sizeof password) != 0)
+    char password[256] = "", pw_err[PATH_MAX + 128];
+    if (m->password_file[0] &&
+        hs_read_secret(m->password_file, password, sizeof password, pw_err, sizeof pw_err) != 0) {
+        hs_log(HSP_LOG_ERR, "[mqtt] password_file %s", pw_err);
         return -1;
+    }
     char will_topic[HS_TOPIC_MAX], subscribe[HS_TOPIC_MAX + 4], err[256] = "";
     hs_topic(will_topic, sizeof will_topic, &rt->topics, "gateway", NULL, NULL);
     hs_topic(subscribe, sizeof subscribe - 2, &rt->topics, "command", NULL, NULL);

@@ -9,6 +9,7 @@
 
 #include <jansson.h>
 
+#include "cli/cli_number.h"
 #include "cli/commands.h"
 #include "cli/ion_args.h"
 #include "hc_baume.h"
@@ -69,28 +70,26 @@ static int parse(int argc, char **argv, struct brine_request *rq)
             rq->json = 1;
             continue;
         }
-        if (i + 1 >= argc) {
-            fprintf(stderr, "halostage " CMD ": %s needs a value (see --help)\n", a);
+        const char *v = hs_cli_value(CMD, argc, argv, &i);
+        if (v == NULL)
             return 2;
-        }
-        const char *v = argv[++i];
         int rc;
         if (strcmp(a, "--molality") == 0) {
             rc = hs_cli_parse_ions(CMD, a, v, rq->molality);
             have = 1;
         } else if (strcmp(a, "--temperature") == 0) {
-            rc = hs_cli_parse_number(CMD, a, v, &rq->t_c);
+            rc = hs_cli_number(CMD, a, v, &rq->t_c);
         } else if (strcmp(a, "--reference-temperature") == 0) {
-            rc = hs_cli_parse_tref(CMD, v, &rq->t_ref_c);
+            rc = hs_cli_tref(CMD, v, 0.0, 40.0, &rq->t_ref_c);
         } else if (strcmp(a, "--pco2-log") == 0) {
-            rc = hs_cli_parse_number(CMD, a, v, &rq->log_p_co2);
+            rc = hs_cli_number(CMD, a, v, &rq->log_p_co2);
             if (rc == 0 && !(rq->log_p_co2 >= -8.0 && rq->log_p_co2 <= 0.0)) {
                 fprintf(stderr, "halostage " CMD ": --pco2-log %s: outside -8..0 (log10 atm; "
                                 "air is -3.4)\n", v);
                 rc = -1;
             }
         } else if (strcmp(a, "--modulus") == 0) {
-            rc = hs_cli_parse_number(CMD, a, v, &rq->modulus);
+            rc = hs_cli_number(CMD, a, v, &rq->modulus);
             if (rc == 0 && !hc_baume_modulus_valid(rq->modulus)) {
                 fprintf(stderr, "halostage " CMD ": --modulus %s: must be a positive number "
                                 "(145, 144.3 or 146.78 are usual)\n", v);

@@ -8,7 +8,6 @@
  * come from the evaporation path of the feed (hc_path) at the sample
  * temperature. Beyond S_P 42 the path gives everything: from density, or
  * from conductivity through the built-in brine conductivity model. */
-#include <errno.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -16,6 +15,7 @@
 
 #include <jansson.h>
 
+#include "cli/cli_number.h"
 #include "cli/commands.h"
 #include "hc_baume.h"
 #include "hc_eos80.h"
@@ -65,38 +65,6 @@ static void usage(FILE *out)
             "  --json                   one JSON object instead of the table\n");
 }
 
-/* Parses a whole-string finite number; 0 on success. */
-static int parse_number(const char *opt, const char *text, double *out)
-{
-    char *end = NULL;
-    errno = 0;
-    double v = strtod(text, &end);
-    if (end == text || *end != '\0' || errno != 0 || !isfinite(v)) {
-        fprintf(stderr, "halostage calc: %s: '%s' is not a number\n", opt, text);
-        return -1;
-    }
-    *out = v;
-    return 0;
-}
-
-static int parse_reference_temperature(const char *text, double *t_ref_c)
-{
-    if (strcmp(text, "60F") == 0 || strcmp(text, "60f") == 0) {
-        *t_ref_c = HC_TREF_60F;
-        return 0;
-    }
-    if (parse_number("--reference-temperature", text, t_ref_c) != 0)
-        return -1;
-    if (*t_ref_c < HC_EOS80_T_MIN_C || *t_ref_c > HC_EOS80_T_VALID_MAX_C) {
-        fprintf(stderr,
-                "halostage calc: --reference-temperature %s: outside %.0f..%.0f degC "
-                "(usual: 15, 20 or 60F)\n",
-                text, HC_EOS80_T_MIN_C, HC_EOS80_T_VALID_MAX_C);
-        return -1;
-    }
-    return 0;
-}
-
 /* 0 ok, 2 usage error (message printed), 3 --help shown. */
 static int parse_request(int argc, char **argv, struct calc_request *rq)
 {
@@ -114,23 +82,21 @@ static int parse_request(int argc, char **argv, struct calc_request *rq)
             rq->json = 1;
             continue;
         }
-        if (i + 1 >= argc) {
-            fprintf(stderr, "halostage calc: %s needs a value (see --help)\n", a);
+        const char *v = hs_cli_value("calc", argc, argv, &i);
+        if (v == NULL)
             return 2;
-        }
-        const char *v = argv[++i];
         int rc = 0;
         if (strcmp(a, "--conductivity") == 0) {
-            rc = parse_number(a, v, &rq->conductivity_ms_cm);
+            rc = hs_cli_number("calc", a, v, &rq->conductivity_ms_cm);
             rq->have_conductivity = 1;
         } else if (strcmp(a, "--density") == 0) {
-            rc = parse_number(a, v, &rq->density_kg_m3);
+            rc = hs_cli_number("calc", a, v, &rq->density_kg_m3);
             rq->have_density = 1;
         } else if (strcmp(a, "--temperature") == 0) {
-            rc = parse_number(a, v, &rq->temperature_c);
+            rc = hs_cli_number("calc", a, v, &rq->temperature_c);
             rq->have_temperature = 1;
         } else if (strcmp(a, "--pressure") == 0) {
-            rc = parse_number(a, v, &rq->pressure_dbar);
+            rc = hs_cli_number("calc", a, v, &rq->pressure_dbar);
         } else if (strcmp(a, "--feed") == 0) {
             if (strcmp(v, "seawater") != 0) {
                 fprintf(stderr,
@@ -141,7 +107,7 @@ static int parse_request(int argc, char **argv, struct calc_request *rq)
             rq->feed_name = v;
             rq->opt.feed_sp = HC_SW_FEED_SP_DEFAULT;
         } else if (strcmp(a, "--feed-salinity") == 0) {
-            rc = parse_number(a, v, &rq->opt.feed_sp);
+            rc = hs_cli_number("calc", a, v, &rq->opt.feed_sp);
             if (rc == 0 && (rq->opt.feed_sp <= 0.0 || rq->opt.feed_sp > HC_PSS78_SP_MAX)) {
                 fprintf(stderr, "halostage calc: --feed-salinity %s: must be above 0 and at "
                                 "most %.0f\n", v, HC_PSS78_SP_MAX);
@@ -149,10 +115,11 @@ static int parse_request(int argc, char **argv, struct calc_request *rq)
             }
             rq->feed_name = "seawater (given salinity)";
         } else if (strcmp(a, "--reference-temperature") == 0) {
-            rc = parse_reference_temperature(v, &rq->opt.reference_temperature_c);
+            rc = hs_cli_tref("calc", v, HC_EOS80_T_MIN_C, HC_EOS80_T_VALID_MAX_C,
+                             &rq->opt.reference_temperature_c);
             rq->tref_text = v;
         } else if (strcmp(a, "--modulus") == 0) {
-            rc = parse_number(a, v, &rq->opt.baume_modulus);
+            rc = hs_cli_number("calc", a, v, &rq->opt.baume_modulus);
             if (rc == 0 && !hc_baume_modulus_valid(rq->opt.baume_modulus)) {
                 fprintf(stderr, "halostage calc: --modulus %s: must be a positive number "
                                 "(145, 144.3 or 146.78 are usual)\n", v);

@@ -18,6 +18,7 @@
 
 #include <jansson.h>
 
+#include "cli/cli_number.h"
 #include "cli/commands.h"
 #include "cli/hydro_cli.h"
 #include "cli/hydro_opts.h"
@@ -98,11 +99,9 @@ static int parse(int argc, char **argv, struct request *rq)
             fprintf(stderr, "halostage " CMD ": unexpected argument '%s' (see --help)\n", a);
             return 2;
         }
-        if (i + 1 >= argc) {
-            fprintf(stderr, "halostage " CMD ": %s needs a value (see --help)\n", a);
+        const char *v = hs_cli_value(CMD, argc, argv, &i);
+        if (v == NULL)
             return 2;
-        }
-        const char *v = argv[++i];
         int rc = hs_hcli_common_option(CMD, &rq->common, a, v);
         if (rc == 0)
             rc = hs_hopt_pond_option(CMD, a, &rq->pond, a + 2, v);
@@ -131,7 +130,7 @@ static int parse(int argc, char **argv, struct request *rq)
             fprintf(stderr, "halostage " CMD ": unknown option '%s' (see --help)\n", a);
             return 2;
         }
-        if (hs_hopt_number(CMD, a, v, num) != 0)
+        if (hs_cli_number(CMD, a, v, num) != 0)
             return 2;
     }
     if (isfinite(rq->humidity) && (rq->humidity < 0 || rq->humidity >= 1)) {

@@ -8,6 +8,7 @@
 
 #include <jansson.h>
 
+#include "cli/cli_number.h"
 #include "cli/commands.h"
 #include "cli/ion_args.h"
 #include "hc_baume.h"
@@ -98,11 +99,9 @@ static int parse(int argc, char **argv, struct path_request *rq)
             rq->mineral_flags |= HC_MINERALS_NO_CARBONATE;
             continue;
         }
-        if (i + 1 >= argc) {
-            fprintf(stderr, "halostage " CMD ": %s needs a value (see --help)\n", a);
+        const char *v = hs_cli_value(CMD, argc, argv, &i);
+        if (v == NULL)
             return 2;
-        }
-        const char *v = argv[++i];
         int rc = 0;
         if (strcmp(a, "--feed") == 0) {
             if (strcmp(v, "seawater") != 0) {
@@ -111,7 +110,7 @@ static int parse(int argc, char **argv, struct path_request *rq)
                 return 2;
             }
         } else if (strcmp(a, "--feed-salinity") == 0) {
-            rc = hs_cli_parse_number(CMD, a, v, &rq->feed_sp);
+            rc = hs_cli_number(CMD, a, v, &rq->feed_sp);
             if (rc == 0 && (rq->feed_sp < 2.0 || rq->feed_sp > 42.0)) {
                 fprintf(stderr, "halostage " CMD ": --feed-salinity %s: outside 2..42\n", v);
                 rc = -1;
@@ -129,7 +128,7 @@ static int parse(int argc, char **argv, struct path_request *rq)
                 rc = -1;
             }
         } else if (strcmp(a, "--feed-density") == 0) {
-            rc = hs_cli_parse_number(CMD, a, v, &rq->analysis.density_kg_m3);
+            rc = hs_cli_number(CMD, a, v, &rq->analysis.density_kg_m3);
             if (rc == 0 && (rq->analysis.density_kg_m3 < 990.0 ||
                             rq->analysis.density_kg_m3 > 1400.0)) {
                 fprintf(stderr, "halostage " CMD ": --feed-density %s: outside 990..1400 "
@@ -137,9 +136,9 @@ static int parse(int argc, char **argv, struct path_request *rq)
                 rc = -1;
             }
         } else if (strcmp(a, "--temperature") == 0) {
-            rc = hs_cli_parse_number(CMD, a, v, &rq->t_c);
+            rc = hs_cli_number(CMD, a, v, &rq->t_c);
         } else if (strcmp(a, "--pco2-log") == 0) {
-            rc = hs_cli_parse_number(CMD, a, v, &rq->log_p_co2);
+            rc = hs_cli_number(CMD, a, v, &rq->log_p_co2);
             if (rc == 0 && !(rq->log_p_co2 >= -8.0 && rq->log_p_co2 <= -0.1)) {
                 fprintf(stderr, "halostage " CMD ": --pco2-log %s: outside -8..-0.1 (log10 "
                                 "atm; air is -3.4)\n", v);
@@ -156,9 +155,9 @@ static int parse(int argc, char **argv, struct path_request *rq)
                 rc = -1;
             }
         } else if (strcmp(a, "--reference-temperature") == 0) {
-            rc = hs_cli_parse_tref(CMD, v, &rq->t_ref_c);
+            rc = hs_cli_tref(CMD, v, 0.0, 40.0, &rq->t_ref_c);
         } else if (strcmp(a, "--modulus") == 0) {
-            rc = hs_cli_parse_number(CMD, a, v, &rq->modulus);
+            rc = hs_cli_number(CMD, a, v, &rq->modulus);
             if (rc == 0 && !hc_baume_modulus_valid(rq->modulus)) {
                 fprintf(stderr, "halostage " CMD ": --modulus %s: must be a positive number\n",
                         v);

@@ -15,6 +15,7 @@
 
 #include <jansson.h>
 
+#include "cli/cli_number.h"
 #include "cli/commands.h"
 #include "cli/hydro_cli.h"
 #include "cli/hydro_opts.h"
@@ -81,11 +82,9 @@ static int parse(int argc, char **argv, struct request *rq)
             fprintf(stderr, "halostage " CMD ": unexpected argument '%s' (see --help)\n", a);
             return 2;
         }
-        if (i + 1 >= argc) {
-            fprintf(stderr, "halostage " CMD ": %s needs a value (see --help)\n", a);
+        const char *v = hs_cli_value(CMD, argc, argv, &i);
+        if (v == NULL)
             return 2;
-        }
-        const char *v = argv[++i];
         int rc = hs_hcli_common_option(CMD, &rq->common, a, v);
         if (rc == 0 && strncmp(a, "--from-", 7) == 0)
             rc = hs_hopt_pond_option(CMD, a, &rq->from, a + 7, v);
@@ -100,7 +99,7 @@ static int parse(int argc, char **argv, struct request *rq)
         else if (strcmp(a, "--to") == 0)
             rq->to_name = v;
         else if (strcmp(a, "--target-density") == 0) {
-            if (hs_hopt_number(CMD, a, v, &rq->target_kg_m3) != 0)
+            if (hs_cli_number(CMD, a, v, &rq->target_kg_m3) != 0)
                 return 2;
         } else {
             fprintf(stderr, "halostage " CMD ": unknown option '%s' (see --help)\n", a);

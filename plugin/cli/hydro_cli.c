@@ -1,4 +1,5 @@
 /* Shared plumbing of the hydrology commands (see hydro_cli.h). */
+#include "cli/cli_number.h"
 #include "cli/hydro_cli.h"
 
 #include <math.h>
@@ -41,7 +42,7 @@ int hs_hcli_common_option(const char *cmd, struct hs_hcli_common *c, const char 
         dst = &c->feed_sp;
     else
         return 0;
-    if (hs_hopt_number(cmd, opt, value, dst) != 0)
+    if (hs_cli_number(cmd, opt, value, dst) != 0)
         return -1;
     if (dst != &c->feed_sp && (*dst < -5 || *dst > 80)) {
         fprintf(stderr, "halostage %s: %s %s: outside -5..80 degC\n", cmd, opt, value);

@@ -1,24 +1,11 @@
 /* Shared options of the hydrology commands (see hydro_opts.h). */
 #include "cli/hydro_opts.h"
+#include "cli/cli_number.h"
 
-#include <errno.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-
-int hs_hopt_number(const char *cmd, const char *opt, const char *text, double *out)
-{
-    char *end = NULL;
-    errno = 0;
-    double v = strtod(text, &end);
-    if (end == text || *end != '\0' || errno != 0 || !isfinite(v)) {
-        fprintf(stderr, "halostage %s: %s: '%s' is not a number\n", cmd, opt, text);
-        return -1;
-    }
-    *out = v;
-    return 0;
-}
 
 void hs_hopt_pond_init(struct hs_cli_pond *p, const char *name)
 {
@@ -38,7 +25,7 @@ void hs_hopt_pond_free(struct hs_cli_pond *p)
 
 static int nonneg(const char *cmd, const char *opt, const char *text, double *out)
 {
-    if (hs_hopt_number(cmd, opt, text, out) != 0)
+    if (hs_cli_number(cmd, opt, text, out) != 0)
         return -1;
     if (*out < 0) {
         fprintf(stderr, "halostage %s: %s: '%s' must not be negative\n", cmd, opt, text);

@@ -25,9 +25,6 @@ struct hs_cli_pond {
     double band_low_kg_m3, band_high_kg_m3;
 };
 
-/* Whole-string finite number. */
-int hs_hopt_number(const char *cmd, const char *opt, const char *text, double *out);
-
 /* Sets every number to NaN and the name to `name`. */
 void hs_hopt_pond_init(struct hs_cli_pond *p, const char *name);
 

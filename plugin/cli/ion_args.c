@@ -1,43 +1,11 @@
-#include <errno.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 #include <strings.h>
 
+#include "cli/cli_number.h"
 #include "cli/ion_args.h"
-#include "hc_baume.h"
-
-/* Returns 0 or -1 (message printed). */
-int hs_cli_parse_number(const char *cmd, const char *opt, const char *text, double *out)
-{
-    char *end = NULL;
-    errno = 0;
-    double v = strtod(text, &end);
-    if (end == text || *end != '\0' || errno != 0 || !isfinite(v)) {
-        fprintf(stderr, "halostage %s: %s: '%s' is not a number\n", cmd, opt, text);
-        return -1;
-    }
-    *out = v;
-    return 0;
-}
-
-/* Returns 0 or -1 (message printed). */
-int hs_cli_parse_tref(const char *cmd, const char *text, double *t_ref_c)
-{
-    if (strcasecmp(text, "60F") == 0) {
-        *t_ref_c = HC_TREF_60F;
-        return 0;
-    }
-    if (hs_cli_parse_number(cmd, "--reference-temperature", text, t_ref_c) != 0)
-        return -1;
-    if (*t_ref_c < 0.0 || *t_ref_c > 40.0) {
-        fprintf(stderr, "halostage %s: --reference-temperature %s: outside 0..40 degC "
-                        "(usual: 15, 20 or 60F)\n", cmd, text);
-        return -1;
-    }
-    return 0;
-}
 
 static void known_ions(void)
 {
@@ -91,7 +59,7 @@ int hs_cli_parse_ions(const char *cmd, const char *opt, const char *text,
         char what[96];
         snprintf(what, sizeof what, "%s %s", opt, hc_ion_name((hc_ion)ion));
         double v;
-        if (hs_cli_parse_number(cmd, what, eq + 1, &v) != 0)
+        if (hs_cli_number(cmd, what, eq + 1, &v) != 0)
             return -1;
         if (v < 0.0) {
             fprintf(stderr, "halostage %s: %s: %s=%s cannot be negative\n", cmd, opt,

@@ -13,10 +13,4 @@
 int hs_cli_parse_ions(const char *cmd, const char *opt, const char *text,
                       double value[HC_ION_COUNT]);
 
-/* Parses a whole-string finite number; prints "CMD: OPT: 'TEXT' is not a number". */
-int hs_cli_parse_number(const char *cmd, const char *opt, const char *text, double *out);
-
-/* "15", "20" or "60F" for the SG/Baume reference temperature [degC]. */
-int hs_cli_parse_tref(const char *cmd, const char *text, double *t_ref_c);
-
 #endif

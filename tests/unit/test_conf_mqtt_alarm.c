@@ -14,91 +14,32 @@
 
 #include "hs_conf_alarm.h"
 #include "hs_conf_mqtt.h"
+#include "conf_file.h"
 #include "hs_config.h"
 
-static char dir[64];
-static char path[128];
+static conf_dir cd;
 static char pwpath[128];
+
+#define BASE CONF_BASE_TWO_PONDS /* lines 1..35 */
+
+static void expect_error(const char *text, int line, const char *what)
+{
+    conf_expect_error(&cd, text, line, what);
+}
 
 static int make_dir(void **state)
 {
     (void)state;
-    snprintf(dir, sizeof dir, "/tmp/hs-confma-XXXXXX");
-    if (!mkdtemp(dir))
+    if (conf_dir_make(&cd, "confma") != 0)
         return -1;
-    snprintf(path, sizeof path, "%s/site.ini", dir);
-    snprintf(pwpath, sizeof pwpath, "%s/mqtt.pw", dir);
+    snprintf(pwpath, sizeof pwpath, "%s/mqtt.pw", cd.dir);
     return 0;
 }
 
 static int remove_dir(void **state)
 {
     (void)state;
-    unlink(path);
-    unlink(pwpath);
-    return rmdir(dir);
-}
-
-static void write_file(const char *file, const char *text)
-{
-    FILE *f = fopen(file, "w");
-    assert_non_null(f);
-    assert_true(fputs(text, f) >= 0);
-    assert_int_equal(fclose(f), 0);
-}
-
-/* Lines 1..35; a [transfer] header appended is line 36. */
-#define BASE \
-    "[site]\n"                          /* 1 */ \
-    "name = test-works\n"               /* 2 */ \
-    "latitude = 10\n"                   /* 3 */ \
-    "[bus plc]\n"                       /* 4 */ \
-    "type = tcp\n"                      /* 5 */ \
-    "host = 127.0.0.1\n"                /* 6 */ \
-    "port = 1502\n"                     /* 7 */ \
-    "[pond a]\n"                        /* 8 */ \
-    "role = brine-store\n"              /* 9 */ \
-    "area = 2 ha\n"                     /* 10 */ \
-    "next = b\n"                        /* 11 */ \
-    "density_in = 1190 kg/m3\n"         /* 12 */ \
-    "density_out = 1215 kg/m3\n"        /* 13 */ \
-    "level_min = 0.5 m\n"               /* 14 */ \
-    "level_max = 2 m\n"                 /* 15 */ \
-    "[pond b]\n"                        /* 16 */ \
-    "role = crystalliser\n"             /* 17 */ \
-    "area = 5000 m2\n"                  /* 18 */ \
-    "density_in = 1210 kg/m3\n"         /* 19 */ \
-    "density_out = 1250 kg/m3\n"        /* 20 */ \
-    "level_min = 0.1 m\n"               /* 21 */ \
-    "level_max = 0.35 m\n"              /* 22 */ \
-    "[signal a.temperature]\n"          /* 23 */ \
-    "bus = plc\n"                       /* 24 */ \
-    "address = 10\n"                    /* 25 */ \
-    "type = int16\n"                    /* 26 */ \
-    "unit = C\n"                        /* 27 */ \
-    "[signal a.pump-run]\n"             /* 28 */ \
-    "bus = plc\n"                       /* 29 */ \
-    "address = 11\n"                    /* 30 */ \
-    "type = uint16\n"                   /* 31 */ \
-    "[signal a.pump-manual]\n"          /* 32 */ \
-    "bus = plc\n"                       /* 33 */ \
-    "address = 12\n"                    /* 34 */ \
-    "type = uint16\n"                   /* 35 */
-
-static void expect_error(const char *text, int line, const char *what)
-{
-    hs_site site;
-    hs_diag diag;
-    char prefix[200];
-    write_file(path, text);
-    assert_int_equal(hs_site_load(path, &site, &diag), -1);
-    snprintf(prefix, sizeof prefix, "%s:%d: ", path, line);
-    for (unsigned i = 0; i < diag.n; i++)
-        if (strncmp(diag.msg[i], prefix, strlen(prefix)) == 0 && strstr(diag.msg[i], what))
-            return;
-    for (unsigned i = 0; i < diag.n; i++)
-        print_message("got: %s\n", diag.msg[i]);
-    fail_msg("no error '%s...%s'", prefix, what);
+    return conf_dir_remove(&cd, "mqtt.pw", (const char *)NULL);
 }
 
 static void no_mqtt_section_means_off(void **unused)
@@ -106,8 +47,8 @@ static void no_mqtt_section_means_off(void **unused)
     (void)unused;
     hs_site site;
     hs_diag diag;
-    write_file(path, BASE);
-    assert_int_equal(hs_site_load(path, &site, &diag), 0);
+    conf_write_file(cd.path, BASE);
+    assert_int_equal(hs_site_load(cd.path, &site, &diag), 0);
     assert_null(site.mqtt);
     assert_int_equal(site.n_alarms, 0);
     hs_site_free(&site);
@@ -118,9 +59,9 @@ static void mqtt_defaults(void **unused)
     (void)unused;
     hs_site site;
     hs_diag diag;
-    write_file(path, BASE "[mqtt]\nuri = mqtt://127.0.0.1:1883\nusername = gw\n"
+    conf_write_file(cd.path, BASE "[mqtt]\nuri = mqtt://127.0.0.1:1883\nusername = gw\n"
                           "password_file = mqtt.pw\n");
-    assert_int_equal(hs_site_load(path, &site, &diag), 0);
+    assert_int_equal(hs_site_load(cd.path, &site, &diag), 0);
     assert_non_null(site.mqtt);
     assert_string_equal(site.mqtt->topic_prefix, "halostage");
     assert_string_equal(site.mqtt->password_file, pwpath); /* relative to the config */
@@ -149,9 +90,9 @@ static void alarm_rule_from_section(void **unused)
     (void)unused;
     hs_site site;
     hs_diag diag;
-    write_file(path, BASE "[alarm late-bittern]\nkind = bittern-limit\nrole = crystalliser\n"
+    conf_write_file(cd.path, BASE "[alarm late-bittern]\nkind = bittern-limit\nrole = crystalliser\n"
                           "high = 28.5\non_delay = 2min\n");
-    assert_int_equal(hs_site_load(path, &site, &diag), 0);
+    assert_int_equal(hs_site_load(cd.path, &site, &diag), 0);
     assert_int_equal(site.n_alarms, 1);
     const hs_alarm_rule *r = &site.alarms[0].rule;
     assert_string_equal(r->name, "late-bittern");
@@ -176,9 +117,9 @@ static void configured_rule_replaces_builtin(void **unused)
     (void)unused;
     hs_site site;
     hs_diag diag;
-    write_file(path, BASE "[alarm level-high]\nkind = level-high\nponds = a, b\nhigh = 1.8 \n"
+    conf_write_file(cd.path, BASE "[alarm level-high]\nkind = level-high\nponds = a, b\nhigh = 1.8 \n"
                           "priority = urgent\n");
-    assert_int_equal(hs_site_load(path, &site, &diag), 0);
+    assert_int_equal(hs_site_load(cd.path, &site, &diag), 0);
     hs_alarm_engine *eng = hs_alarm_new(1);
     assert_int_equal(hs_conf_alarms_apply(&site, eng), 2);
     /* What the runtime adds next from the pond's own level_max is refused. */

@@ -13,88 +13,30 @@
 
 #include "hc_state.h"
 #include "hs_conf_transfer.h"
+#include "conf_file.h"
 #include "hs_config.h"
 
-static char dir[64];
-static char path[128];
+static conf_dir cd;
+
+#define BASE CONF_BASE_TWO_PONDS /* lines 1..35 */
+
+static void expect_error(const char *text, int line, const char *what)
+{
+    conf_expect_error(&cd, text, line, what);
+}
 
 static int make_dir(void **state)
 {
     (void)state;
-    snprintf(dir, sizeof dir, "/tmp/hs-xfer-XXXXXX");
-    if (!mkdtemp(dir))
+    if (conf_dir_make(&cd, "xfer") != 0)
         return -1;
-    snprintf(path, sizeof path, "%s/site.ini", dir);
     return 0;
 }
 
 static int remove_dir(void **state)
 {
     (void)state;
-    unlink(path);
-    return rmdir(dir);
-}
-
-static void write_file(const char *text)
-{
-    FILE *f = fopen(path, "w");
-    assert_non_null(f);
-    assert_true(fputs(text, f) >= 0);
-    assert_int_equal(fclose(f), 0);
-}
-
-/* Lines 1..35; a [transfer] header appended is line 36. */
-#define BASE \
-    "[site]\n"                          /* 1 */ \
-    "name = test-works\n"               /* 2 */ \
-    "latitude = 10\n"                   /* 3 */ \
-    "[bus plc]\n"                       /* 4 */ \
-    "type = tcp\n"                      /* 5 */ \
-    "host = 127.0.0.1\n"                /* 6 */ \
-    "port = 1502\n"                     /* 7 */ \
-    "[pond a]\n"                        /* 8 */ \
-    "role = brine-store\n"              /* 9 */ \
-    "area = 2 ha\n"                     /* 10 */ \
-    "next = b\n"                        /* 11 */ \
-    "density_in = 1190 kg/m3\n"         /* 12 */ \
-    "density_out = 1215 kg/m3\n"        /* 13 */ \
-    "level_min = 0.5 m\n"               /* 14 */ \
-    "level_max = 2 m\n"                 /* 15 */ \
-    "[pond b]\n"                        /* 16 */ \
-    "role = crystalliser\n"             /* 17 */ \
-    "area = 5000 m2\n"                  /* 18 */ \
-    "density_in = 1210 kg/m3\n"         /* 19 */ \
-    "density_out = 1250 kg/m3\n"        /* 20 */ \
-    "level_min = 0.1 m\n"               /* 21 */ \
-    "level_max = 0.35 m\n"              /* 22 */ \
-    "[signal a.temperature]\n"          /* 23 */ \
-    "bus = plc\n"                       /* 24 */ \
-    "address = 10\n"                    /* 25 */ \
-    "type = int16\n"                    /* 26 */ \
-    "unit = C\n"                        /* 27 */ \
-    "[signal a.pump-run]\n"             /* 28 */ \
-    "bus = plc\n"                       /* 29 */ \
-    "address = 11\n"                    /* 30 */ \
-    "type = uint16\n"                   /* 31 */ \
-    "[signal a.pump-manual]\n"          /* 32 */ \
-    "bus = plc\n"                       /* 33 */ \
-    "address = 12\n"                    /* 34 */ \
-    "type = uint16\n"                   /* 35 */
-
-static void expect_error(const char *text, int line, const char *what)
-{
-    hs_site site;
-    hs_diag diag;
-    char prefix[200];
-    write_file(text);
-    assert_int_equal(hs_site_load(path, &site, &diag), -1);
-    snprintf(prefix, sizeof prefix, "%s:%d: ", path, line);
-    for (unsigned i = 0; i < diag.n; i++)
-        if (strncmp(diag.msg[i], prefix, strlen(prefix)) == 0 && strstr(diag.msg[i], what))
-            return;
-    for (unsigned i = 0; i < diag.n; i++)
-        print_message("got: %s\n", diag.msg[i]);
-    fail_msg("no error '%s...%s'", prefix, what);
+    return conf_dir_remove(&cd, (const char *)NULL);
 }
 
 static void defaults_from_ponds(void **unused)
@@ -102,8 +44,8 @@ static void defaults_from_ponds(void **unused)
     (void)unused;
     hs_site site;
     hs_diag diag;
-    write_file(BASE "[transfer feed]\nsource = a\ndestination = b\n");
-    assert_int_equal(hs_site_load(path, &site, &diag), 0);
+    conf_write_file(cd.path, BASE "[transfer feed]\nsource = a\ndestination = b\n");
+    assert_int_equal(hs_site_load(cd.path, &site, &diag), 0);
     assert_int_equal(site.n_transfers, 1);
     const hs_transfer_conf *t = &site.transfers[0];
     assert_string_equal(t->name, "feed");
@@ -127,12 +69,12 @@ static void stage_trigger_and_signals(void **unused)
     (void)unused;
     hs_site site;
     hs_diag diag;
-    write_file(BASE "[transfer feed]\nsource = a\ndestination = b\ntrigger = stage\n"
+    conf_write_file(cd.path, BASE "[transfer feed]\nsource = a\ndestination = b\ntrigger = stage\n"
                     "start_stage = halite\nrated_flow = 250\nfeedback = a.pump-run\n"
                     "manual = a.pump-manual\nactuate = yes\nbus = plc\noutput = register\n"
                     "output_address = 100\non_value = 2\nheartbeat_address = 101\n"
                     "min_on = 2min\nmax_run = 3h\n");
-    assert_int_equal(hs_site_load(path, &site, &diag), 0);
+    assert_int_equal(hs_site_load(cd.path, &site, &diag), 0);
     const hs_transfer_conf *t = &site.transfers[0];
     struct hs_transfer_rule r;
     hs_conf_transfer_rule(&site, t, &r);

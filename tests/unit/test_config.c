@@ -11,41 +11,13 @@
 #include <unistd.h>
 #include <cmocka.h>
 
+#include "conf_file.h"
 #include "hs_config.h"
 
 /* cmocka 1.1.5 has no floating-point assertion. */
 #define assert_double_equal(a, b, tol) assert_true(fabs((double)(a) - (double)(b)) <= (tol))
 
-static char dir[64];
-static char path[128];
-
-static int make_dir(void **state)
-{
-    (void)state;
-    snprintf(dir, sizeof dir, "/tmp/hs-cfg-XXXXXX");
-    if (!mkdtemp(dir))
-        return -1;
-    snprintf(path, sizeof path, "%s/site.ini", dir);
-    return 0;
-}
-
-static int remove_dir(void **state)
-{
-    (void)state;
-    char other[160];
-    unlink(path);
-    snprintf(other, sizeof other, "%s/levels.csv", dir);
-    unlink(other);
-    return rmdir(dir);
-}
-
-static void write_file(const char *text)
-{
-    FILE *f = fopen(path, "w");
-    assert_non_null(f);
-    assert_int_equal(fputs(text, f) >= 0, 1);
-    assert_int_equal(fclose(f), 0);
-}
+static conf_dir cd;
 
 /* Lines 1..22; tests append to it or replace parts. */
 #define BASE \
@@ -72,24 +44,23 @@ static void write_file(const char *text)
     "type = int16\n"                    /* 21 */ \
     "unit = C\n"                        /* 22 */
 
-/* Loads the file and expects an error "path:LINE: ...WHAT...". */
 static void expect_error(const char *text, int line, const char *what)
 {
-    hs_site site;
-    hs_diag diag;
-    char prefix[200];
-    write_file(text);
-    assert_int_equal(hs_site_load(path, &site, &diag), -1);
-    if (line > 0)
-        snprintf(prefix, sizeof prefix, "%s:%d: ", path, line);
-    else
-        snprintf(prefix, sizeof prefix, "%s: ", path);
-    for (unsigned i = 0; i < diag.n; i++)
-        if (strncmp(diag.msg[i], prefix, strlen(prefix)) == 0 && strstr(diag.msg[i], what))
-            return;
-    for (unsigned i = 0; i < diag.n; i++)
-        print_message("got: %s\n", diag.msg[i]);
-    fail_msg("no error '%s...%s'", prefix, what);
+    conf_expect_error(&cd, text, line, what);
+}
+
+static int make_dir(void **state)
+{
+    (void)state;
+    if (conf_dir_make(&cd, "cfg") != 0)
+        return -1;
+    return 0;
+}
+
+static int remove_dir(void **state)
+{
+    (void)state;
+    return conf_dir_remove(&cd, "levels.csv", (const char *)NULL);
 }
 
 static void valid_file_loads(void **state)
@@ -97,8 +68,8 @@ static void valid_file_loads(void **state)
     (void)state;
     hs_site site;
     hs_diag diag;
-    write_file(BASE "valid_max = 60\nsentinels = -32768, 32767\npoll_interval = 2.5s\n");
-    assert_int_equal(hs_site_load(path, &site, &diag), 0);
+    conf_write_file(cd.path, BASE "valid_max = 60\nsentinels = -32768, 32767\npoll_interval = 2.5s\n");
+    assert_int_equal(hs_site_load(cd.path, &site, &diag), 0);
     assert_string_equal(site.site.name, "test-works");
     assert_double_equal(site.site.baume_modulus, 145.0, 0.0);       /* default */
     assert_double_equal(site.site.reference_temperature_c, 20.0, 0.0);
@@ -123,7 +94,7 @@ static void valid_file_loads(void **state)
     assert_true(isinf(g->point.valid_min));
     assert_double_equal(g->point.valid_max, 60.0, 0.0);
     char want[200];
-    snprintf(want, sizeof want, "%s/halostage.db", dir);
+    snprintf(want, sizeof want, "%s/halostage.db", cd.dir);
     assert_string_equal(site.site.database, want);  /* relative to the file */
     hs_site_free(&site);
 }
@@ -268,9 +239,9 @@ static void feed_converts(void **s)
     (void)s;
     hs_site site;
     hs_diag diag;
-    write_file(BASE "[feed lagoon]\nunit = mg/L\ndensity = 1025 kg/m3\nna = 10250\ncl = 20500\n"
+    conf_write_file(cd.path, BASE "[feed lagoon]\nunit = mg/L\ndensity = 1025 kg/m3\nna = 10250\ncl = 20500\n"
                "[pond c]\nrole = intake\narea = 1 ha\nfeed = lagoon\n");
-    assert_int_equal(hs_site_load(path, &site, &diag), 0);
+    assert_int_equal(hs_site_load(cd.path, &site, &diag), 0);
     assert_int_equal(site.n_feeds, 1);
     /* 10250 mg/L in water of 1.025 kg/L is 10 g/kg (arithmetic). */
     assert_double_equal(site.feeds[0].g_kg[HS_ION_NA], 10.0, 1e-12);
@@ -298,8 +269,8 @@ static void all_errors_reported(void **s)
     (void)s;
     hs_site site;
     hs_diag diag;
-    write_file(BASE "colour = red\nsize = 3\n[pump x]\nflow = 3\n");
-    assert_int_equal(hs_site_load(path, &site, &diag), -1);
+    conf_write_file(cd.path, BASE "colour = red\nsize = 3\n[pump x]\nflow = 3\n");
+    assert_int_equal(hs_site_load(cd.path, &site, &diag), -1);
     assert_int_equal(diag.n, 3); /* two keys and the section; not its keys */
 }
 

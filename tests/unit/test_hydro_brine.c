@@ -42,9 +42,9 @@ static void mineral_masses(void **unused)
     (void)unused;
     /* Formula masses from IUPAC standard atomic weights (CRC Handbook):
      * NaCl 58.443, CaSO4.2H2O 172.17, MgSO4.7H2O 246.47 g/mol. */
-    assert_near(hs_mineral_molar_mass(HC_MIN_HALITE), 0.058443, 2e-6);
-    assert_near(hs_mineral_molar_mass(HC_MIN_GYPSUM), 0.17217, 2e-5);
-    assert_near(hs_mineral_molar_mass(HC_MIN_EPSOMITE), 0.24647, 2e-5);
+    assert_near(hc_mineral_molar_mass(HC_MIN_HALITE), 0.058443, 2e-6);
+    assert_near(hc_mineral_molar_mass(HC_MIN_GYPSUM), 0.17217, 2e-5);
+    assert_near(hc_mineral_molar_mass(HC_MIN_EPSOMITE), 0.24647, 2e-5);
 }
 
 static void curve_is_sound(void **unused)
@@ -92,7 +92,7 @@ static void halite_deposit_matches_published_balance(void **unused)
     /* The curve's deposit there is mostly that halite. */
     hc_curve_point p;
     hc_curve_at_cf(&curve.view, 1 / 0.035, &p);
-    double halite = pp.precipitated[HC_MIN_HALITE] * hs_mineral_molar_mass(HC_MIN_HALITE) /
+    double halite = pp.precipitated[HC_MIN_HALITE] * hc_mineral_molar_mass(HC_MIN_HALITE) /
                     feed.water_mass_fraction;
     assert_true(p.deposited_kg_per_kg_feed_water > halite);
     assert_true(p.deposited_kg_per_kg_feed_water < 1.15 * halite);

@@ -1,0 +1,19 @@
+/* Strict parsing of option values shared by every `halostage` subcommand.
+ * Error convention: 0 on success; -1 after printing one line on stderr of the
+ * form "halostage CMD: OPT: what is wrong" (the output is left untouched). */
+#ifndef HS_CLI_NUMBER_H
+#define HS_CLI_NUMBER_H
+
+/* The whole of TEXT must be one finite number (no trailing characters, no
+ * overflow, no inf/nan): "halostage CMD: OPT: 'TEXT' is not a number". */
+int hs_cli_number(const char *cmd, const char *opt, const char *text, double *out);
+
+/* Reference temperature for specific gravity and Baume [degC]: a number within
+ * lo_c..hi_c, or "60F" (any case), which gives HC_TREF_60F. */
+int hs_cli_tref(const char *cmd, const char *text, double lo_c, double hi_c, double *t_ref_c);
+
+/* The value after the option at argv[*i]; advances *i past it. NULL (message
+ * printed: "OPT needs a value") when the option is the last argument. */
+const char *hs_cli_value(const char *cmd, int argc, char **argv, int *i);
+
+#endif
