@@ -166,13 +166,9 @@ int hs_cmd_export(int argc, char **argv)
         usage(stderr);
         return 2;
     }
-    char msg[256];
-    int64_t now = hs_cli_now_ms(), since, until;
-    if (hs_cli_time(since_s, now, &since, msg, sizeof msg) != 0 ||
-        hs_cli_time(until_s, now, &until, msg, sizeof msg) != 0) {
-        fprintf(stderr, "halostage export: %s\n", msg);
+    int64_t since, until;
+    if (hs_cli_window("export", since_s, until_s, &since, &until) != 0)
         return 2;
-    }
     hs_site site;
     hs_store *st;
     int rc = hs_cli_open(config, &site, &st);

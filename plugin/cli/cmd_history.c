@@ -226,12 +226,9 @@ int hs_cmd_history(int argc, char **argv)
         usage(stderr);
         return 2;
     }
-    int64_t now = hs_cli_now_ms(), since, until, step = 0;
-    if (hs_cli_time(since_s, now, &since, msg, sizeof msg) != 0 ||
-        hs_cli_time(until_s, now, &until, msg, sizeof msg) != 0) {
-        fprintf(stderr, "halostage history: %s\n", msg);
+    int64_t since, until, step = 0;
+    if (hs_cli_window("history", since_s, until_s, &since, &until) != 0)
         return 2;
-    }
     if (step_s && (hs_parse_duration_ms(step_s, &step, msg, sizeof msg) != 0 || step < 60000 ||
                    step % 60000 != 0)) {
         fprintf(stderr, "halostage history: --step %s: %s\n", step_s,

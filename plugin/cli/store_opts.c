@@ -59,3 +59,16 @@ int hs_cli_time(const char *text, int64_t now_ms, int64_t *out_ms, char *msg, si
                        "time (2026-03-01T06:00Z)", text);
     return -1;
 }
+
+int hs_cli_window(const char *cmd, const char *since_text, const char *until_text,
+                  int64_t *since_ms, int64_t *until_ms)
+{
+    char msg[256];
+    int64_t now = hs_cli_now_ms();
+    if (hs_cli_time(since_text, now, since_ms, msg, sizeof msg) != 0 ||
+        hs_cli_time(until_text, now, until_ms, msg, sizeof msg) != 0) {
+        fprintf(stderr, "halostage %s: %s\n", cmd, msg);
+        return -1;
+    }
+    return 0;
+}

@@ -22,4 +22,9 @@ int hs_cli_time(const char *text, int64_t now_ms, int64_t *out_ms, char *msg, si
 
 int64_t hs_cli_now_ms(void);
 
+/* --since and --until of CMD, each as hs_cli_time reads it against the same
+ * "now". 0, or -1 after printing "halostage CMD: reason" on stderr. */
+int hs_cli_window(const char *cmd, const char *since_text, const char *until_text,
+                  int64_t *since_ms, int64_t *until_ms);
+
 #endif

@@ -120,6 +120,12 @@ check "shelve reports its journal event" grep -q "^event 3$" "$HS_TMP/ack4.out"
 check "journal: raise, one ack, the shelve" \
     test "$(sqlite3 "$DB" "SELECT group_concat(cause) FROM (SELECT cause FROM alarm_journal ORDER BY event_id)")" = \
     "condition-raised,acknowledged,shelved"
+for sub in history "export --csv"; do
+    "$CLI" $sub --config "$CONF" --pond east-1 --since yesterday 2>"$HS_TMP/when.err" >/dev/null
+    check "${sub%% *}: unreadable --since exits 2" test $? -eq 2
+    check "${sub%% *}: the message names the command and the value" \
+        grep -q "^halostage ${sub%% *}: 'yesterday' is neither" "$HS_TMP/when.err"
+done
 printf '[site]\nname = x\nlatitude = 100\n' >"$HS_TMP/bad.ini"
 "$CLI" history --config "$HS_TMP/bad.ini" --pond a --since 1d 2>"$HS_TMP/bad.err"
 check "bad config: exit 78" test $? -eq 78
