@@ -4,6 +4,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "hc_brine_density.h"
 #include "hc_feed.h"
 #include "hc_ion.h"
 #include "hc_level.h"
@@ -191,31 +192,98 @@ static void enrich_from_path(const hc_path *path, hc_brine_state *s)
     s->water_activity = p.water_activity;
 }
 
+/* Density source 1 (densitometer or hydrostatic pair). Without a path only
+ * the seawater range of EOS-80 is known. */
 static int state_from_density(const hs_site *site, const hc_path *path, double rho, double t_c,
                               hc_method method, hc_brine_state *s)
 {
-    hc_status st = hc_path_state_from_density(path, rho, t_c, site->site.reference_temperature_c,
-                                              site->site.baume_modulus, s);
+    hc_status st;
+    if (path != NULL) {
+        st = hc_path_state_from_density(path, rho, t_c, site->site.reference_temperature_c,
+                                        site->site.baume_modulus, s);
+    } else {
+        hc_seawater_options opt;
+        hc_seawater_options_default(&opt);
+        opt.reference_temperature_c = site->site.reference_temperature_c;
+        opt.baume_modulus = site->site.baume_modulus;
+        st = hc_seawater_state_from_density(rho, t_c, 0.0, &opt, s);
+    }
     if (st != HC_OK)
         return -1;
     s->method = method;
     return 0;
 }
 
-static int state_from_conductivity(const hs_site *site, const hc_path *path, double c, double t_c,
-                                   hc_brine_state *s)
+/* Density source 2: PSS-78 inside its range; beyond it the site calibration
+ * (cal, may be NULL) or the path's brine conductivity model, both flagged
+ * by hc_path. Returns 0, or -1 with a reason in note. */
+static int state_from_conductivity(const hs_site *site, const hc_path *path,
+                                   const hc_calibration *cal, double c, double t_c,
+                                   hc_brine_state *s, char *note, size_t note_len)
 {
     hc_seawater_options opt;
     hc_seawater_options_default(&opt);
     opt.reference_temperature_c = site->site.reference_temperature_c;
     opt.baume_modulus = site->site.baume_modulus;
-    if (hc_seawater_state_from_conductivity(c, t_c, 0.0, &opt, s) == HC_OK) {
-        enrich_from_path(path, s);
+    hc_status st = hc_seawater_state_from_conductivity(c, t_c, 0.0, &opt, s);
+    if (st == HC_OK) {
+        if (path != NULL)
+            enrich_from_path(path, s);
         return 0;
     }
-    /* beyond PSS-78: the path's brine conductivity model (flagged by it) */
-    return hc_path_state_from_conductivity(path, c, t_c, site->site.reference_temperature_c,
-                                           site->site.baume_modulus, NULL, s) == HC_OK ? 0 : -1;
+    if (path == NULL) {
+        snprintf(note, note_len, "conductivity %.1f mS/cm at %.1f degC: %s", c, t_c,
+                 st == HC_ERR_SALINITY_RANGE
+                     ? "beyond PSS-78 (S_P 42), and no evaporation path of the feed"
+                     : hc_status_text(st));
+        return -1;
+    }
+    st = hc_path_state_from_conductivity(path, c, t_c, site->site.reference_temperature_c,
+                                         site->site.baume_modulus, cal, s);
+    if (st != HC_OK && cal != NULL) /* the calibration refuses: the model still may answer */
+        st = hc_path_state_from_conductivity(path, c, t_c, site->site.reference_temperature_c,
+                                             site->site.baume_modulus, NULL, s);
+    if (st != HC_OK) {
+        snprintf(note, note_len, "conductivity %.1f mS/cm at %.1f degC gives no brine state: %s",
+                 c, t_c, hc_status_text(st));
+        return -1;
+    }
+    return 0;
+}
+
+/* Density source 3: an operator's hydrometer reading, SG at t_ref/t_ref.
+ * rho(t_ref) = SG rho_w(t_ref) (DOMAIN.md section 3; rho_w by Laliberte &
+ * Cooper 2004 eq. 8, as hc_path uses), then the path brine of that density
+ * evaluated at the pond's temperature. */
+static int state_from_manual(const hs_site *site, const hc_path *path, const hs_pond_aids *a,
+                             double t_c, hc_brine_state *s)
+{
+    double cf;
+    unsigned warn = 0;
+    double rho_ref = a->manual_sg * hc_water_density_lc(a->manual_t_ref_c);
+    if (path == NULL ||
+        hc_path_cf_at_density(path, rho_ref, a->manual_t_ref_c, &cf, &warn) != HC_OK ||
+        hc_path_state_from_cf(path, cf, t_c, site->site.reference_temperature_c,
+                              site->site.baume_modulus, s) != HC_OK)
+        return -1;
+    s->method = HC_METHOD_MANUAL;
+    s->warnings |= warn;
+    return 0;
+}
+
+static int manual_usable(const hs_pond_aids *a, int64_t now_ms)
+{
+    return a != NULL && isfinite(a->manual_sg) && isfinite(a->manual_t_ref_c) &&
+           a->manual_max_age_ms > 0 && a->manual_t_ms <= now_ms + 60000 &&
+           now_ms - a->manual_t_ms <= a->manual_max_age_ms;
+}
+
+void hs_pond_aids_clear(hs_pond_aids *aids)
+{
+    memset(aids, 0, sizeof *aids);
+    aids->calibration = NULL;
+    aids->manual_sg = NAN;
+    aids->manual_t_ref_c = NAN;
 }
 
 static void depth_of(const hs_site *site, size_t pond, const hs_reading *readings, double g,
@@ -254,15 +322,17 @@ static void depth_of(const hs_site *site, size_t pond, const hs_reading *reading
 }
 
 void hs_pond_evaluate(const hs_site *site, size_t pond, const hs_reading *readings,
-                      const hs_brine_models *models, double g_m_s2, int64_t now_ms,
-                      hs_pond_view *v)
+                      const hs_brine_models *models, const hs_pond_aids *aids, double g_m_s2,
+                      int64_t now_ms, hs_pond_view *v)
 {
     memset(v, 0, sizeof *v);
     hc_state_clear(&v->state);
     v->quality = HS_QUALITY_GOOD;
     v->oldest_input_age_s = NAN;
     const hs_pond *p = &site->ponds[pond];
-    const hc_path *path = hs_brine_models_path(models, p->feed_index);
+    const hc_path *path = models != NULL ? hs_brine_models_path(models, p->feed_index) : NULL;
+    const hc_calibration *cal = aids != NULL ? aids->calibration : NULL;
+    int manual_ok = manual_usable(aids, now_ms) && path != NULL;
     const hs_reading *temp = reading_of(site, pond, HS_Q_TEMPERATURE, readings);
     const hs_reading *dens = reading_of(site, pond, HS_Q_DENSITY, readings);
     const hs_reading *lower = reading_of(site, pond, HS_Q_LEVEL_PRESSURE, readings);
@@ -288,15 +358,23 @@ void hs_pond_evaluate(const hs_site *site, size_t pond, const hs_reading *readin
         }
         take(v, lower, now_ms);
         take(v, upper, now_ms);
-    } else if (usable(cond)) {
-        if (state_from_conductivity(site, path, cond->value, t_c, &v->state) != 0) {
-            snprintf(v->note, sizeof v->note, "conductivity %.1f mS/cm at %.1f degC gives no "
-                     "brine state", cond->value, t_c);
-            goto no_state;
+    } else if (usable(cond) && state_from_conductivity(site, path, cal, cond->value, t_c,
+                                                       &v->state, v->note, sizeof v->note) == 0) {
+        /* Conductivity says little near and past halite saturation
+         * (DOMAIN.md section 9): a recent hydrometer reading knows better. */
+        hc_brine_state m;
+        if ((v->state.warnings & HC_WARN_CONDUCTIVITY_WEAK) && manual_ok &&
+            state_from_manual(site, path, aids, t_c, &m) == 0) {
+            m.warnings |= HC_WARN_CONDUCTIVITY_WEAK;
+            v->state = m;
+        } else {
+            take(v, cond, now_ms);
         }
-        take(v, cond, now_ms);
+    } else if (manual_ok && state_from_manual(site, path, aids, t_c, &v->state) == 0) {
+        v->note[0] = '\0';
     } else {
-        snprintf(v->note, sizeof v->note, "no usable density or conductivity");
+        if (v->note[0] == '\0')
+            snprintf(v->note, sizeof v->note, "no usable density or conductivity");
         goto no_state;
     }
     v->have_state = 1;
@@ -304,6 +382,10 @@ void hs_pond_evaluate(const hs_site *site, size_t pond, const hs_reading *readin
     return;
 no_state:
     hc_state_clear(&v->state);
+    /* what is known still shows (commissioning reads it from --once) */
+    v->state.temperature_c = usable(temp) ? temp->value : NAN;
+    v->state.reference_temperature_c = site->site.reference_temperature_c;
+    v->state.baume_modulus = site->site.baume_modulus;
     v->quality = HS_QUALITY_BAD;
     depth_of(site, pond, readings, g_m_s2, v);
 }

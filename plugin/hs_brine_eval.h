@@ -4,7 +4,11 @@
  *   1. a density signal: inline densitometer, or the hydrostatic pair
  *      rho = dP / (g dz);
  *   2. conductivity and temperature: PSS-78 inside its range, beyond it the
+ *      site calibration fitted from operators' hydrometer readings, else the
  *      evaporation path's brine conductivity model (flagged);
+ *   3. where conductivity is weak (near and past halite saturation) or gives
+ *      nothing, and no density signal exists: a recent manual hydrometer
+ *      reading (method manual).
  * The evaporation path of the pond's feed then gives the stage, the next
  * stage, saturation indices and water activity. Depth comes from the
  * level-pressure sensor through the pond's own brine density, or from a
@@ -19,6 +23,7 @@
 #include <stdint.h>
 
 #include "hc_brine_curve.h"
+#include "hc_calibration.h"
 #include "hc_path.h"
 #include "hc_state.h"
 #include "hs_site.h"
@@ -53,10 +58,25 @@ typedef struct {
     char note[128];         /* why there is no state, for the log and status */
 } hs_pond_view;
 
-/* One pond's view. readings are indexed like site->signals. now_ms is the
- * wall clock; g_m_s2 the local gravity. */
+/* What the operators add to a pond's signals: the site calibration fitted
+ * from their hydrometer readings and their latest reading. The caller owns
+ * both; hs_pond_evaluate only reads them. */
+typedef struct {
+    const hc_calibration *calibration; /* NULL: none fitted */
+    double manual_sg;            /* latest hydrometer SG [1]; NaN: none */
+    double manual_t_ref_c;       /* its reference temperature [degC] */
+    int64_t manual_t_ms;         /* when it was taken [ms since the epoch] */
+    int64_t manual_max_age_ms;   /* older readings are not used; 0: never used */
+} hs_pond_aids;
+
+void hs_pond_aids_clear(hs_pond_aids *aids);
+
+/* One pond's view. readings are indexed like site->signals. models may be
+ * NULL: then only the seawater range (EOS-80, PSS-78) is known. aids may be
+ * NULL (no calibration, no manual reading). now_ms is the wall clock;
+ * g_m_s2 the local gravity. */
 void hs_pond_evaluate(const hs_site *site, size_t pond, const hs_reading *readings,
-                      const hs_brine_models *models, double g_m_s2, int64_t now_ms,
-                      hs_pond_view *out);
+                      const hs_brine_models *models, const hs_pond_aids *aids, double g_m_s2,
+                      int64_t now_ms, hs_pond_view *out);
 
 #endif

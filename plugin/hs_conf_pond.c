@@ -39,6 +39,9 @@ static const hs_key pond_keys[] = {
             "level-pressure sensor above the floor"),
     KEY_DBL("distance_height", P, distance_height_m, &hs_unit_length, 0.1, 30, HS_NO_DEFAULT, 0,
             "level-distance sensor above the floor, looking down"),
+    KEY_DUR("manual_reading_max_age", P, manual_reading_max_age_ms, 60 * SEC_MS,
+            30 * 24 * 3600 * SEC_MS, "12h", HS_KEY_RELOADABLE,
+            "an operator's hydrometer reading stands in for weak conductivity this long"),
     {NULL},
 };
 

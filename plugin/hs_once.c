@@ -10,14 +10,15 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <time.h>
 
 #include "hp_bus.h"
 #include "hp_queue.h"
 #include "hp_state_json.h"
 #include "hs_commission.h"
 #include "hs_config.h"
-#include "hs_feed_model.h"
-#include "hs_pond_state.h"
+#include "hc_level.h"
+#include "hs_brine_eval.h"
 
 typedef struct {
     bool seen;
@@ -133,18 +134,66 @@ static json_t *signal_json(const hs_signal *g, const latest *l)
     return o;
 }
 
-static void print_ponds(const hs_site *site, const latest *got, const hs_paths *paths,
+static hs_quality reading_quality(hp_quality q)
+{
+    switch (q) {
+    case HP_Q_GOOD: return HS_QUALITY_GOOD;
+    case HP_Q_STALE: return HS_QUALITY_STALE;
+    default: return HS_QUALITY_BAD;
+    }
+}
+
+/* The samples of this one cycle as the runtime's readings (SI units), so
+ * that --once computes pond states exactly as the service does. */
+static void readings_of(const hs_site *site, const latest *got, hs_reading *r)
+{
+    for (size_t s = 0; s < site->n_signals; s++) {
+        const hs_signal *g = &site->signals[s];
+        const hp_sample *smp = &got[s].sample;
+        r[s] = (hs_reading){.value = NAN, .quality = HS_QUALITY_BAD};
+        if (!got[s].seen)
+            continue;
+        double v = smp->value * g->si_factor + g->si_offset;
+        r[s].quality = reading_quality(smp->quality);
+        r[s].t_ms = smp->time_ms;
+        if (r[s].quality == HS_QUALITY_GOOD && isfinite(v)) {
+            r[s].value = v;
+            r[s].have = 1;
+        }
+    }
+}
+
+/* Why a pond with a level sensor has no depth (NULL when it has one). */
+static const char *level_problem(const hs_site *site, size_t p, const hs_pond_view *v)
+{
+    if (isfinite(v->depth_m))
+        return NULL;
+    if (hs_site_signal(site, (int)p, HS_Q_LEVEL_PRESSURE) == NULL &&
+        hs_site_signal(site, (int)p, HS_Q_LEVEL_DISTANCE) == NULL)
+        return NULL;
+    return "no usable level reading, or the sensor is out of the brine";
+}
+
+static void print_ponds(const hs_site *site, const latest *got, const hs_brine_models *models,
                         bool json)
 {
+    hs_reading *readings = calloc(site->n_signals ? site->n_signals : 1, sizeof *readings);
+    double g;
+    if (readings == NULL) {
+        fprintf(stderr, "halostaged: out of memory\n");
+        return;
+    }
+    if (hc_gravity(site->site.latitude_deg, site->site.elevation_m, &g) != HC_OK)
+        g = HC_STANDARD_GRAVITY;
+    readings_of(site, got, readings);
+    struct timespec ts;
+    clock_gettime(CLOCK_REALTIME, &ts);
+    int64_t now_ms = (int64_t)ts.tv_sec * 1000 + ts.tv_nsec / 1000000;
     for (size_t p = 0; p < site->n_ponds; p++) {
-        hs_pond_inputs in;
-        hs_pond_result res;
-        hs_pond_inputs_clear(&in);
-        for (size_t s = 0; s < site->n_signals; s++)
-            if (site->signals[s].pond_index == (int)p && got[s].seen)
-                hs_pond_inputs_put(&in, &site->signals[s], got[s].sample.quality,
-                                   got[s].sample.value);
-        hs_pond_compute(site, p, &in, hs_paths_for(paths, site->ponds[p].feed_index), &res);
+        hs_pond_view res;
+        hs_pond_evaluate(site, p, readings, models, NULL, g, now_ms, &res);
+        const char *problem = res.have_state ? NULL : res.note;
+        const char *lproblem = level_problem(site, p, &res);
         const hs_pond *pd = &site->ponds[p];
         if (!json) {
             printf("pond %-10s %-13s", pd->name, hs_role_name(pd->role));
@@ -157,24 +206,23 @@ static void print_ponds(const hs_site *site, const latest *got, const hs_paths *
             if (isfinite(res.depth_m))
                 printf(", depth %.3f m", res.depth_m);
             printf(" [%s]", hc_method_name(res.state.method));
-            if (res.problem)
-                printf("; %s", res.problem);
-            if (res.level_problem)
-                printf("; %s", res.level_problem);
+            if (problem)
+                printf("; %s", problem);
+            if (lproblem)
+                printf("; %s", lproblem);
             printf("\n");
             continue;
         }
         json_t *o = hp_state_to_json(&res.state);
         if (!o) {
             fprintf(stderr, "halostaged: out of memory\n");
-            return;
+            break;
         }
         json_object_set_new(o, "pond", json_string(pd->name));
         json_object_set_new(o, "role", json_string(hs_role_name(pd->role)));
         json_object_set_new(o, "depth_m", isfinite(res.depth_m) ? json_real(res.depth_m) : json_null());
-        json_object_set_new(o, "problem", res.problem ? json_string(res.problem) : json_null());
-        json_object_set_new(o, "level_problem",
-                            res.level_problem ? json_string(res.level_problem) : json_null());
+        json_object_set_new(o, "problem", problem ? json_string(problem) : json_null());
+        json_object_set_new(o, "level_problem", lproblem ? json_string(lproblem) : json_null());
         json_t *sigs = json_object();
         for (size_t s = 0; s < site->n_signals; s++)
             if (site->signals[s].pond_index == (int)p)
@@ -188,6 +236,7 @@ static void print_ponds(const hs_site *site, const latest *got, const hs_paths *
         }
         json_decref(o);
     }
+    free(readings);
 }
 
 int hs_once_run(const char *config_path, bool json)
@@ -200,10 +249,11 @@ int hs_once_run(const char *config_path, bool json)
         return HS_EXIT_CONFIG;
     }
     int rc = 1;
-    hs_paths paths;
+    hs_brine_models *models = NULL;
     latest *got = calloc(site.n_signals ? site.n_signals : 1, sizeof *got);
-    if (hs_paths_build(&site, &paths) != 0) {
-        fprintf(stderr, "halostaged: out of memory\n");
+    if (hs_brine_models_build(&site, &models) != 0) {
+        fprintf(stderr, "halostaged: %s: cannot build the evaporation path of the feeds\n",
+                config_path);
         free(got);
         hs_site_free(&site);
         return 1;
@@ -211,7 +261,7 @@ int hs_once_run(const char *config_path, bool json)
     if (got && poll_once(&site, got) == 0) {
         if (!json)
             print_text(&site, got);
-        print_ponds(&site, got, &paths, json);
+        print_ponds(&site, got, models, json);
         rc = 0;
         for (size_t s = 0; s < site.n_signals; s++)
             if (!got[s].seen || got[s].sample.quality != HP_Q_GOOD)
@@ -219,7 +269,7 @@ int hs_once_run(const char *config_path, bool json)
     }
     fflush(stdout);
     free(got);
-    hs_paths_free(&paths);
+    hs_brine_models_free(models);
     hs_site_free(&site);
     return rc;
 }

@@ -105,6 +105,7 @@ static int site_parts_open(hs_runtime *rt, hs_brine_models *models)
 {
     const hs_site *site = &rt->site;
     rt->models = models;
+    rt->next_calib_ms = 0;
     if (hc_gravity(site->site.latitude_deg, site->site.elevation_m, &rt->gravity_m_s2) != HC_OK)
         rt->gravity_m_s2 = HC_STANDARD_GRAVITY;
     rt->readings = calloc(site->n_signals ? site->n_signals : 1, sizeof *rt->readings);
@@ -115,6 +116,7 @@ static int site_parts_open(hs_runtime *rt, hs_brine_models *models)
     for (size_t i = 0; i < site->n_signals; i++)
         rt->readings[i] = (hs_reading){.value = NAN, .quality = HS_QUALITY_BAD};
     for (size_t i = 0; i < site->n_ponds; i++) {
+        hs_pond_aids_clear(&rt->ponds[i].aids);
         hc_state_clear(&rt->ponds[i].view.state);
         rt->ponds[i].view.depth_m = NAN;
         rt->ponds[i].view.quality = HS_QUALITY_BAD;
@@ -193,7 +195,9 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
 static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms)
 {
     struct hs_rt_pond *p = &rt->ponds[i];
-    hs_pond_evaluate(&rt->site, i, rt->readings, rt->models, rt->gravity_m_s2, now_ms, &p->view);
+    p->aids.calibration = p->calib_ok ? &p->calibration : NULL; /* rt->ponds may have moved */
+    hs_pond_evaluate(&rt->site, i, rt->readings, rt->models, &p->aids, rt->gravity_m_s2, now_ms,
+                     &p->view);
     hs_rt_hydro_update(rt, i, now_ms);
     if (p->view.have_state) {
         hs_pond_extra extra;
@@ -238,6 +242,7 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
     int64_t now = hs_rt_wall_ms();
     hs_rt_drain(rt, now);
     hs_rt_age_readings(rt, now);
+    hs_rt_calib_refresh(rt, mono);
     int periodic = mono >= rt->next_eval_ms;
     for (size_t i = 0; i < rt->site.n_ponds; i++)
         if (rt->ponds[i].dirty || periodic)

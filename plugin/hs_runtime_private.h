@@ -25,6 +25,7 @@
 #define HS_RT_QUEUE_CAPACITY 4096
 #define HS_RT_TICK_MS 100          /* how often the main loop looks at the queue */
 #define HS_RT_MAINTAIN_MS 60000    /* store rollups, retention, checkpoint */
+#define HS_RT_CALIB_EVERY_MS 10000 /* re-read the hydrometer readings */
 #define HS_RT_RAIN_SLOTS 64        /* gauge readings kept per transfer for its window */
 #define HS_RT_TREND_SLOTS 120      /* 1/CF points kept per pond for the short-term trend */
 #define HS_RT_TREND_EVERY_S 5.0    /* at most one trend point per this many seconds */
@@ -47,6 +48,10 @@ struct hs_rt_transfer {
 /* Per-pond memory between cycles. */
 struct hs_rt_pond {
     hs_pond_view view;
+    hs_pond_aids aids;            /* calibration and manual reading (hs_runtime_calib.c) */
+    hc_calibration calibration;   /* the pond's fit when calib_ok */
+    int calib_ok;
+    size_t calib_rows, calib_skipped; /* readings behind the fit, to notice new ones */
     int dirty;                    /* new samples since the last evaluation */
     int64_t last_state_ms;        /* wall time of the last stored state */
     struct hs_hydro hydro;
@@ -90,10 +95,15 @@ struct hs_runtime {
 
     int64_t next_eval_ms;         /* monotonic */
     int64_t next_maintain_ms;
+    int64_t next_calib_ms;        /* monotonic; 0: re-read the readings now */
     int64_t next_command_ms;
     uint64_t samples_in, cycles;
     int64_t started_ms;
 };
+
+/* hs_runtime_calib.c: hydrometer readings -> per-pond calibration and
+ * manual reading, re-read when next_calib_ms is due */
+void hs_rt_calib_refresh(hs_runtime *rt, int64_t mono_ms);
 
 /* hs_runtime_io.c: buses and samples */
 int hs_rt_buses_start(hs_runtime *rt);

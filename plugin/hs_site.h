@@ -73,6 +73,7 @@ typedef struct {
     double pressure_spacing_m;     /* vertical distance of the two pressure sensors */
     double pressure_height_m;      /* level pressure sensor above the floor */
     double distance_height_m;      /* level distance sensor above the floor */
+    int64_t manual_reading_max_age_ms; /* a manual reading counts this long */
 } hs_pond;
 
 /* Quantities a signal may carry ([signal POND.QUANTITY]). */

@@ -11,6 +11,7 @@ const struct hs_command hs_commands[] = {
     {"history", hs_cmd_history, "a pond's stored history, raw or per step (min/mean/max)"},
     {"export", hs_cmd_export, "stored pond states or the alarm journal as CSV"},
     {"ack", hs_cmd_ack, "acknowledge or shelve an alarm at the gateway"},
+    {"calibrate", hs_cmd_calibrate, "record or list operators' hydrometer readings (site calibration)"},
     {"forecast", hs_cmd_forecast, "days until ponds reach their target density and next stage"},
     {"plan", hs_cmd_plan, "how much brine to move so a pond lands on a target density"},
     {NULL, NULL, NULL},

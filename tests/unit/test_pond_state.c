@@ -1,4 +1,5 @@
-/* Which density source a pond state uses, and its depth (hs_pond_state.h).
+/* Which density source a pond state uses, and its depth (hs_brine_eval.h, shared by
+ * the runtime and halostaged --once).
  * Expected values come from the calc functions themselves (EOS-80, PSS-78,
  * hc_gravity) or from arithmetic (rho = dP / (g dz), depth = z - distance),
  * so this checks the choice and the plumbing, not the science again. */
@@ -12,14 +13,38 @@
 
 #include "hc_level.h"
 #include "hc_seawater.h"
-#include "hs_feed_model.h"
-#include "hs_pond_state.h"
+#include "hs_brine_eval.h"
 
 #define near(a, b, tol) assert_true(fabs((double)(a) - (double)(b)) <= (tol))
 
 static hs_site site;
 static hs_pond pond;
 static hs_signal sig[HS_QUANTITY_COUNT];
+static hs_reading rd[HS_QUANTITY_COUNT]; /* indexed like sig: signal q carries quantity q */
+
+static void inputs_clear(void)
+{
+    for (int q = 0; q < HS_QUANTITY_COUNT; q++)
+        rd[q] = (hs_reading){.value = NAN, .quality = HS_QUALITY_BAD};
+}
+
+/* One sample of quantity q, value in SI units. */
+static void put(hs_quantity q, hs_quality quality, double value)
+{
+    rd[q].quality = quality;
+    rd[q].t_ms = 1000;
+    if (quality == HS_QUALITY_GOOD) {
+        rd[q].value = value;
+        rd[q].have = 1;
+    }
+}
+
+static void compute(const hs_brine_models *models, const hs_pond_aids *aids, hs_pond_view *v)
+{
+    double g;
+    assert_int_equal(hc_gravity(site.site.latitude_deg, 0.0, &g), HC_OK);
+    hs_pond_evaluate(&site, 0, rd, models, aids, g, 2000, v);
+}
 
 static void setup_site(void)
 {
@@ -36,11 +61,14 @@ static void setup_site(void)
     site.ponds = &pond;
     site.n_ponds = 1;
     for (int q = 0; q < HS_QUANTITY_COUNT; q++) {
+        memset(&sig[q], 0, sizeof sig[q]);
         sig[q].quantity = (hs_quantity)q;
+        sig[q].pond_index = 0;
         sig[q].si_factor = 1.0;
     }
-    sig[HS_Q_LEVEL_PRESSURE].si_factor = 1000.0; /* kPa */
-    sig[HS_Q_PRESSURE_UPPER].si_factor = 1000.0;
+    site.signals = sig;
+    site.n_signals = HS_QUANTITY_COUNT;
+    inputs_clear();
 }
 
 static double gravity(void)
@@ -53,17 +81,15 @@ static double gravity(void)
 static void densitometer_first(void **unused)
 {
     (void)unused;
-    hs_pond_inputs in;
-    hs_pond_result r;
+    hs_pond_view r;
     hc_seawater_options opt;
     hc_brine_state want;
     setup_site();
-    hs_pond_inputs_clear(&in);
-    hs_pond_inputs_put(&in, &sig[HS_Q_TEMPERATURE], HP_Q_GOOD, 20.0);
-    hs_pond_inputs_put(&in, &sig[HS_Q_DENSITY], HP_Q_GOOD, 1025.0);
-    hs_pond_inputs_put(&in, &sig[HS_Q_CONDUCTIVITY], HP_Q_GOOD, 80.0);
-    hs_pond_compute(&site, 0, &in, NULL, &r);
-    assert_null(r.problem);
+    put(HS_Q_TEMPERATURE, HS_QUALITY_GOOD, 20.0);
+    put(HS_Q_DENSITY, HS_QUALITY_GOOD, 1025.0);
+    put(HS_Q_CONDUCTIVITY, HS_QUALITY_GOOD, 80.0);
+    compute(NULL, NULL, &r);
+    assert_true(r.have_state);
     assert_int_equal(r.state.method, HC_METHOD_DENSITOMETER);
     hc_seawater_options_default(&opt);
     opt.reference_temperature_c = 20.0;
@@ -75,72 +101,154 @@ static void densitometer_first(void **unused)
 static void pressure_pair_then_depth(void **unused)
 {
     (void)unused;
-    hs_pond_inputs in;
-    hs_pond_result r;
+    hs_pond_view r;
     setup_site();
     double g = gravity(), rho = 1020.0, depth = 1.2;
-    /* Gauge pressures of a brine column (hydrostatics), in kPa. */
-    double lower = rho * g * (depth - 0.1) / 1000.0, upper = rho * g * (depth - 0.6) / 1000.0;
-    hs_pond_inputs_clear(&in);
-    hs_pond_inputs_put(&in, &sig[HS_Q_TEMPERATURE], HP_Q_GOOD, 20.0);
-    hs_pond_inputs_put(&in, &sig[HS_Q_LEVEL_PRESSURE], HP_Q_GOOD, lower);
-    hs_pond_inputs_put(&in, &sig[HS_Q_PRESSURE_UPPER], HP_Q_GOOD, upper);
-    hs_pond_inputs_put(&in, &sig[HS_Q_CONDUCTIVITY], HP_Q_GOOD, 40.0);
-    hs_pond_compute(&site, 0, &in, NULL, &r);
+    /* Gauge pressures of a brine column (hydrostatics), in Pa. */
+    double lower = rho * g * (depth - 0.1), upper = rho * g * (depth - 0.6);
+    put(HS_Q_TEMPERATURE, HS_QUALITY_GOOD, 20.0);
+    put(HS_Q_LEVEL_PRESSURE, HS_QUALITY_GOOD, lower);
+    put(HS_Q_PRESSURE_UPPER, HS_QUALITY_GOOD, upper);
+    put(HS_Q_CONDUCTIVITY, HS_QUALITY_GOOD, 40.0);
+    compute(NULL, NULL, &r);
     assert_int_equal(r.state.method, HC_METHOD_HYDROSTATIC);
     near(r.state.density_kg_m3, rho, 1e-6);
     near(r.depth_m, depth, 1e-9);
     /* A bad upper sensor: conductivity takes over (PSS-78). */
-    hs_pond_inputs_put(&in, &sig[HS_Q_PRESSURE_UPPER], HP_Q_COMM_FAIL, NAN);
-    hs_pond_compute(&site, 0, &in, NULL, &r);
+    put(HS_Q_PRESSURE_UPPER, HS_QUALITY_BAD, NAN);
+    compute(NULL, NULL, &r);
     assert_int_equal(r.state.method, HC_METHOD_PSS78);
     /* ... and the level then uses the density PSS-78 gave. */
-    near(r.depth_m, lower * 1000.0 / (r.state.density_kg_m3 * g) + 0.1, 1e-9);
+    near(r.depth_m, lower / (r.state.density_kg_m3 * g) + 0.1, 1e-9);
 }
 
 static void problems_are_said(void **unused)
 {
     (void)unused;
-    hs_pond_inputs in;
-    hs_pond_result r;
+    hs_pond_view r;
     setup_site();
-    hs_pond_inputs_clear(&in);
-    hs_pond_inputs_put(&in, &sig[HS_Q_TEMPERATURE], HP_Q_SENTINEL, NAN);
-    hs_pond_inputs_put(&in, &sig[HS_Q_CONDUCTIVITY], HP_Q_GOOD, 50.0);
-    hs_pond_inputs_put(&in, &sig[HS_Q_LEVEL_DISTANCE], HP_Q_GOOD, 1.5);
-    hs_pond_compute(&site, 0, &in, NULL, &r);
-    assert_non_null(strstr(r.problem, "temperature"));
+    put(HS_Q_TEMPERATURE, HS_QUALITY_BAD, NAN);
+    put(HS_Q_CONDUCTIVITY, HS_QUALITY_GOOD, 50.0);
+    put(HS_Q_LEVEL_DISTANCE, HS_QUALITY_GOOD, 1.5);
+    compute(NULL, NULL, &r);
+    assert_non_null(strstr(r.note, "temperature"));
     assert_int_equal(r.state.method, HC_METHOD_NONE);
     near(r.depth_m, 0.5, 1e-12); /* 2.0 m mount - 1.5 m distance */
     /* Beyond PSS-78 without a path: said, not guessed. */
-    hs_pond_inputs_put(&in, &sig[HS_Q_TEMPERATURE], HP_Q_GOOD, 20.0);
-    hs_pond_inputs_put(&in, &sig[HS_Q_CONDUCTIVITY], HP_Q_GOOD, 150.0);
-    hs_pond_compute(&site, 0, &in, NULL, &r);
-    assert_non_null(strstr(r.problem, "beyond PSS-78"));
+    put(HS_Q_TEMPERATURE, HS_QUALITY_GOOD, 20.0);
+    put(HS_Q_CONDUCTIVITY, HS_QUALITY_GOOD, 150.0);
+    compute(NULL, NULL, &r);
+    assert_non_null(strstr(r.note, "beyond PSS-78"));
     assert_true(isnan(r.state.density_kg_m3));
 }
 
 static void brine_beyond_seawater_uses_the_path(void **unused)
 {
     (void)unused;
-    hs_pond_inputs in;
-    hs_pond_result r;
-    hs_paths paths;
+    hs_pond_view r;
+    hs_brine_models *models = NULL;
     setup_site();
-    assert_int_equal(hs_paths_build(&site, &paths), 0);
-    const hc_path *path = hs_paths_for(&paths, -1);
+    assert_int_equal(hs_brine_models_build(&site, &models), 0);
+    const hc_path *path = hs_brine_models_path(models, -1);
     assert_non_null(path);
-    hs_pond_inputs_clear(&in);
-    hs_pond_inputs_put(&in, &sig[HS_Q_TEMPERATURE], HP_Q_GOOD, 25.0);
-    hs_pond_inputs_put(&in, &sig[HS_Q_DENSITY], HP_Q_GOOD, 1150.0);
-    hs_pond_compute(&site, 0, &in, path, &r);
-    assert_null(r.problem);
+    put(HS_Q_TEMPERATURE, HS_QUALITY_GOOD, 25.0);
+    put(HS_Q_DENSITY, HS_QUALITY_GOOD, 1150.0);
+    compute(models, NULL, &r);
+    assert_true(r.have_state);
     assert_int_equal(r.state.method, HC_METHOD_DENSITOMETER);
     hc_brine_state want;
     assert_int_equal(hc_path_state_from_density(path, 1150.0, 25.0, 20.0, 145.0, &want), HC_OK);
     near(r.state.concentration_factor, want.concentration_factor, 1e-12);
     assert_int_equal(r.state.stage, want.stage);
-    hs_paths_free(&paths);
+    hs_brine_models_free(models);
+}
+
+/* Conductivity beyond PSS-78: the site calibration when one is fitted,
+ * else the built-in brine model, each flagged. The readings are invented
+ * (plumbing check): the SG they imply must come back through the path. */
+static void beyond_pss78_calibration_or_model(void **unused)
+{
+    (void)unused;
+    hs_brine_models *models = NULL;
+    hs_pond_view r;
+    hs_pond_aids aids;
+    hc_calibration cal;
+    const hc_calibration_point pts[] = {
+        {100.0, 25.0, 1.080}, {150.0, 25.0, 1.130}, {200.0, 25.0, 1.180},
+    };
+    setup_site();
+    assert_int_equal(hs_brine_models_build(&site, &models), 0);
+    assert_int_equal(hc_calibration_fit(pts, 3, 20.0, &cal), HC_OK);
+    put(HS_Q_TEMPERATURE, HS_QUALITY_GOOD, 25.0);
+    put(HS_Q_CONDUCTIVITY, HS_QUALITY_GOOD, 150.0);
+    compute(models, NULL, &r);
+    assert_true(r.have_state);
+    assert_int_equal(r.state.method, HC_METHOD_BRINE_CONDUCTIVITY);
+    assert_true(r.state.warnings & HC_WARN_BRINE_MODEL);
+    hs_pond_aids_clear(&aids);
+    aids.calibration = &cal;
+    compute(models, &aids, &r);
+    assert_true(r.have_state);
+    assert_int_equal(r.state.method, HC_METHOD_SITE_CALIBRATION);
+    assert_false(r.state.warnings & (HC_WARN_BRINE_MODEL | HC_WARN_CALIBRATION_EXTRAPOLATED));
+    near(r.state.specific_gravity, 1.130, 2e-3); /* the fit's knot, through the path */
+    /* Beyond the readings' span: extrapolated, and said. */
+    put(HS_Q_CONDUCTIVITY, HS_QUALITY_GOOD, 215.0);
+    compute(models, &aids, &r);
+    assert_int_equal(r.state.method, HC_METHOD_SITE_CALIBRATION);
+    assert_true(r.state.warnings & HC_WARN_CALIBRATION_EXTRAPOLATED);
+    /* Inside PSS-78 the calibration is not used. */
+    put(HS_Q_CONDUCTIVITY, HS_QUALITY_GOOD, 50.0);
+    compute(models, &aids, &r);
+    assert_int_equal(r.state.method, HC_METHOD_PSS78);
+    hs_brine_models_free(models);
+}
+
+/* A recent manual reading: used where conductivity is weak or absent and no
+ * density signal exists; never over a density signal; never when too old. */
+static void manual_reading_when_conductivity_is_weak(void **unused)
+{
+    (void)unused;
+    hs_brine_models *models = NULL;
+    hs_pond_view r;
+    hs_pond_aids aids;
+    setup_site();
+    assert_int_equal(hs_brine_models_build(&site, &models), 0);
+    hs_pond_aids_clear(&aids);
+    aids.manual_sg = 1.220;          /* about 26 Be: halite saturation, invented */
+    aids.manual_t_ref_c = 20.0;
+    aids.manual_t_ms = 1500;         /* compute() evaluates at 2000 ms */
+    aids.manual_max_age_ms = 3600000;
+    put(HS_Q_TEMPERATURE, HS_QUALITY_GOOD, 25.0);
+    put(HS_Q_CONDUCTIVITY, HS_QUALITY_GOOD, 250.0);
+    compute(models, NULL, &r);
+    /* the premise: the brine model calls this conductivity weak */
+    assert_true(r.state.warnings & HC_WARN_CONDUCTIVITY_WEAK);
+    compute(models, &aids, &r);
+    assert_true(r.have_state);
+    assert_int_equal(r.state.method, HC_METHOD_MANUAL);
+    assert_true(r.state.warnings & HC_WARN_CONDUCTIVITY_WEAK);
+    near(r.state.specific_gravity, 1.220, 2e-3); /* the reading, through the path */
+    /* No conductivity at all: the manual reading still gives the state. */
+    put(HS_Q_CONDUCTIVITY, HS_QUALITY_BAD, NAN);
+    compute(models, &aids, &r);
+    assert_int_equal(r.state.method, HC_METHOD_MANUAL);
+    /* Too old: not used. */
+    aids.manual_max_age_ms = 100;
+    compute(models, &aids, &r);
+    assert_false(r.have_state);
+    assert_int_equal(r.state.method, HC_METHOD_NONE);
+    /* A density signal beats a fresh reading. */
+    aids.manual_max_age_ms = 3600000;
+    put(HS_Q_DENSITY, HS_QUALITY_GOOD, 1150.0);
+    compute(models, &aids, &r);
+    assert_int_equal(r.state.method, HC_METHOD_DENSITOMETER);
+    /* Conductivity not weak (PSS-78 range): the reading is not needed. */
+    put(HS_Q_DENSITY, HS_QUALITY_BAD, NAN);
+    put(HS_Q_CONDUCTIVITY, HS_QUALITY_GOOD, 50.0);
+    compute(models, &aids, &r);
+    assert_int_equal(r.state.method, HC_METHOD_PSS78);
+    hs_brine_models_free(models);
 }
 
 int main(void)
@@ -150,6 +258,8 @@ int main(void)
         cmocka_unit_test(pressure_pair_then_depth),
         cmocka_unit_test(problems_are_said),
         cmocka_unit_test(brine_beyond_seawater_uses_the_path),
+        cmocka_unit_test(beyond_pss78_calibration_or_model),
+        cmocka_unit_test(manual_reading_when_conductivity_is_weak),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
