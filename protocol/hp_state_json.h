@@ -15,7 +15,7 @@
  * next_stage and method are names (a stage of HC_STAGE_NONE is null);
  * `saturation_index` holds only minerals whose index is known (finite);
  * `warnings` is an array of warning names (hc_warning_name), lowest bit
- * first. It carries `baume_modulus`, because
+ * first. Besides the core brine fields it carries `baume_modulus`, because
  * a degree Baume means nothing without its modulus. */
 json_t *hp_state_to_json(const hc_brine_state *state);
 
