@@ -197,13 +197,13 @@ hc_status hc_path_state_from_cf(const hc_path *path, double cf, double t_c, doub
         st = hc_brine_density(p.molality, t_ref_c, &s.density_ref_kg_m3);
     if (st != HC_OK)
         return st;
-    /* SG t_ref/t_ref = rho(t_ref) / rho_w(t_ref) (DOMAIN sec. 3), as
+    /* SG t_ref/t_ref = rho(t_ref) / rho_w(t_ref) (hc_baume.h), as
      * hc_brine_specific_gravity does [1] */
     s.specific_gravity = s.density_ref_kg_m3 / hc_water_density_lc(t_ref_c);
     s.temperature_c = t_c;
     s.reference_temperature_c = t_ref_c;
     s.baume_modulus = baume_modulus;
-    /* Heavy-liquid scale: deg Be = m (1 - 1/SG) (DOMAIN sec. 3). */
+    /* Heavy-liquid scale: deg Be = m (1 - 1/SG) (NBS Circular 59, 1916) [deg Be] */
     s.baume = baume_modulus * (1.0 - 1.0 / s.specific_gravity);
     s.salinity_g_kg = p.salinity_g_kg;
     s.concentration_factor = p.concentration_factor;

@@ -1,6 +1,6 @@
 /* The brine state of one sample: the contract shared by the calculator CLI,
  * the daemon's pipeline, the store and the MQTT state message. Field names
- * follow the JSON names in shared/DESIGN.md. A value that is not known is NaN
+ * follow the JSON names of hp_state_json.h. A value that is not known is NaN
  * (JSON null). Plain data: no pointers, so states copy by assignment. */
 #ifndef HC_STATE_H
 #define HC_STATE_H
@@ -20,8 +20,8 @@ typedef enum {
     HC_STAGE_NONE = -1 /* no stage known (e.g. no next stage past bischofite) */
 } hc_stage;
 
-/* Where the state's density came from (`method`, DESIGN.md "Where the brine
- * state comes from"). */
+/* Where the state's density came from (`method`; the order of
+ * preference is in plugin/README.md, "Where a pond's density comes from"). */
 typedef enum {
     HC_METHOD_NONE,
     HC_METHOD_PSS78,             /* conductivity + temperature, PSS-78 + EOS-80 */

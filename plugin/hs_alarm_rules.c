@@ -109,7 +109,7 @@ void hs_alarm_rule_default(hs_alarm_rule *r, hs_rule_kind kind)
         break;
     case HS_RULE_GYPSUM_IN_FEED:
         /* Crystallisers are fed at about 25.5 to 26 deg Be (common practice,
-         * no source; shared/DOMAIN.md section 11). */
+         * no source). */
         r->quantity = HS_QTY_BAUME;
         r->low = 25.0;
         r->deadband = 0.2;

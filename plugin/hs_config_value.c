@@ -20,7 +20,7 @@ static const hs_unit area_units[] = {
 static const hs_unit density_units[] = {
     {"kg/m3", 1.0, 0.0}, {"g/cm3", 1000.0, 0.0}, {"g/mL", 1000.0, 0.0},
     {"g/L", 1.0, 0.0}, {NULL, 0, 0}};
-/* Temperatures are degC on ITS-90 throughout (DESIGN.md). */
+/* Temperatures are degC on ITS-90 throughout. */
 static const hs_unit temperature_units[] = {
     {"C", 1.0, 0.0}, {"degC", 1.0, 0.0}, {NULL, 0, 0}};
 static const hs_unit angle_units[] = {{"deg", 1.0, 0.0}, {NULL, 0, 0}};

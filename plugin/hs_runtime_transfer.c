@@ -109,8 +109,8 @@ static struct hs_xfer_input pond_level(const hs_runtime *rt, int pond)
 
 /* The destination's density after one batch of source brine, at the site
  * reference temperature like every density a decision compares, from the
- * mixed composition (mass of water and of every ion conserved; DOMAIN.md
- * section 10), never by averaging densities. */
+ * mixed composition (mass of water and of every ion conserved), never by
+ * averaging densities. */
 static struct hs_xfer_input mixed_density(hs_runtime *rt, const hs_transfer_conf *t)
 {
     struct hs_xfer_input out = {NAN, HS_XQ_BAD};

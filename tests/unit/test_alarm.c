@@ -395,7 +395,7 @@ static void names_and_checks(void **unused)
     assert_true(fabs(r.high - 29.0) < 1e-12);
     assert_int_equal(r.quantity, HS_QTY_BAUME);
     /* Crystalliser feed: 25 deg Be, below the 25.5-26 of common practice,
-     * no source (shared/DOMAIN.md section 11). */
+     * no source. */
     hs_alarm_rule_default(&r, HS_RULE_GYPSUM_IN_FEED);
     assert_true(fabs(r.low - 25.0) < 1e-12);
 }

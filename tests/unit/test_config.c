@@ -99,6 +99,41 @@ static void valid_file_loads(void **state)
     hs_site_free(&site);
 }
 
+/* BASE's [site] (lines 1-3) with extra keys after it (line 4 on); the rest of
+ * BASE follows, shifted by the number of extra lines. */
+#define SITE_THEN(extra) "[site]\nname = test-works\nlatitude = 10\n" extra \
+    "[bus plc]\ntype = tcp\nhost = 127.0.0.1\nport = 1502\nunit_ids = 1\n" \
+    "[pond a]\nrole = concentrator\narea = 2 ha\n"
+
+static void retention_keys(void **state)
+{
+    (void)state;
+    hs_site site;
+    hs_diag diag;
+    conf_write_file(cd.path, SITE_THEN(""));
+    assert_int_equal(hs_site_load(cd.path, &site, &diag), 0);
+    assert_int_equal(site.site.raw_retention_ms, 30LL * 86400000);     /* defaults */
+    assert_int_equal(site.site.minute_retention_ms, 400LL * 86400000);
+    assert_int_equal(site.site.hour_retention_ms, 3650LL * 86400000);
+    hs_site_free(&site);
+    conf_write_file(cd.path, SITE_THEN("raw_retention = 7d\nminute_retention = 90d\n"
+                                       "hour_retention = 20000d\n"));
+    assert_int_equal(hs_site_load(cd.path, &site, &diag), 0);
+    assert_int_equal(site.site.raw_retention_ms, 7LL * 86400000);
+    assert_int_equal(site.site.minute_retention_ms, 90LL * 86400000);
+    assert_int_equal(site.site.hour_retention_ms, 20000LL * 86400000);
+    hs_site_free(&site);
+}
+static void retention_order(void **s)
+{
+    (void)s;
+    expect_error(SITE_THEN("raw_retention = 60d\nminute_retention = 30d\n"), 5,
+                 "minute_retention: shorter than raw_retention");
+    expect_error(SITE_THEN("hour_retention = 100d\n"), 4,
+                 "hour_retention: shorter than minute_retention");
+    expect_error(SITE_THEN("raw_retention = 12h\n"), 4, "raw_retention");
+}
+
 static void unknown_section(void **s)  { (void)s; expect_error(BASE "[pump x]\n", 23, "unknown section [pump]"); }
 static void unknown_key(void **s)      { (void)s; expect_error(BASE "colour = red\n", 23, "unknown key 'colour'"); }
 static void duplicate_key(void **s)    { (void)s; expect_error(BASE "unit = mS/cm\n", 23, "duplicate key 'unit'"); }
@@ -351,6 +386,7 @@ int main(void)
         cmocka_unit_test(reference_density_scales),
         cmocka_unit_test(missing_file), cmocka_unit_test(all_errors_reported),
         cmocka_unit_test(reference_shows_every_key),
+        cmocka_unit_test(retention_keys), cmocka_unit_test(retention_order),
     };
     return cmocka_run_group_tests(tests, make_dir, remove_dir);
 }
