@@ -17,7 +17,7 @@ static const char *const state_names[HS_ALARM_STATE_COUNT] = {
 };
 
 const char *const hs_alarm_quantity_names[HS_QTY_COUNT + 1] = {
-    "halite_si", "gypsum_si", "density_kg_m3", "baume",
+    "halite_si", "gypsum_si", "density_ref_kg_m3", "baume",
     "depth_m",   "density_fall_kg_m3", "sample_age_s", "bus_down", NULL,
 };
 #define quantity_names hs_alarm_quantity_names

@@ -188,6 +188,7 @@ static void enrich_from_path(const hc_path *path, hc_brine_state *s)
     s->stage = p.stage;
     s->next_stage = p.next_stage;
     s->next_stage_density_kg_m3 = p.next_stage_density_kg_m3;
+    s->next_stage_density_ref_kg_m3 = p.next_stage_density_ref_kg_m3;
     memcpy(s->saturation_index, p.saturation_index, sizeof s->saturation_index);
     s->water_activity = p.water_activity;
 }

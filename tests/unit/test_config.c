@@ -284,6 +284,34 @@ static void feed_converts(void **s)
     assert_int_equal(site.ponds[0].feed_index, -1);
     hs_site_free(&site);
 }
+/* Bands in the trade's units: degree Baume on the heavy-liquid scale with
+ * the site's modulus, SG = m / (m - Be) (NBS Circular 59, 1916), and SG
+ * t_ref/t_ref, both turned into kg/m3 at the reference temperature (20 degC
+ * here) with pure water 998.207 kg/m3 at 20 degC (Kell 1975, J. Chem. Eng.
+ * Data 20, 97). A bare number is refused as ambiguous, with its line. */
+static void reference_density_scales(void **s)
+{
+    (void)s;
+    hs_site site;
+    hs_diag diag;
+    conf_write_file(cd.path, BASE "[pond c]\nrole = bittern\narea = 1 ha\n"
+                    "density_in = 1.150 SG\ndensity_out = 25.5 Be\n"
+                    "[pond d]\nrole = bittern\narea = 1 ha\ndensity_in = 1.2 g/cm3\n"
+                    "density_out = 1230 kg/m3\n");
+    assert_int_equal(hs_site_load(cd.path, &site, &diag), 0);
+    assert_double_equal(site.ponds[2].density_in_kg_m3, 1.150 * 998.207, 0.05);
+    assert_double_equal(site.ponds[2].density_out_kg_m3, 145.0 / (145.0 - 25.5) * 998.207, 0.05);
+    assert_double_equal(site.ponds[3].density_in_kg_m3, 1200.0, 1e-9);
+    hs_site_free(&site);
+    expect_error(BASE "[pond c]\nrole = bittern\narea = 1 ha\ndensity_out = 1.25\n", 26,
+                 "density_out: '1.25' is ambiguous");
+    expect_error(BASE "[pond c]\nrole = bittern\narea = 1 ha\ndensity_out = 80 Be\n", 26,
+                 "density_out: SG 2.23");
+    expect_error(BASE "[pond c]\nrole = bittern\narea = 1 ha\ndensity_out = 150 Be\n", 26,
+                 "not on the heavy-liquid scale of modulus 145");
+    expect_error(BASE "[pond c]\nrole = bittern\narea = 1 ha\ndensity_out = 25 furlongs\n", 26,
+                 "unknown unit 'furlongs'");
+}
 static void long_line(void **s)
 {
     (void)s;
@@ -355,6 +383,7 @@ int main(void)
         cmocka_unit_test(stage_storage_missing), cmocka_unit_test(malformed_lines),
         cmocka_unit_test(indented_keys_are_keys), cmocka_unit_test(feed_checks),
         cmocka_unit_test(feed_converts), cmocka_unit_test(long_line),
+        cmocka_unit_test(reference_density_scales),
         cmocka_unit_test(missing_file), cmocka_unit_test(all_errors_reported),
         cmocka_unit_test(reference_shows_every_key),
         cmocka_unit_test(retention_keys), cmocka_unit_test(retention_order),
