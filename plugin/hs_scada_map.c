@@ -1,11 +1,13 @@
 /* The SCADA point table and the printed register map (hs_scada_map.h). */
 #include <math.h>
+#include <stdlib.h>
 #include <string.h>
 #include <time.h>
 
 #include "hc_state.h"
 #include "hs_alarm.h"
 #include "hs_conf_transfer.h"
+#include "hs_pond_doc.h"
 #include "hs_scada_map.h"
 #include "hs_store.h"
 
@@ -13,20 +15,21 @@
  * level staff (common practice, no source). Order = register order: never
  * reorder, only append (the map version says so otherwise). */
 const hs_scada_number hs_scada_pond_points[] = {
-    {"density_ref_kg_m3", "kg/m3", 10, 0.05},
-    {"specific_gravity", "1", 10000, 0.00005},
-    {"baume", "degBe", 100, 0.01},
-    {"temperature_c", "degC", 100, 0.05},
-    {"density_kg_m3", "kg/m3", 10, 0.05},
-    {"concentration_factor", "1", 100, 0.01},
-    {"next_stage_density_ref_kg_m3", "kg/m3", 10, 0.05},
-    {"depth_m", "m", 1000, 0.001},
-    {"volume_m3", "m3", 0.1, 1.0},
-    {"days_to_target_low", "d", 10, 0.05},
-    {"days_to_target_high", "d", 10, 0.05},
-    {"days_to_next_stage", "d", 10, 0.05},
-    {"salinity_g_kg", "g/kg", 10, 0.05},
-    {"density_uncertainty_kg_m3", "kg/m3", 100, 0.01},
+    {"density_ref_kg_m3", "density_ref_kg_m3", "kg/m3", 10, 0.05},
+    {"specific_gravity", "specific_gravity", "1", 10000, 0.00005},
+    {"baume", "baume", "degBe", 100, 0.01},
+    {"temperature_c", "temperature_c", "degC", 100, 0.05},
+    {"density_kg_m3", "density_kg_m3", "kg/m3", 10, 0.05},
+    {"concentration_factor", "concentration_factor", "1", 100, 0.01},
+    {"next_stage_density_ref_kg_m3", "next_stage_density_ref_kg_m3", "kg/m3", 10, 0.05},
+    {"depth_m", "depth_m", "m", 1000, 0.001},
+    {"volume_m3", "volume_m3", "m3", 0.1, 1.0},
+    {"days_to_target_low", "days_to_target.low", "d", 10, 0.05},
+    {"days_to_target_high", "days_to_target.high", "d", 10, 0.05},
+    {"days_to_next_stage", "days_to_next_stage.expected", "d", 10, 0.05},
+    {"salinity_g_kg", "salinity_g_kg", "g/kg", 10, 0.05},
+    {"density_uncertainty_kg_m3", "density_uncertainty_kg_m3", "kg/m3", 100, 0.01},
+    {"days_to_target_expected", "days_to_target.expected", "d", 10, 0.05},
 };
 const size_t hs_scada_pond_n_points = sizeof hs_scada_pond_points / sizeof hs_scada_pond_points[0];
 
@@ -91,6 +94,30 @@ static const char *text_of(const json_t *doc, const char *key)
     return json_string_value(json_object_get(doc, key));
 }
 
+/* The number at "a" or "a.b" with the digits the document prints it with;
+ * NaN when absent or null. */
+static double doc_number(const json_t *doc, const char *key)
+{
+    char top[64];
+    const char *dot = strchr(key, '.');
+    size_t n = dot ? (size_t)(dot - key) : strlen(key);
+    if (n >= sizeof top)
+        return NAN;
+    memcpy(top, key, n);
+    top[n] = '\0';
+    const json_t *v = json_object_get(doc, top);
+    if (dot != NULL)
+        v = json_object_get(v, dot + 1);
+    if (!json_is_number(v))
+        return NAN;
+    double x = json_number_value(v);
+    if (!isfinite(x))
+        return NAN;
+    char buf[40];
+    snprintf(buf, sizeof buf, "%.*g", hs_doc_digits(top), x);
+    return strtod(buf, NULL);
+}
+
 void hs_scada_pond_from_doc(hs_scada_pond *p, const json_t *doc)
 {
     uint16_t alarms = p->code[HS_CODE_ALARM_BITS];
@@ -99,10 +126,8 @@ void hs_scada_pond_from_doc(hs_scada_pond *p, const json_t *doc)
     if (!json_is_object(doc))
         return;
     p->have = 1;
-    for (size_t k = 0; k < hs_scada_pond_n_points; k++) {
-        const json_t *v = json_object_get(doc, hs_scada_pond_points[k].name);
-        p->number[k] = json_is_number(v) ? json_number_value(v) : NAN;
-    }
+    for (size_t k = 0; k < hs_scada_pond_n_points; k++)
+        p->number[k] = doc_number(doc, hs_scada_pond_points[k].key);
     p->code[HS_CODE_STAGE] = hs_scada_stage_code(text_of(doc, "stage"));
     p->code[HS_CODE_NEXT_STAGE] = hs_scada_stage_code(text_of(doc, "next_stage"));
     p->code[HS_CODE_QUALITY] = hs_scada_quality_code(text_of(doc, "quality"));

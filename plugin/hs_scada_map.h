@@ -45,7 +45,8 @@
 
 /* A number of the pond-state document. */
 typedef struct {
-    const char *name;     /* register and metric name; also the document key */
+    const char *name;     /* register and metric name */
+    const char *key;      /* where the document has it: "baume", "days_to_target.low" */
     const char *unit;     /* "kg/m3", "degBe", "degC", "m", "m3", "d", "g/kg", "1" */
     double scale;         /* int16 copy: raw = value x scale */
     double deadband;      /* Sparkplug: a change smaller than this is no change */
@@ -82,7 +83,9 @@ typedef struct {
     uint32_t reasons;     /* HS_XR_* bits */
 } hs_scada_transfer;
 
-/* Fills p from a pond-state document (borrowed); alarm bits are set apart. */
+/* Fills p from a pond-state document (borrowed); alarm bits are set apart.
+ * Numbers are taken with the digits the document publishes them with
+ * (hs_doc_digits), so every outlet shows the same value. */
 void hs_scada_pond_from_doc(hs_scada_pond *p, const json_t *doc);
 void hs_scada_pond_clear(hs_scada_pond *p);
 
