@@ -35,8 +35,9 @@ static void cleared_state_is_all_null(void **unused)
     assert_string_equal(json_string_value(json_object_get(o, "method")), "none");
     assert_int_equal(json_object_size(json_object_get(o, "saturation_index")), 0);
     assert_int_equal(json_array_size(json_object_get(o, "warnings")), 0);
-    /* 15 DESIGN.md fields plus baume_modulus, nothing else */
-    assert_int_equal(json_object_size(o), 16);
+    /* 15 DESIGN.md fields plus baume_modulus and four uncertainties */
+    assert_int_equal(json_object_size(o), 20);
+    assert_true(json_is_null(json_object_get(o, "density_uncertainty_kg_m3")));
     json_decref(o);
 }
 
