@@ -37,6 +37,8 @@ static const hs_key mqtt_keys[] = {
     KEY_UINT("max_inbound", M, max_inbound, 256, 65536, "4096", 0,
              "largest command payload in bytes; the broker is told the packet limit at "
              "connect (MQTT 5), so nothing much larger is ever read"),
+    KEY_DUR("command_max_age", M, command_max_age_ms, 5 * SEC_MS, 24 * 3600 * SEC_MS, "5min",
+            0, "a command whose time is older than this (or as far ahead) is refused as stale"),
     KEY_BOOL("enabled", M, enabled, "yes", 0, "no: keep the section but publish nothing"),
     {NULL},
 };

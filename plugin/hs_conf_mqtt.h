@@ -25,6 +25,7 @@ typedef struct hs_mqtt_conf {
     int64_t reconnect_min_ms;  /* reconnect back-off: first wait ... */
     int64_t reconnect_max_ms;  /* ... doubling up to this */
     unsigned max_inbound;      /* largest inbound command payload [bytes] */
+    int64_t command_max_age_ms; /* older commands are refused as stale */
     bool enabled;
 } hs_mqtt_conf;
 

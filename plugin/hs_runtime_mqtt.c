@@ -81,7 +81,7 @@ int hs_rt_mqtt_open(hs_runtime *rt)
     rt->alarm_sink = (hs_alarm_sink){.store = rt->store, .topics = &rt->topics,
                                      .journal_only = 0};
     rt->commands = (hs_commands){.engine = rt->alarms, .sink = &rt->alarm_sink,
-                                 .topics = &rt->topics};
+                                 .topics = &rt->topics, .max_age_ms = m->command_max_age_ms};
     hs_log(HSP_LOG_NOTICE, "MQTT: %s as %s, topics %s/%s/...", m->uri, m->client_id,
            m->topic_prefix, rt->site.site.name);
     return 0;
