@@ -3,10 +3,10 @@
  * (hp_plan.h), into the sample queue. A dead or hung device costs only its
  * own bus time: buses never wait for each other.
  *
- * Failure handling (libmodbus 3.1.6): error recovery stays NONE; a read is
- * tried 1 + retries times; after a timeout the line is flushed. A Modbus
- * exception is not retried (the device answered): its points get comm-fail
- * with the exception code. Points not read good for stale_after get one
+ * Failure handling (libmodbus 3.1.6, see protocol/README.md): error
+ * recovery stays NONE; a read is tried 1 + retries times; after a timeout
+ * the line is flushed. A Modbus exception is not retried (the device
+ * answered): its points get comm-fail with the exception code. Points not read good for stale_after get one
  * stale sample carrying the last good value. The protocol layer never
  * prints: codes travel in samples, device health in the stats.
  *
