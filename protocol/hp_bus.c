@@ -133,10 +133,9 @@ static int connect_bus(hp_bus *b)
     if (b->conf.kind == HP_BUS_RTU && b->conf.rs485)
         (void)modbus_rtu_set_serial_mode(b->ctx, MODBUS_RTU_RS485); /* ENOTTY is harmless */
     b->connected = true;
-    /* A fresh link: devices that are down get their probe now (the backoff
-     * paces these probes when every device is down). backoff_step is reset
-     * by the first answer, not by the connect, which a serial port always
-     * grants. */
+    b->backoff_step = 0;
+    /* A fresh link: devices that are down get their probe now (when every
+     * device is down, the reconnect delay paces these probes). */
     int64_t now = hp_mono_ms();
     for (unsigned u = 0; u < UNITS; u++)
         if (b->dev[u].down)
@@ -165,7 +164,6 @@ static void set_down(hp_bus *b, uint8_t unit, bool down)
 static void device_answered(hp_bus *b, uint8_t unit)
 {
     b->dev[unit].timeouts = 0;
-    b->backoff_step = 0;
     if (b->dev[unit].down)
         set_down(b, unit, false);
 }
