@@ -145,15 +145,16 @@ static int within_band(const struct hs_transfer_rule *rule, double rho)
              (isfinite(rule->dest_density_max_kg_m3) && rho > rule->dest_density_max_kg_m3));
 }
 
-static int dest_ok(const struct hs_chain_link *l, double level, int overflow)
+static int dest_ok(const struct hs_chain_link *l, double level, int overflow, double rain_m)
 {
-    return !overflow && !(isfinite(l->rule.dest_level_max_m) && level > l->rule.dest_level_max_m);
+    return !overflow &&
+           !(isfinite(l->rule.dest_level_max_m) && level > l->rule.dest_level_max_m - rain_m);
 }
 
 /* The most the day allows, and the limit that binds (an HS_XR_* bit, 0
  * when the pump's capacity does). */
-static int largest_move(struct run *r, const struct hs_chain_link *l, double *v_out,
-                        double *mix_rho, unsigned *binding)
+static int largest_move(struct run *r, const struct hs_chain_link *l, double rain_m,
+                        double *v_out, double *mix_rho, unsigned *binding)
 {
     const struct hs_chain_input *in = r->in;
     hc_chain_view sv;
@@ -162,7 +163,13 @@ static int largest_move(struct run *r, const struct hs_chain_link *l, double *v_
         return fail(r, "transfer", l->name, st);
     double v_hi = l->rated_flow_m3_h * 24.0;
     *binding = 0;
-    double v_min = volume_at(&in->ponds[l->source], l->rule.source_level_min_m);
+    /* Leave the source the day's evaporation above its minimum, and the
+     * destination the day's rain below its maximum, so that the evening
+     * still keeps both limits. */
+    const struct hs_chain_pond_in *sp = &in->ponds[l->source];
+    double margin = isfinite(sp->evap_fresh_mm_day) && sp->evap_fresh_mm_day > 0
+                        ? sp->evap_fresh_mm_day / 1000 : 0;
+    double v_min = volume_at(sp, l->rule.source_level_min_m + margin);
     double avail = isfinite(v_min) ? sv.volume_m3 - v_min : sv.volume_m3 * 0.999;
     if (avail < v_hi) {
         v_hi = avail > 0 ? avail : 0;
@@ -178,18 +185,18 @@ static int largest_move(struct run *r, const struct hs_chain_link *l, double *v_
     st = after(r, l, v_hi, &level, mix_rho, &over);
     if (st != HC_OK)
         return fail(r, "transfer", l->name, st);
-    int ok = dest_ok(l, level, over) && within_band(&l->rule, *mix_rho);
+    int ok = dest_ok(l, level, over, rain_m) && within_band(&l->rule, *mix_rho);
     if (!ok) {
         /* Largest v in [0, v_hi] that keeps the destination's level and
          * band; both move monotonically with v. */
         double lo = 0, hi = v_hi;
         int band_bad = !within_band(&l->rule, *mix_rho);
-        *binding = dest_ok(l, level, over) ? HS_XR_DEST_DENSITY_BAND : HS_XR_DEST_LEVEL_HIGH;
+        *binding = dest_ok(l, level, over, rain_m) ? HS_XR_DEST_DENSITY_BAND : HS_XR_DEST_LEVEL_HIGH;
         double tiny = v_hi * 1e-9, rho_tiny;
         st = after(r, l, tiny, &level, &rho_tiny, &over);
         if (st != HC_OK)
             return fail(r, "transfer", l->name, st);
-        if (!dest_ok(l, level, over) || (band_bad && !within_band(&l->rule, rho_tiny))) {
+        if (!dest_ok(l, level, over, rain_m) || (band_bad && !within_band(&l->rule, rho_tiny))) {
             *v_out = 0;
             *mix_rho = rho_tiny;
             return 0;
@@ -199,7 +206,7 @@ static int largest_move(struct run *r, const struct hs_chain_link *l, double *v_
             st = after(r, l, mid, &level, &rho, &over);
             if (st != HC_OK)
                 return fail(r, "transfer", l->name, st);
-            if (dest_ok(l, level, over) && within_band(&l->rule, rho))
+            if (dest_ok(l, level, over, rain_m) && within_band(&l->rule, rho))
                 lo = mid;
             else
                 hi = mid;
@@ -227,13 +234,13 @@ static int run_link(struct run *r, int day, size_t li)
         return fail(r, "transfer", l->name, st);
     double v, mix_rho;
     unsigned binding;
-    if (largest_move(r, l, &v, &mix_rho, &binding) != 0)
+    double rain = in->rain_mm != NULL ? in->rain_mm[day - 1] : 0;
+    if (largest_move(r, l, rain / 1000, &v, &mix_rho, &binding) != 0)
         return -1;
     double src_level, dst_level, area;
     int over;
     (void)level_of(&in->ponds[l->source], sv.volume_m3, &src_level, &area, &over);
     (void)level_of(&in->ponds[l->dest], dv.volume_m3, &dst_level, &area, &over);
-    double rain = in->rain_mm != NULL ? in->rain_mm[day - 1] : 0;
     struct hs_transfer_inputs xin = {
         .now_ms = (int64_t)day * DAY_MS,
         .source_density = {sv.point.density_ref_kg_m3, HS_XQ_GOOD},
