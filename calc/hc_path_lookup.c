@@ -194,13 +194,16 @@ hc_status hc_path_state_from_cf(const hc_path *path, double cf, double t_c, doub
     hc_state_clear(&s);
     st = hc_brine_density(p.molality, t_c, &s.density_kg_m3);
     if (st == HC_OK)
-        st = hc_brine_specific_gravity(p.molality, t_ref_c, &s.specific_gravity);
+        st = hc_brine_density(p.molality, t_ref_c, &s.density_ref_kg_m3);
     if (st != HC_OK)
         return st;
+    /* SG t_ref/t_ref = rho(t_ref) / rho_w(t_ref) (hc_baume.h), as
+     * hc_brine_specific_gravity does [1] */
+    s.specific_gravity = s.density_ref_kg_m3 / hc_water_density_lc(t_ref_c);
     s.temperature_c = t_c;
     s.reference_temperature_c = t_ref_c;
     s.baume_modulus = baume_modulus;
-    /* Heavy-liquid scale: deg Be = m (1 - 1/SG) (DOMAIN sec. 3). */
+    /* Heavy-liquid scale: deg Be = m (1 - 1/SG) (NBS Circular 59, 1916) [deg Be] */
     s.baume = baume_modulus * (1.0 - 1.0 / s.specific_gravity);
     s.salinity_g_kg = p.salinity_g_kg;
     s.concentration_factor = p.concentration_factor;
@@ -213,8 +216,11 @@ hc_status hc_path_state_from_cf(const hc_path *path, double cf, double t_c, doub
     if (s.next_stage != HC_STAGE_NONE) {
         hc_path_point q;
         if (hc_path_point_at_cf(path, path->stage_cf[s.next_stage], &q, NULL) == HC_OK &&
-            hc_brine_density(q.molality, t_c, &s.next_stage_density_kg_m3) != HC_OK)
+            (hc_brine_density(q.molality, t_c, &s.next_stage_density_kg_m3) != HC_OK ||
+             hc_brine_density(q.molality, t_ref_c, &s.next_stage_density_ref_kg_m3) != HC_OK)) {
             s.next_stage_density_kg_m3 = NAN;
+            s.next_stage_density_ref_kg_m3 = NAN;
+        }
     }
     memcpy(s.saturation_index, p.saturation_index, sizeof s.saturation_index);
     for (int m = 0; m < HC_MINERAL_COUNT; m++)

@@ -12,7 +12,7 @@
 #include "hs_brine_eval.h"
 #include "hs_log.h"
 
-#define PATH_TEMPERATURE_C 25.0 /* HMW84 is a 25 degC model (DOMAIN.md section 5) */
+#define PATH_TEMPERATURE_C 25.0 /* HMW84 is a 25 degC model (Harvie, Moller & Weare 1984) */
 
 struct model {
     hc_path *path;
@@ -188,6 +188,7 @@ static void enrich_from_path(const hc_path *path, hc_brine_state *s)
     s->stage = p.stage;
     s->next_stage = p.next_stage;
     s->next_stage_density_kg_m3 = p.next_stage_density_kg_m3;
+    s->next_stage_density_ref_kg_m3 = p.next_stage_density_ref_kg_m3;
     memcpy(s->saturation_index, p.saturation_index, sizeof s->saturation_index);
     s->water_activity = p.water_activity;
 }
@@ -252,7 +253,7 @@ static int state_from_conductivity(const hs_site *site, const hc_path *path,
 }
 
 /* Density source 3: an operator's hydrometer reading, SG at t_ref/t_ref.
- * rho(t_ref) = SG rho_w(t_ref) (DOMAIN.md section 3; rho_w by Laliberte &
+ * rho(t_ref) = SG rho_w(t_ref) (heavy-liquid SG; rho_w by Laliberte &
  * Cooper 2004 eq. 8, as hc_path uses), then the path brine of that density
  * evaluated at the pond's temperature. */
 static int state_from_manual(const hs_site *site, const hc_path *path, const hs_pond_aids *a,
@@ -296,7 +297,7 @@ static void depth_of(const hs_site *site, size_t pond, const hs_reading *reading
     v->depth_quality = HS_QUALITY_BAD;
     if (usable(lp)) {
         /* the pond's own brine, not water: a 1.25 brine read as water
-         * overstates depth by 25 % (DOMAIN.md section 10) */
+         * overstates depth by 25 % (hydrostatics) */
         double rho = v->have_state ? v->state.density_kg_m3 : NAN;
         hs_quality q = lp->quality;
         if (!isfinite(rho)) {
@@ -361,7 +362,7 @@ void hs_pond_evaluate(const hs_site *site, size_t pond, const hs_reading *readin
     } else if (usable(cond) && state_from_conductivity(site, path, cal, cond->value, t_c,
                                                        &v->state, v->note, sizeof v->note) == 0) {
         /* Conductivity says little near and past halite saturation
-         * (DOMAIN.md section 9): a recent hydrometer reading knows better. */
+         * (CRC Handbook: NaCl and MgCl2 conductivity flatten and fall): a recent hydrometer reading knows better. */
         hc_brine_state m;
         if ((v->state.warnings & HC_WARN_CONDUCTIVITY_WEAK) && manual_ok &&
             state_from_manual(site, path, aids, t_c, &m) == 0) {

@@ -1,5 +1,5 @@
 /* Publishing: what goes into the MQTT outbox (topics and JSON payloads per
- * shared/DESIGN.md) and the pump that moves outbox rows to the broker.
+ * README.md) and the pump that moves outbox rows to the broker.
  *
  * Topics (prefix "halostage" unless configured):
  *   <prefix>/<site>/gateway              retained {"online": bool, ...}; the will sets false
@@ -50,7 +50,7 @@ int hs_topic_commands(char *buf, size_t len, const hs_topics *t);
 /* "2026-01-01T00:00:00.000Z" into buf (at least 32 bytes). */
 void hs_iso8601_ms(char *buf, size_t len, int64_t t_ms);
 
-/* JSON of a brine state with the DESIGN.md field names, plus the pond's
+/* JSON of a brine state with the hp_state_json.h field names, plus the pond's
  * level and balance, quality and time. New reference; caller decrefs. */
 json_t *hs_state_payload(const char *pond, int64_t t_ms, const hc_brine_state *s,
                          const hs_pond_extra *extra, hs_quality quality);

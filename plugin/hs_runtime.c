@@ -165,7 +165,12 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
         free(rt);
         return HSP_ERR_RUNTIME;
     }
-    rt->store = hs_store_open(rt->site.site.database, HS_STORE_WRITE, NULL, err, sizeof err);
+    hs_store_options opt;
+    hs_store_options_default(&opt);
+    opt.raw_retention_ms = rt->site.site.raw_retention_ms;
+    opt.minute_retention_ms = rt->site.site.minute_retention_ms;
+    opt.hour_retention_ms = rt->site.site.hour_retention_ms;
+    rt->store = hs_store_open(rt->site.site.database, HS_STORE_WRITE, &opt, err, sizeof err);
     if (rt->store == NULL) {
         hs_log(HSP_LOG_ERR, "%s", err);
         hs_lock_release(rt->lock);
@@ -315,6 +320,8 @@ int hs_runtime_reload(hs_runtime *rt, const char *config_path)
     site_parts_free(rt);
     hs_site_free(&rt->site);
     rt->site = fresh;
+    hs_store_set_retention(rt->store, rt->site.site.raw_retention_ms,
+                           rt->site.site.minute_retention_ms, rt->site.site.hour_retention_ms);
     hs_alarm_free(rt->alarms);
     rt->alarms = NULL;
     snprintf(rt->config_path, sizeof rt->config_path, "%s", config_path);

@@ -89,6 +89,7 @@ void hs_rt_emit_pond(hs_runtime *rt, size_t pond, int64_t now_ms)
         emit_value(rt, tag, HSP_VALUE_NUMBER, value, NULL, unit, q, t);      \
     } while (0)
     NUM("density_kg_m3", s->density_kg_m3, "kg/m3");
+    NUM("density_ref_kg_m3", s->density_ref_kg_m3, "kg/m3");
     NUM("baume", s->baume, "degBe");
     NUM("specific_gravity", s->specific_gravity, "");
     NUM("temperature_c", s->temperature_c, "degC");
@@ -131,7 +132,7 @@ static json_t *transfer_object(hs_runtime *rt, size_t i, int64_t now_ms)
                           hs_advice_name(x->last.advice), "pump_on", x->last.pump_on, "actuate",
                           t->actuate ? 1 : 0, "reasons", reasons, "time", when);
     if (o != NULL)
-        json_object_set_new(o, "destination_density_after_mixing_kg_m3",
+        json_object_set_new(o, "destination_density_after_mixing_ref_kg_m3",
                             isfinite(x->predicted_mix_kg_m3) ? json_real(x->predicted_mix_kg_m3)
                                                              : json_null());
     return o;

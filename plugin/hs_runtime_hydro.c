@@ -95,7 +95,7 @@ const hc_pond_shape *hs_rt_pond_shape(const hs_runtime *rt, size_t pond)
 
 /* Days until 1/CF reaches 1/cf_goal at the recent trend. Under steady net
  * evaporation over a steady area the water mass falls linearly in time, so
- * 1/CF = W/W0 is linear in time (CF by its definition, DOMAIN.md section 7);
+ * 1/CF = W/W0 is linear in time (CF by its definition: initial over remaining water mass);
  * the slope comes from a least-squares line through the recent points, and
  * low/high from the slope -/+ one standard error. */
 static void trend_days(const struct hs_rt_pond *rp, double cf_now, double cf_goal, double *lo,

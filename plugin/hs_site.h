@@ -31,6 +31,9 @@ typedef struct {
     char feed[HS_NAME_MAX];         /* default feed; "" = built-in seawater */
     int feed_index;                 /* into feeds, -1 = built-in seawater */
     int64_t stale_after_ms;         /* default for every bus */
+    int64_t raw_retention_ms;       /* raw samples and pond states kept this long */
+    int64_t minute_retention_ms;    /* 1-minute rollups kept this long */
+    int64_t hour_retention_ms;      /* 1-hour rollups kept this long */
     int line;                       /* of the [site] header, 0 if absent */
 } hs_site_conf;
 

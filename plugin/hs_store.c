@@ -124,6 +124,16 @@ void hs_store_options_default(hs_store_options *opt)
     opt->outbox_max_rows = 100000;
 }
 
+void hs_store_set_retention(hs_store *st, int64_t raw_ms, int64_t minute_ms, int64_t hour_ms)
+{
+    if (raw_ms > 0)
+        st->opt.raw_retention_ms = raw_ms;
+    if (minute_ms > 0)
+        st->opt.minute_retention_ms = minute_ms;
+    if (hour_ms > 0)
+        st->opt.hour_retention_ms = hour_ms;
+}
+
 void hs_pond_extra_clear(hs_pond_extra *x)
 {
     x->depth_m = x->volume_m3 = x->dissolved_salt_t = x->deposited_salt_t = NAN;

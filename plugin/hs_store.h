@@ -56,6 +56,11 @@ typedef struct {
 /* Fills the defaults listed above. */
 void hs_store_options_default(hs_store_options *opt);
 
+/* Changes the retention periods of an open writer (a reload of the site
+ * file); they apply from the next maintenance pass. Non-positive values keep
+ * the current period. */
+void hs_store_set_retention(hs_store *st, int64_t raw_ms, int64_t minute_ms, int64_t hour_ms);
+
 /* Opens (and in HS_STORE_WRITE mode creates and migrates) the store at path.
  * opt may be NULL for defaults. On failure returns NULL and, when err is not
  * NULL, writes a reason into err (errlen bytes). The caller owns the handle

@@ -1,5 +1,5 @@
 /* JSON form of a brine state (jansson), with the field names of
- * shared/DESIGN.md "JSON fields of a brine state". Used by `halostage calc`,
+ * the brine-state fields below. Used by `halostage calc`,
  * `halostaged --once` and the MQTT state message, so all three agree.
  *
  * Error convention: returns NULL when jansson cannot allocate; no errno. */
@@ -15,7 +15,7 @@
  * next_stage and method are names (a stage of HC_STAGE_NONE is null);
  * `saturation_index` holds only minerals whose index is known (finite);
  * `warnings` is an array of warning names (hc_warning_name), lowest bit
- * first. Besides the DESIGN.md fields it carries `baume_modulus`, because
+ * first. Besides the core brine fields it carries `baume_modulus`, because
  * a degree Baume means nothing without its modulus. */
 json_t *hp_state_to_json(const hc_brine_state *state);
 

@@ -204,6 +204,7 @@ static void add_path_view(const hc_path *path, hc_brine_state *st)
     st->stage = v.stage;
     st->next_stage = v.next_stage;
     st->next_stage_density_kg_m3 = v.next_stage_density_kg_m3;
+    st->next_stage_density_ref_kg_m3 = v.next_stage_density_ref_kg_m3;
     memcpy(st->saturation_index, v.saturation_index, sizeof st->saturation_index);
     st->water_activity = v.water_activity;
 }

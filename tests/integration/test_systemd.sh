@@ -1,6 +1,6 @@
 #!/usr/bin/env bash
 # systemd/halostaged.service: `systemd-analyze verify` with nothing on stderr
-# (it exits 0 even on unknown keys, PITFALLS.md), and the exposure score of
+# (it exits 0 even on unknown keys, systemd 252), and the exposure score of
 # `systemd-analyze security` at 2.0 or below (--threshold is on a 0-100 scale).
 . "$(dirname "$0")/lib.sh"
 

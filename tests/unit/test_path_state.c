@@ -122,7 +122,7 @@ static void state_from_conductivity_model(void **unused)
     assert_false(s.warnings & HC_WARN_CONDUCTIVITY_WEAK);
     assert_true(s.concentration_factor > 2.0 && s.concentration_factor < 8.0);
     /* Near halite saturation conductivity says little: warned, density preferred
-     * (DESIGN.md "Where the brine state comes from"). */
+     * (plugin/README.md "Where a pond's density comes from"). */
     assert_int_equal(hc_path_state_from_conductivity(path, 260.0, 25.0, 15.556, 145.0, NULL, &s),
                      HC_OK);
     assert_true(s.warnings & HC_WARN_CONDUCTIVITY_WEAK);
