@@ -129,6 +129,8 @@ void hs_rt_emit_transfer(hs_runtime *rt, size_t transfer, int64_t now_ms);
 void hs_rt_emit_alarm(hs_runtime *rt, const hs_alarm_event *ev);
 void hs_rt_emit_gateway(hs_runtime *rt, int online, int64_t now_ms);
 int hs_rt_enqueue_state(hs_runtime *rt, size_t pond, int64_t now_ms);
+struct hs_pond_doc;
+void hs_rt_pond_doc(const hs_runtime *rt, size_t pond, struct hs_pond_doc *d);
 
 /* hs_runtime_hydro.c */
 int hs_rt_hydro_init(hs_runtime *rt);

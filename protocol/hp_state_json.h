@@ -1,6 +1,6 @@
-/* JSON form of a brine state (jansson), with the field names of
- * the brine-state fields below. Used by `halostage calc`,
- * `halostaged --once` and the MQTT state message, so all three agree.
+/* JSON form of a brine state (jansson). Used by `halostage calc` and, as
+ * the brine part of the pond-state document, by every pond-state outlet,
+ * so they all agree.
  *
  * Error convention: returns NULL when jansson cannot allocate; no errno. */
 #ifndef HP_STATE_JSON_H

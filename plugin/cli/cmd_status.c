@@ -13,7 +13,7 @@
 
 #include "cli_number.h"
 #include "commands.h"
-#include "hp_state_json.h"
+#include "hs_pond_doc.h"
 #include "hs_alarm.h"
 #include "hs_conf_transfer.h"
 #include "hs_config.h"
@@ -207,24 +207,16 @@ static json_t *status_json(const hs_site *site, hs_store *st, const struct alarm
     for (size_t i = 0; i < site->n_ponds; i++) {
         const hs_pond *p = &site->ponds[i];
         hs_state_row row;
-        json_t *o;
+        struct hs_pond_doc d;
         if (hs_store_latest_state(st, p->name, &row) == 0) {
-            o = hp_state_to_json(&row.state);
-            json_object_set_new(o, "time_ms", json_integer(row.t_ms));
-            json_object_set_new(o, "quality", json_string(hs_quality_name(row.quality)));
-            json_object_set_new(o, "depth_m", isfinite(row.extra.depth_m) ? json_real(row.extra.depth_m) : json_null());
-            json_object_set_new(o, "volume_m3", isfinite(row.extra.volume_m3) ? json_real(row.extra.volume_m3) : json_null());
-            json_object_set_new(o, "days_to_target",
-                                json_pack("{s:o, s:o}", "low",
-                                          isfinite(row.extra.days_to_target_low) ? json_real(row.extra.days_to_target_low) : json_null(),
-                                          "high",
-                                          isfinite(row.extra.days_to_target_high) ? json_real(row.extra.days_to_target_high) : json_null()));
+            hs_pond_doc_from_row(&d, &row, p->name, hs_role_name(p->role));
         } else {
-            o = json_object();
-            json_object_set_new(o, "quality", json_string("no data"));
+            hs_pond_doc_init(&d);
+            d.pond = p->name;
+            d.role = hs_role_name(p->role);
+            d.note = "no stored state";
         }
-        json_object_set_new(o, "pond", json_string(p->name));
-        json_object_set_new(o, "role", json_string(hs_role_name(p->role)));
+        json_t *o = hs_pond_doc_json(&d);
         json_array_append_new(ponds, o);
     }
     for (size_t i = 0; i < site->n_transfers; i++) {
@@ -302,7 +294,7 @@ int hs_cmd_status(int argc, char **argv)
         rc = 1;
     } else if (json) {
         json_t *o = status_json(&site, st, &alarms);
-        char *text = json_dumps(o, JSON_COMPACT | JSON_REAL_PRECISION(10));
+        char *text = hs_doc_dumps(o);
         if (text)
             printf("%s\n", text);
         free(text);
