@@ -24,6 +24,10 @@ void hc_state_clear(hc_brine_state *state)
     state->water_activity = NAN;
     state->method = HC_METHOD_NONE;
     state->warnings = 0;
+    state->density_uncertainty_kg_m3 = NAN;
+    state->sg_uncertainty = NAN;
+    state->baume_uncertainty = NAN;
+    state->cf_uncertainty = NAN;
 }
 
 static const char *const stage_names[HC_STAGE_COUNT] = {

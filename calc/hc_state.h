@@ -70,6 +70,12 @@ typedef struct {
     double water_activity;          /* [1] */
     hc_method method;
     unsigned warnings;              /* HC_WARN_* bits */
+    /* Standard uncertainties (k = 1) propagated through `method`
+     * (hc_uncertainty.h); NaN when not known. */
+    double density_uncertainty_kg_m3; /* of density_kg_m3 [kg/m3] */
+    double sg_uncertainty;            /* of specific_gravity [1] */
+    double baume_uncertainty;         /* of baume [deg Be] */
+    double cf_uncertainty;            /* of concentration_factor [1] */
 } hc_brine_state;
 
 /* Sets every number to NaN, stages to HC_STAGE_NONE, method to none. */

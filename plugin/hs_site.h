@@ -106,6 +106,10 @@ typedef struct {
     char unit[HS_UNIT_NAME_MAX];   /* engineering unit of the decoded value */
     double si_factor;              /* SI value = value * si_factor + si_offset */
     double si_offset;
+    char accuracy[24];             /* `accuracy` as written; "" = the quantity's default */
+    int accuracy_set;              /* parsed into the two below (hs_accuracy.h) */
+    double accuracy_abs_si;        /* +- [SI unit] */
+    double accuracy_rel;           /* +- fraction of the reading */
 } hs_signal;
 
 /* Major ions of a feed analysis, as the thermodynamics module takes them. */

@@ -62,6 +62,11 @@ static const char *const migrations[] = {
     /* 1 -> 2: rollups are reached through their primary key, series by
      * series; the (step_s, t_ms) index cost a third of the file. */
     "DROP INDEX IF EXISTS rollup_step_t;",
+    /* 2 -> 3: every state carries its standard uncertainty (k = 1). */
+    "ALTER TABLE pond_state ADD COLUMN density_uncertainty_kg_m3 REAL;"
+    "ALTER TABLE pond_state ADD COLUMN sg_uncertainty REAL;"
+    "ALTER TABLE pond_state ADD COLUMN baume_uncertainty REAL;"
+    "ALTER TABLE pond_state ADD COLUMN cf_uncertainty REAL;",
 };
 #define SCHEMA_VERSION ((int)(sizeof migrations / sizeof migrations[0]))
 
@@ -80,8 +85,10 @@ static const char *const stmt_sql[SQL_COUNT] = {
         " next_stage_density_kg_m3, si_gypsum, si_halite, water_activity, method,"
         " warnings, depth_m, volume_m3, dissolved_salt_t, deposited_salt_t,"
         " net_evaporation_mm_day, days_to_target_low, days_to_target_high,"
-        " days_to_next_stage) VALUES(?1,?2,?3,?4,?5,?6,?7,?8,?9,?10,?11,?12,?13,?14,"
-        "?15,?16,?17,?18,?19,?20,?21,?22,?23,?24,?25,?26,?27,?28)",
+        " days_to_next_stage, density_uncertainty_kg_m3, sg_uncertainty,"
+        " baume_uncertainty, cf_uncertainty) VALUES(?1,?2,?3,?4,?5,?6,?7,?8,?9,?10,?11,"
+        "?12,?13,?14,?15,?16,?17,?18,?19,?20,?21,?22,?23,?24,?25,?26,?27,?28,?29,?30,?31,"
+        "?32)",
     [SQL_JOURNAL_ADD] =
         "INSERT INTO alarm_journal(event_id, t_ms, pond, rule, from_state, to_state,"
         " cause, value, limit_value, priority, actor, note, episode_id, shelved_until_ms)"

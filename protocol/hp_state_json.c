@@ -82,6 +82,11 @@ json_t *hp_state_to_json(const hc_brine_state *state)
              set(o, "saturation_index", saturation_object(state)) &&
              set(o, "water_activity", number_or_null(state->water_activity)) &&
              set(o, "method", json_string(hc_method_name(state->method))) &&
+             set(o, "density_uncertainty_kg_m3",
+                 number_or_null(state->density_uncertainty_kg_m3)) &&
+             set(o, "specific_gravity_uncertainty", number_or_null(state->sg_uncertainty)) &&
+             set(o, "baume_uncertainty", number_or_null(state->baume_uncertainty)) &&
+             set(o, "concentration_factor_uncertainty", number_or_null(state->cf_uncertainty)) &&
              set(o, "warnings", warnings_array(state->warnings));
     if (!ok) {
         json_decref(o);

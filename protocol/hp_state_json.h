@@ -16,7 +16,11 @@
  * `saturation_index` holds only minerals whose index is known (finite);
  * `warnings` is an array of warning names (hc_warning_name), lowest bit
  * first. Besides the core brine fields it carries `baume_modulus`, because
- * a degree Baume means nothing without its modulus. */
+ * a degree Baume means nothing without its modulus, and the standard
+ * uncertainties (k = 1) of density, SG, Baume and CF
+ * (`density_uncertainty_kg_m3`, `specific_gravity_uncertainty`,
+ * `baume_uncertainty`, `concentration_factor_uncertainty`; null when not
+ * known), propagated through the method (calc/hc_uncertainty.h). */
 json_t *hp_state_to_json(const hc_brine_state *state);
 
 #endif

@@ -156,17 +156,18 @@ static void print_table(const hs_site *site, hs_store *st, const struct alarm_li
 {
     printf("site %s, %s\n", site->site.name, site->site.database);
     print_daemon(site);
-    printf("%-9s %-12s %-17s %8s %6s %7s %10s %9s %-8s %s\n", "POND", "ROLE", "STAGE",
-           "kg/m3", "Be", "LEVEL m", "VOLUME m3", "TO TARGET", "QUALITY", "ALARMS");
+    printf("%-9s %-12s %-17s %8s %6s %6s %7s %10s %9s %-8s %s\n", "POND", "ROLE", "STAGE",
+           "kg/m3", "+-", "Be", "LEVEL m", "VOLUME m3", "TO TARGET", "QUALITY", "ALARMS");
     for (size_t i = 0; i < site->n_ponds; i++) {
         const hs_pond *p = &site->ponds[i];
         hs_state_row row;
         int rc = hs_store_latest_state(st, p->name, &row);
-        char rho[16] = "-", be[16] = "-", lvl[16] = "-", vol[16] = "-", d[24] = "-";
+        char rho[16] = "-", u_rho[16] = "-", be[16] = "-", lvl[16] = "-", vol[16] = "-", d[24] = "-";
         char al[200];
         const char *stage = "-", *quality = rc == 0 ? hs_quality_name(row.quality) : "no data";
         if (rc == 0) {
             num(rho, sizeof rho, row.state.density_kg_m3, 1);
+            num(u_rho, sizeof u_rho, row.state.density_uncertainty_kg_m3, 1);
             num(be, sizeof be, row.state.baume, 2);
             num(lvl, sizeof lvl, row.extra.depth_m, 3);
             num(vol, sizeof vol, row.extra.volume_m3, 0);
@@ -177,8 +178,8 @@ static void print_table(const hs_site *site, hs_store *st, const struct alarm_li
                 quality = "old";
         }
         alarms_of(alarms, p->name, al, sizeof al);
-        printf("%-9s %-12s %-17s %8s %6s %7s %10s %9s %-8s %s\n", p->name, hs_role_name(p->role),
-               stage, rho, be, lvl, vol, d, quality, al);
+        printf("%-9s %-12s %-17s %8s %6s %6s %7s %10s %9s %-8s %s\n", p->name,
+               hs_role_name(p->role), stage, rho, u_rho, be, lvl, vol, d, quality, al);
     }
     if (site->n_transfers > 0) {
         printf("\n%-16s %-18s %-8s %s\n", "TRANSFER", "FROM -> TO", "ADVICE", "REASONS");
