@@ -6,7 +6,7 @@ PKGS="build-essential pkg-config
 libmodbus-dev libpaho-mqtt-dev libsqlite3-dev sqlite3 libcmocka-dev libinih-dev
 libjansson-dev libsystemd-dev
 mosquitto mosquitto-clients socat openssl valgrind systemd
-python3 python3-gsw python3-numpy
+python3 python3-gsw python3-numpy python3-pymodbus python3-serial-asyncio
 man-db groff-base"
 missing=""
 for p in $PKGS; do

@@ -103,6 +103,7 @@ void hs_rt_emit_pond(hs_runtime *rt, size_t pond, int64_t now_ms)
     snprintf(tag, sizeof tag, "pond/%s/stage", name);
     emit_value(rt, tag, HSP_VALUE_TEXT, NAN, hc_stage_name(s->stage), "", q, t);
     json_t *o = state_object(rt, pond);
+    hs_rt_scada_pond(rt, pond, o);
     char *text = o != NULL ? hs_doc_dumps(o) : NULL;
     if (text != NULL) {
         snprintf(tag, sizeof tag, "pond/%s/state", name);
@@ -141,6 +142,7 @@ void hs_rt_emit_transfer(hs_runtime *rt, size_t i, int64_t now_ms)
 {
     const hs_transfer_conf *t = &rt->site.transfers[i];
     const struct hs_rt_transfer *x = &rt->transfers[i];
+    hs_rt_scada_transfer(rt, i);
     json_t *o = transfer_object(rt, i, now_ms);
     if (o == NULL)
         return;

@@ -13,6 +13,7 @@ const struct hs_command hs_commands[] = {
     {"ack", hs_cmd_ack, "acknowledge or shelve an alarm at the gateway"},
     {"calibrate", hs_cmd_calibrate, "record or list operators' hydrometer readings (site calibration)"},
     {"forecast", hs_cmd_forecast, "days until ponds reach their target density and next stage"},
+    {"map", hs_cmd_map, "the read-only Modbus register map of the site, for the SCADA"},
     {"plan", hs_cmd_plan, "how much brine to move so a pond lands on a target density"},
     {"backup", hs_cmd_backup, "a consistent copy of the history while the daemon runs"},
     {NULL, NULL, NULL},
