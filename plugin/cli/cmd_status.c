@@ -154,10 +154,11 @@ static json_t *daemon_json(const hs_site *site)
 static void print_table(const hs_site *site, hs_store *st, const struct alarm_list *alarms,
                         int64_t now)
 {
-    printf("site %s, %s\n", site->site.name, site->site.database);
+    printf("site %s, %s; REF kg/m3 and Be at the reference temperature %g degC\n",
+           site->site.name, site->site.database, site->site.reference_temperature_c);
     print_daemon(site);
-    printf("%-9s %-12s %-17s %8s %6s %6s %7s %10s %9s %-8s %s\n", "POND", "ROLE", "STAGE",
-           "kg/m3", "+-", "Be", "LEVEL m", "VOLUME m3", "TO TARGET", "QUALITY", "ALARMS");
+    printf("%-9s %-12s %-17s %9s %6s %6s %7s %10s %9s %-8s %s\n", "POND", "ROLE", "STAGE",
+           "REF kg/m3", "+-", "Be", "LEVEL m", "VOLUME m3", "TO TARGET", "QUALITY", "ALARMS");
     for (size_t i = 0; i < site->n_ponds; i++) {
         const hs_pond *p = &site->ponds[i];
         hs_state_row row;
@@ -166,7 +167,8 @@ static void print_table(const hs_site *site, hs_store *st, const struct alarm_li
         char al[200];
         const char *stage = "-", *quality = rc == 0 ? hs_quality_name(row.quality) : "no data";
         if (rc == 0) {
-            num(rho, sizeof rho, row.state.density_kg_m3, 1);
+            /* the density decisions compare: at the reference temperature */
+            num(rho, sizeof rho, row.state.density_ref_kg_m3, 1);
             num(u_rho, sizeof u_rho, row.state.density_uncertainty_kg_m3, 1);
             num(be, sizeof be, row.state.baume, 2);
             num(lvl, sizeof lvl, row.extra.depth_m, 3);
@@ -178,7 +180,7 @@ static void print_table(const hs_site *site, hs_store *st, const struct alarm_li
                 quality = "old";
         }
         alarms_of(alarms, p->name, al, sizeof al);
-        printf("%-9s %-12s %-17s %8s %6s %6s %7s %10s %9s %-8s %s\n", p->name,
+        printf("%-9s %-12s %-17s %9s %6s %6s %7s %10s %9s %-8s %s\n", p->name,
                hs_role_name(p->role), stage, rho, u_rho, be, lvl, vol, d, quality, al);
     }
     if (site->n_transfers > 0) {
