@@ -8,7 +8,8 @@ libjansson-dev libsystemd-dev libprotobuf-c-dev protobuf-c-compiler
 mosquitto mosquitto-clients socat openssl valgrind systemd
 python3 python3-gsw python3-numpy python3-pymodbus python3-serial-asyncio
 protobuf-compiler python3-protobuf
-man-db groff-base"
+man-db groff-base
+debhelper dpkg-dev lintian"
 missing=""
 for p in $PKGS; do
     st=$(dpkg-query -W -f='${Status}' "$p" 2>/dev/null || true)
