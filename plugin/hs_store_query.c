@@ -3,6 +3,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "hc_brine_density.h"
 #include "hs_store_private.h"
 
 /* The state field named after "POND:" in series, or NULL for a signal. */
@@ -213,6 +214,11 @@ int hs_store_states(hs_store *st, const char *pond, int64_t since_ms, int64_t un
         r.state.stage = stage_col(s, 12);
         r.state.next_stage = stage_col(s, 13);
         r.state.next_stage_density_kg_m3 = hs_col_num(s, 14);
+        /* not stored: the density at the reference temperature follows from
+         * SG t_ref/t_ref = rho(t_ref) / rho_w(t_ref) (hc_baume.h), water by
+         * Laliberte & Cooper 2004 eq. 8 as the live states use [kg/m3] */
+        r.state.density_ref_kg_m3 = r.state.specific_gravity *
+                                    hc_water_density_lc(r.state.reference_temperature_c);
         r.state.saturation_index[HC_MIN_GYPSUM] = hs_col_num(s, 15);
         r.state.saturation_index[HC_MIN_HALITE] = hs_col_num(s, 16);
         r.state.water_activity = hs_col_num(s, 17);
