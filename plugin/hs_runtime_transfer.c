@@ -98,6 +98,23 @@ static struct hs_xfer_input pond_density(const hs_runtime *rt, int pond)
     return (struct hs_xfer_input){v->state.density_ref_kg_m3, xq(v->quality)};
 }
 
+/* The stage trigger judges the source's brine at the reference temperature
+ * by its density there, as a hydrometer does: a pond that warms in the
+ * afternoon does not change stage for the trigger, and past halite no
+ * uncertain CF decides. */
+static hc_stage source_stage_ref(const hs_runtime *rt, int pond)
+{
+    const hs_pond_view *v = &rt->ponds[pond].view;
+    if (!v->have_state)
+        return HC_STAGE_NONE;
+    int feed = rt->site.ponds[pond].feed_index;
+    const hc_onset_table *onsets = hs_brine_models_onsets(rt->models, feed);
+    if (onsets == NULL)
+        return v->state.stage;
+    return hc_onset_table_stage_ref(onsets, v->state.density_ref_kg_m3,
+                                    rt->site.site.reference_temperature_c);
+}
+
 static struct hs_xfer_input pond_level(const hs_runtime *rt, int pond)
 {
     const hs_pond_view *v = &rt->ponds[pond].view;
@@ -186,7 +203,7 @@ void hs_rt_transfers_run(hs_runtime *rt, int64_t mono_ms, int64_t now_ms)
         memset(&in, 0, sizeof in);
         in.now_ms = mono_ms;
         in.source_density = pond_density(rt, t->source_index);
-        in.source_stage = rt->ponds[t->source_index].view.state.stage;
+        in.source_stage = source_stage_ref(rt, t->source_index);
         in.source_level = pond_level(rt, t->source_index);
         in.dest_level = pond_level(rt, t->dest_index);
         in.dest_density_after_mixing = mixed_density(rt, t);
