@@ -78,6 +78,13 @@ typedef struct {
 
 void hs_pond_aids_clear(hs_pond_aids *aids);
 
+/* The stage of the pond's feed brine whose density at t_ref_c is
+ * rho_ref_kg_m3, judged by density against the onset brines at t_ref_c
+ * (hc_onset_table_stage_ref; the 25 degC path when no onset table was
+ * built); HC_STAGE_NONE when not known. What the stage trigger compares. */
+hc_stage hs_stage_at_density_ref(const hs_brine_models *models, int feed_index,
+                                 double rho_ref_kg_m3, double t_ref_c);
+
 /* One pond's view. readings are indexed like site->signals. models may be
  * NULL: then only the seawater range (EOS-80, PSS-78) is known. aids may be
  * NULL (no calibration, no manual reading). now_ms is the wall clock;
