@@ -104,7 +104,7 @@ int hs_alarm_get(const hs_alarm_engine *eng, size_t i, hs_alarm_info *out)
         .pond = a->pond, .rule = a->rule.name, .kind = a->rule.kind, .state = a->state,
         .active = a->active, .value = a->value, .priority = a->rule.priority,
         .episode_id = a->episode_id, .last_event_id = a->last_event_id,
-        .shelved_until_ms = a->shelved_until_ms,
+        .shelved_until_ms = a->shelved_until_ms, .max_shelve_ms = a->rule.max_shelve_ms,
     };
     return 0;
 }

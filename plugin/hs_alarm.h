@@ -215,6 +215,7 @@ typedef struct {
     uint64_t episode_id;
     uint64_t last_event_id;
     int64_t shelved_until_ms;
+    int64_t max_shelve_ms;      /* the rule's longest shelve */
 } hs_alarm_info;
 
 /* i-th alarm (0 <= i < count); strings live as long as the engine. */
