@@ -60,8 +60,8 @@ int hs_rt_mqtt_open(hs_runtime *rt)
         .will_topic = will_topic, .will_payload = will, .will_retained = 1,
         .keepalive_s = (int)m->keepalive_s, .max_inflight = (int)m->window,
         .subscribe = subscribe,
-        .min_retry_s = (int)((m->reconnect_min_ms + 999) / 1000),
-        .max_retry_s = (int)((m->reconnect_max_ms + 999) / 1000),
+        .min_retry_ms = (int)m->reconnect_min_ms,
+        .max_retry_ms = (int)m->reconnect_max_ms,
         .max_inbound = m->max_inbound,
     };
     rt->link = hp_mqtt_new(&opt, err, sizeof err);
