@@ -158,6 +158,13 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
         return rc;
     }
     char err[512] = "";
+    if (hs_lock_take(rt->site.site.database, &rt->lock, err, sizeof err) != 0) {
+        hs_log(HSP_LOG_ERR, "%s", err);
+        hs_brine_models_free(models);
+        hs_site_free(&rt->site);
+        free(rt);
+        return HSP_ERR_RUNTIME;
+    }
     hs_store_options opt;
     hs_store_options_default(&opt);
     opt.raw_retention_ms = rt->site.site.raw_retention_ms;
@@ -166,6 +173,7 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
     rt->store = hs_store_open(rt->site.site.database, HS_STORE_WRITE, &opt, err, sizeof err);
     if (rt->store == NULL) {
         hs_log(HSP_LOG_ERR, "%s", err);
+        hs_lock_release(rt->lock);
         hs_brine_models_free(models);
         hs_site_free(&rt->site);
         free(rt);
@@ -390,5 +398,6 @@ void hs_runtime_close(hs_runtime *rt)
     }
     hp_queue_free(rt->queue);
     hs_site_free(&rt->site);
+    hs_lock_release(rt->lock); /* last: the outputs and the history are let go */
     free(rt);
 }

@@ -16,6 +16,7 @@
 #include "hs_command.h"
 #include "hs_conf_transfer.h"
 #include "hs_hydro.h"
+#include "hs_lock.h"
 #include "hs_mb_image.h"
 #include "hs_publish.h"
 #include "hs_runtime.h"
@@ -87,6 +88,7 @@ struct hs_runtime {
     struct hs_rt_transfer *transfers; /* per transfer */
     uint16_t heartbeat;
 
+    hs_lock *lock;                /* one daemon per site (hs_lock.h) */
     hs_store *store;
     hs_alarm_engine *alarms;
     hs_alarm_sink alarm_sink;

@@ -224,8 +224,13 @@ void hs_rt_transfers_safe(hs_runtime *rt)
 {
     for (size_t i = 0; rt->transfers != NULL && i < rt->site.n_transfers; i++) {
         const hs_transfer_conf *t = &rt->site.transfers[i];
-        if (hs_transfer_safe_write(&rt->transfers[i].rule) != HS_WRITE_OFF)
+        struct hs_xfer_input manual = from_reading(rt, t->manual_index);
+        if (hs_transfer_safe_write(&rt->transfers[i].rule, &manual) != HS_WRITE_OFF) {
+            if (t->actuate)
+                hs_log(HSP_LOG_NOTICE, "[transfer %s]: pump output left as it is at shutdown: "
+                       "the pump is in manual or its manual signal is unknown", t->name);
             continue;
+        }
         int coil = t->output == HS_OUTPUT_COIL;
         if (hs_rt_write(rt, t->bus_index, t->unit_id, coil, t->output_address,
                         coil ? 0 : t->off_value) == 0)
