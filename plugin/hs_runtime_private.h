@@ -67,6 +67,8 @@ struct hs_rt_pond {
     struct hs_stage_table table;  /* stage-storage table when the pond has one */
     int table_loaded;
     double rain_last_m;           /* last rain-gauge total fed to the balance, NaN none */
+    char uncertain[256];          /* alarm rules of the pond the uncertainty holds back
+                                     ("band,fall"), as last logged */
 };
 
 struct hs_runtime {
