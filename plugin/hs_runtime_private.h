@@ -21,6 +21,7 @@
 #include "hs_publish.h"
 #include "hs_runtime.h"
 #include "hs_site.h"
+#include "hs_sparkplug.h"
 #include "hs_stage_table.h"
 #include "hs_store.h"
 #include "hs_transfer.h"
@@ -100,6 +101,8 @@ struct hs_runtime {
     hs_commands commands;
     hs_mb_image *mb_image;        /* [modbus_server]: the map; NULL off */
     hp_mbserver *mb_server;       /* its thread; reads mb_image only */
+    hs_sparkplug *spb;            /* [sparkplug]: the edge node's thread; NULL off */
+    uint64_t spb_bd_seq;          /* the next session's bdSeq, kept across reloads */
 
     int64_t next_eval_ms;         /* monotonic */
     int64_t next_maintain_ms;
