@@ -203,6 +203,8 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
     rt->next_eval_ms = mono;
     rt->next_maintain_ms = mono + HS_RT_MAINTAIN_MS;
     rt->next_command_ms = mono;
+    rt->next_schedule_ms = mono;
+    rt->schedule_day = -1;
     hs_rt_emit_gateway(rt, 1, rt->started_ms);
     hs_log(HSP_LOG_NOTICE, "site %s: %zu ponds, %zu signals on %zu buses, %zu transfers; "
            "history in %s; MQTT %s", rt->site.site.name, rt->site.n_ponds, rt->site.n_signals,
@@ -339,6 +341,7 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
     }
     if (hs_store_flush(rt->store) != 0)
         hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
+    hs_rt_schedule_tick(rt, mono, now);
     hs_rt_mqtt_pump(rt, 0);
     if (mono >= rt->next_maintain_ms) {
         if (hs_store_maintain(rt->store, now) != 0)
@@ -397,6 +400,7 @@ int hs_runtime_reload(hs_runtime *rt, const char *config_path)
         hs_log(HSP_LOG_WARNING, "%s: [mqtt] changed: that takes a restart; the running link "
                "stays as it was", config_path);
     rt->warm = 0;
+    rt->schedule_day = -1; /* a new site: a new schedule */
     int ok = site_parts_open(rt, models) == 0 && alarms_open(rt) == 0 &&
              hs_rt_scada_open(rt) == 0;
     for (size_t i = 0; ok && old_names != NULL && i < rt->site.n_transfers; i++)
