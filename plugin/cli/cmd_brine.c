@@ -86,21 +86,21 @@ static int parse(int argc, char **argv, struct brine_request *rq)
             if (rc == 0 && !(rq->log_p_co2 >= -8.0 && rq->log_p_co2 <= 0.0)) {
                 fprintf(stderr, "halostage " CMD ": --pco2-log %s: outside -8..0 (log10 atm; "
                                 "air is -3.4)\n", v);
-                rc = -1;
+                rc = HS_CLI_RANGE;
             }
         } else if (strcmp(a, "--modulus") == 0) {
             rc = hs_cli_number(CMD, a, v, &rq->modulus);
             if (rc == 0 && !hc_baume_modulus_valid(rq->modulus)) {
                 fprintf(stderr, "halostage " CMD ": --modulus %s: must be a positive number "
                                 "(145, 144.3 or 146.78 are usual)\n", v);
-                rc = -1;
+                rc = HS_CLI_RANGE;
             }
         } else {
             fprintf(stderr, "halostage " CMD ": unknown option '%s' (see --help)\n", a);
             return 2;
         }
         if (rc != 0)
-            return 2;
+            return HS_CLI_EXIT(rc);
     }
     if (!have) {
         fprintf(stderr, "halostage " CMD ": --molality is required, e.g. --molality Na=6,Cl=6\n");
@@ -299,7 +299,7 @@ int hs_cmd_brine(int argc, char **argv)
     if (rc == 3)
         return 0;
     if (rc != 0)
-        return 2;
+        return rc == 1 ? 1 : 2; /* 1: a value out of range, 2: usage */
     struct brine_result r;
     const char *what = "";
     hc_status st = compute(&rq, &r, &what);

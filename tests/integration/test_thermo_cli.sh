@@ -62,7 +62,7 @@ refuse 2 'unknown option' brine --molality Na=1,Cl=1 --colour red
     --pco2-log -3.4 --json >"$out"
 check "brine --pco2-log: seawater pH 8.1-8.3, alkalinity kept" test "$(field "$out" \
     '8.1 < d["ph"] < 8.3 and abs(d["alkalinity_eq_kg"] - 0.00228) < 1e-9')" = True
-refuse 2 'outside -8..0' brine --molality Na=1,Cl=1 --pco2-log 2
+refuse 1 'outside -8..0' brine --molality Na=1,Cl=1 --pco2-log 2
 
 # --- path ----------------------------------------------------------------
 "$HS" path --json >"$out"
@@ -79,7 +79,7 @@ check "path: feed pH at the air's pCO2 8.1-8.3 (seawater, activity scale) [M]" \
 "$HS" path --no-carbonate --json >"$out"
 check "path --no-carbonate: no carbonate stage, no pH" test "$(field "$out" \
     '"carbonate" not in [s["stage"] for s in d["steps"]] and d["steps"][0]["ph"] is None')" = True
-refuse 2 'outside -8..-0.1' path --pco2-log 1
+refuse 1 'outside -8..-0.1' path --pco2-log 1
 "$HS" path --json >"$out"
 # Onsets: gypsum CF 3.4, halite 10.65 (HMW84 fractional [C]); halite at
 # 26.0 deg Be (Baseggio 1974) [S].
@@ -99,7 +99,7 @@ check "site feed: chloride adjustment reported" \
     test "$(field "$out" '"chloride_adjustment_mol_kg" in d["feed"] and d["feed"]["practical_salinity"] is None')" = True
 refuse 2 'use fractional or equilibrium' path --mode sideways
 refuse 2 'unknown feed' path --feed lagoon
-refuse 2 'outside 2..42' path --feed-salinity 60
+refuse 1 'outside 2..42' path --feed-salinity 60
 refuse 2 'cannot be negative' path --feed-analysis Na=-3,Cl=1
 refuse 1 'outside -5..80' path --temperature 99
 refuse 2 'needs --feed-analysis' path --feed-unit mg/L
