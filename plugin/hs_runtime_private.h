@@ -21,6 +21,7 @@
 #include "hs_stage_table.h"
 #include "hs_store.h"
 #include "hs_transfer.h"
+#include "hs_web.h"
 
 #define HS_RT_QUEUE_CAPACITY 4096
 #define HS_RT_TICK_MS 100          /* how often the main loop looks at the queue */
@@ -92,6 +93,7 @@ struct hs_runtime {
     hp_mqtt *link;                /* NULL: MQTT off */
     hs_publisher *publisher;
     hs_commands commands;
+    hs_web *web;                  /* NULL: no [web] section */
 
     int64_t next_eval_ms;         /* monotonic */
     int64_t next_maintain_ms;

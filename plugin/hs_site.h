@@ -125,6 +125,7 @@ typedef struct {
 
 struct hs_transfer_conf;
 struct hs_mqtt_conf;
+struct hs_web_conf;
 
 typedef struct hs_site {
     char path[HS_PATH_MAX];        /* the configuration file as given */
@@ -137,6 +138,7 @@ typedef struct hs_site {
     struct hs_transfer_conf *transfers; size_t n_transfers; /* hs_conf_transfer.h */
     struct hs_mqtt_conf *mqtt;     /* hs_conf_mqtt.h; NULL without [mqtt] */
     struct hs_alarm_conf *alarms; size_t n_alarms; /* hs_conf_alarm.h */
+    struct hs_web_conf *web;       /* hs_conf_web.h; NULL without [web] */
     /* Other section types ([mqtt], [alarm NAME], [transfer NAME], ...) add
      * their arrays below, each owned and released by its own file. */
 } hs_site;

@@ -14,5 +14,6 @@ const struct hs_command hs_commands[] = {
     {"calibrate", hs_cmd_calibrate, "record or list operators' hydrometer readings (site calibration)"},
     {"forecast", hs_cmd_forecast, "days until ponds reach their target density and next stage"},
     {"plan", hs_cmd_plan, "how much brine to move so a pond lands on a target density"},
+    {"user", hs_cmd_user, "logins of the operators' page: add, remove, list"},
     {NULL, NULL, NULL},
 };
