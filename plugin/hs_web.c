@@ -297,7 +297,8 @@ static void on_mhd_log(void *cls, const char *fmt, va_list ap)
     char msg[300];
     vsnprintf(msg, sizeof msg, fmt, ap);
     msg[strcspn(msg, "\n")] = '\0';
-    hs_log(HSP_LOG_WARNING, "web: %s", msg);
+    /* a browser closing its live view is ordinary */
+    hs_log(strstr(msg, "no longer available") ? HSP_LOG_DEBUG : HSP_LOG_WARNING, "web: %s", msg);
 }
 
 /* ---- life ---- */

@@ -29,30 +29,40 @@ static json_t *num(double v)
 
 /* ---- the chain ---- */
 
-/* Ponds in flow order: each chain from a pond nothing flows into, along
- * `next`; any pond left over after them, in file order. */
+/* Ponds in flow order: a pond comes after every pond whose `next` it is;
+ * among those ready, file order decides (so parallel crystallisers stay
+ * together before the bittern pond they both drain to). A loop in the
+ * config (which --check reports) leaves its ponds in file order at the end. */
 static size_t flow_order(const hs_site *site, size_t *order)
 {
-    size_t n = 0;
-    char *seen = calloc(site->n_ponds ? site->n_ponds : 1, 1);
-    if (seen == NULL) {
-        for (size_t i = 0; i < site->n_ponds; i++)
+    size_t n = 0, np = site->n_ponds;
+    char *placed = calloc(np ? np : 1, 1);
+    if (placed == NULL) {
+        for (size_t i = 0; i < np; i++)
             order[i] = i;
-        return site->n_ponds;
+        return np;
     }
-    for (size_t head = 0; head < site->n_ponds; head++) {
-        int fed = 0;
-        for (size_t j = 0; j < site->n_ponds; j++)
-            fed |= site->ponds[j].next_index == (int)head;
-        for (int i = (int)head; !fed && i >= 0 && !seen[i]; i = site->ponds[i].next_index) {
-            seen[i] = 1;
-            order[n++] = (size_t)i;
+    while (n < np) {
+        size_t pick = np;
+        for (size_t i = 0; i < np && pick == np; i++) {
+            if (placed[i])
+                continue;
+            int ready = 1;
+            for (size_t j = 0; j < np; j++)
+                if (!placed[j] && j != i && site->ponds[j].next_index == (int)i)
+                    ready = 0;
+            if (ready)
+                pick = i;
         }
+        if (pick == np)
+            break;
+        placed[pick] = 1;
+        order[n++] = pick;
     }
-    for (size_t i = 0; i < site->n_ponds; i++)
-        if (!seen[i])
+    for (size_t i = 0; i < np; i++)
+        if (!placed[i])
             order[n++] = i;
-    free(seen);
+    free(placed);
     return n;
 }
 

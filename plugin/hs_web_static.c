@@ -7,7 +7,9 @@
 
 enum MHD_Result hs_web_static(struct hs_web_call *c)
 {
-    const char *path = strcmp(c->url, "/") == 0 ? "/index.html" : c->url;
+    const char *path = strcmp(c->url, "/") == 0             ? "/index.html"
+                       : strcmp(c->url, "/favicon.ico") == 0 ? "/icon.svg"
+                                                              : c->url;
     for (size_t i = 0; i < hs_web_asset_count; i++) {
         const struct hs_web_asset *a = &hs_web_assets[i];
         if (strcmp(path + 1, a->name) == 0)
