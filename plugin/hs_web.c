@@ -448,8 +448,11 @@ void hs_web_stop(hs_web *w)
 {
     if (w == NULL)
         return;
+    MHD_socket listener = MHD_INVALID_SOCKET;
     if (w->daemon != NULL)
-        MHD_quiesce_daemon(w->daemon); /* no new connections */
+        listener = MHD_quiesce_daemon(w->daemon); /* no new connections; the socket is ours */
+    if (listener != MHD_INVALID_SOCKET)
+        close(listener); /* so a client of a stopping server is refused, not left waiting */
     pthread_mutex_lock(&w->lock);
     w->stopping = 1;
     pthread_cond_signal(&w->wake);
