@@ -4,9 +4,10 @@
 set -eu
 PKGS="build-essential pkg-config
 libmodbus-dev libpaho-mqtt-dev libsqlite3-dev sqlite3 libcmocka-dev libinih-dev
-libjansson-dev libsystemd-dev
+libjansson-dev libsystemd-dev libmicrohttpd-dev libcrypt-dev
 mosquitto mosquitto-clients socat openssl valgrind systemd
 python3 python3-gsw python3-numpy
+chromium chromium-driver python3-selenium fonts-dejavu-core
 man-db groff-base"
 missing=""
 for p in $PKGS; do

@@ -17,7 +17,7 @@
 
 #define CONNECTION_TIMEOUT_S 30    /* idle connections close after this */
 #define CONNECTION_MEMORY 65536    /* per connection: headers and body pieces */
-#define PER_IP_LIMIT 16
+#define PER_IP_LIMIT 32     /* several phones behind one NAT; 20 clients in the bench */
 #define PEM_MAX (256 * 1024)
 
 int64_t hs_web_mono_ms(void)
