@@ -31,6 +31,9 @@ endif
 WARN     := -Wall -Wextra -Werror -Wshadow -Wstrict-prototypes -Wmissing-prototypes -Wcast-qual
 PKG_CFLAGS := $(shell pkg-config --cflags libmodbus jansson inih sqlite3 libsystemd libmicrohttpd libxcrypt 2>/dev/null)
 PKG_LIBS   := $(shell pkg-config --libs libmodbus jansson inih sqlite3 libsystemd libmicrohttpd libxcrypt 2>/dev/null)
+# The version has one home: the first line of debian/changelog.
+HS_VERSION := $(shell sed -n '1s/^[^(]*(\([^)]*\)).*/\1/p' debian/changelog 2>/dev/null)
+CPPFLAGS += -DHS_VERSION='"$(HS_VERSION)"' -DHS_PLUGIN_DIR='"$(PLUGINDIR)"'
 CPPFLAGS += -D_GNU_SOURCE -Icalc -Iprotocol -Iplugin -Itests/unit/support $(PKG_CFLAGS)
 CFLAGS   += -std=c11 $(OPT) $(WARN) -fPIC $(SANFLAGS) -MMD -MP
 LDFLAGS  += $(SANFLAGS)
@@ -79,7 +82,7 @@ BENCHES := $(patsubst tests/bench/%.c,$(BUILD)/bench/%,$(BENCH_SRC))
 TOOLS   := $(patsubst tests/tools/%.c,$(BUILD)/tools/%,$(TOOL_SRC))
 TPLUGS  := $(patsubst tests/plugins/%.c,$(BUILD)/tests/plugins/%.so,$(TPLUG_SRC))
 
-.PHONY: all libs tests benches check bench demo deps install clean
+.PHONY: all libs tests benches check bench demo deps install install-files deb clean
 .DEFAULT_GOAL := all
 
 all: libs $(PROGS)
@@ -158,29 +161,39 @@ demo: deps
 	$(MAKE) --no-print-directory all SAN=0
 	@bash mk/demo.sh build
 
-# Installs to standard paths (DESTDIR for packaging). A site's existing
+# Installs to standard paths (DESTDIR for packaging). `install-files` only
+# copies files (what the Debian package uses); `install` also creates the
+# service user and the state folder on this machine. A site's existing
 # /etc/halostage/halostage.ini is never overwritten; the annotated reference
-# lands next to it.
-BINDIR    := $(PREFIX)/bin
-PLUGINDIR := $(PREFIX)/lib/halostage
-DOCDIR    := $(PREFIX)/share/doc/halostage
-MANDIR    := $(PREFIX)/share/man
+# lands next to it. The unit is rendered from systemd/halostaged.service.in so
+# that its paths follow PREFIX.
+BINDIR    ?= $(PREFIX)/bin
+SBINDIR   ?= $(PREFIX)/sbin
+PLUGINDIR ?= $(PREFIX)/lib/halostage
+DOCDIR    ?= $(PREFIX)/share/doc/halostage
+MANDIR    ?= $(PREFIX)/share/man
 UNITDIR   ?= /etc/systemd/system
 CONFDIR   ?= /etc/halostage
 STATEDIR  ?= /var/lib/halostage
-install: all
-	install -d $(DESTDIR)$(BINDIR) $(DESTDIR)$(PLUGINDIR) $(DESTDIR)$(DOCDIR) \
-	    $(DESTDIR)$(UNITDIR) $(DESTDIR)$(CONFDIR) \
+
+install-files: all
+	install -d $(DESTDIR)$(BINDIR) $(DESTDIR)$(SBINDIR) $(DESTDIR)$(PLUGINDIR) \
+	    $(DESTDIR)$(DOCDIR) $(DESTDIR)$(UNITDIR) $(DESTDIR)$(CONFDIR) \
 	    $(DESTDIR)$(MANDIR)/man1 $(DESTDIR)$(MANDIR)/man5 $(DESTDIR)$(MANDIR)/man8
 	install -m 0644 plugin/cli/halostage.1 $(DESTDIR)$(MANDIR)/man1/
 	install -m 0644 config/halostage.conf.5 $(DESTDIR)$(MANDIR)/man5/
 	install -m 0644 plugin/host/halostaged.8 $(DESTDIR)$(MANDIR)/man8/
-	install -m 0755 $(BUILD)/halostage $(BUILD)/halostaged $(DESTDIR)$(BINDIR)/
+	install -m 0755 $(BUILD)/halostage $(DESTDIR)$(BINDIR)/
+	install -m 0755 $(BUILD)/halostaged $(DESTDIR)$(SBINDIR)/
 	install -m 0644 $(BUILD)/halostage.so $(DESTDIR)$(PLUGINDIR)/
 	install -m 0644 plugin/halostage_plugin.h README.md $(DESTDIR)$(DOCDIR)/
-	install -m 0644 systemd/halostaged.service $(DESTDIR)$(UNITDIR)/
-	for f in config/*.ini; do [ ! -f "$$f" ] || \
-	    install -m 0640 "$$f" $(DESTDIR)$(CONFDIR)/example-$$(basename "$$f"); done
+	sed -e 's#@SBINDIR@#$(SBINDIR)#g' -e 's#@CONFDIR@#$(CONFDIR)#g' \
+	    systemd/halostaged.service.in >$(DESTDIR)$(UNITDIR)/halostaged.service
+	chmod 0644 $(DESTDIR)$(UNITDIR)/halostaged.service
+	install -m 0640 config/reference.ini $(DESTDIR)$(CONFDIR)/reference.ini
+	install -m 0640 config/demo.ini $(DESTDIR)$(DOCDIR)/example-demo.ini
+
+install: install-files
 	@if [ -z "$(DESTDIR)" ] && [ "$$(id -u)" -eq 0 ]; then \
 	    getent group halostage >/dev/null || groupadd --system halostage; \
 	    getent passwd halostage >/dev/null || useradd --system --gid halostage \
@@ -188,11 +201,17 @@ install: all
 	    install -d -m 0750 -o halostage -g halostage $(STATEDIR); \
 	    chgrp -R halostage $(CONFDIR); \
 	    command -v systemctl >/dev/null && systemctl daemon-reload 2>/dev/null; \
-	    echo "installed; write $(CONFDIR)/halostage.ini (see example-reference.ini), then: systemctl enable --now halostaged"; \
+	    echo "installed; write $(CONFDIR)/halostage.ini (start from $(CONFDIR)/reference.ini), then: systemctl enable --now halostaged"; \
 	else \
 	    install -d $(DESTDIR)$(STATEDIR); \
 	    echo "installed under $(DESTDIR); create the halostage user and chown $(STATEDIR) when deploying"; \
 	fi
+
+# The Debian package, built from a copy of the tree under build/deb (so that
+# dpkg-buildpackage writes its results there, not into the parent folder),
+# then checked with lintian. The version is debian/changelog's.
+deb: deps
+	@bash mk/deb.sh
 
 clean:
 	rm -rf build

@@ -194,13 +194,16 @@ hc_status hc_path_state_from_cf(const hc_path *path, double cf, double t_c, doub
     hc_state_clear(&s);
     st = hc_brine_density(p.molality, t_c, &s.density_kg_m3);
     if (st == HC_OK)
-        st = hc_brine_specific_gravity(p.molality, t_ref_c, &s.specific_gravity);
+        st = hc_brine_density(p.molality, t_ref_c, &s.density_ref_kg_m3);
     if (st != HC_OK)
         return st;
+    /* SG t_ref/t_ref = rho(t_ref) / rho_w(t_ref) (hc_baume.h), as
+     * hc_brine_specific_gravity does [1] */
+    s.specific_gravity = s.density_ref_kg_m3 / hc_water_density_lc(t_ref_c);
     s.temperature_c = t_c;
     s.reference_temperature_c = t_ref_c;
     s.baume_modulus = baume_modulus;
-    /* Heavy-liquid scale: deg Be = m (1 - 1/SG) (DOMAIN sec. 3). */
+    /* Heavy-liquid scale: deg Be = m (1 - 1/SG) (NBS Circular 59, 1916) [deg Be] */
     s.baume = baume_modulus * (1.0 - 1.0 / s.specific_gravity);
     s.salinity_g_kg = p.salinity_g_kg;
     s.concentration_factor = p.concentration_factor;
@@ -213,8 +216,11 @@ hc_status hc_path_state_from_cf(const hc_path *path, double cf, double t_c, doub
     if (s.next_stage != HC_STAGE_NONE) {
         hc_path_point q;
         if (hc_path_point_at_cf(path, path->stage_cf[s.next_stage], &q, NULL) == HC_OK &&
-            hc_brine_density(q.molality, t_c, &s.next_stage_density_kg_m3) != HC_OK)
+            (hc_brine_density(q.molality, t_c, &s.next_stage_density_kg_m3) != HC_OK ||
+             hc_brine_density(q.molality, t_ref_c, &s.next_stage_density_ref_kg_m3) != HC_OK)) {
             s.next_stage_density_kg_m3 = NAN;
+            s.next_stage_density_ref_kg_m3 = NAN;
+        }
     }
     memcpy(s.saturation_index, p.saturation_index, sizeof s.saturation_index);
     for (int m = 0; m < HC_MINERAL_COUNT; m++)
@@ -229,6 +235,33 @@ hc_status hc_path_state_from_cf(const hc_path *path, double cf, double t_c, doub
     return HC_OK;
 }
 
+/* A brine the path cannot place (denser than its end, or lighter than the
+ * feed): s holds the path's end (or first) brine; ratio is the measured
+ * density over that brine's at the same temperature. The measurement is
+ * kept: density and SG scale by ratio (the end brine's thermal expansion
+ * refers it to t_ref), Baume follows from that SG, and what only the path
+ * could say (CF, salinity, saturation, water activity, next stage) becomes
+ * unknown. A NaN ratio (nothing measured: conductivity beyond the model)
+ * leaves density, SG and Baume unknown too. The stage stays the last (or
+ * first) one the path knows. */
+static void keep_measurement(hc_brine_state *s, double ratio)
+{
+    s->density_kg_m3 *= ratio;
+    s->density_ref_kg_m3 *= ratio;
+    s->specific_gravity *= ratio;
+    /* Heavy-liquid scale: deg Be = m (1 - 1/SG) (NBS Circular 59, 1916) [deg Be] */
+    s->baume = s->baume_modulus * (1.0 - 1.0 / s->specific_gravity);
+    s->concentration_factor = NAN;
+    s->salinity_g_kg = NAN;
+    s->practical_salinity = NAN;
+    s->next_stage = HC_STAGE_NONE;
+    s->next_stage_density_kg_m3 = NAN;
+    s->next_stage_density_ref_kg_m3 = NAN;
+    for (int m = 0; m < HC_MINERAL_COUNT; m++)
+        s->saturation_index[m] = NAN;
+    s->water_activity = NAN;
+}
+
 /* Returns HC_OK or an error listed in hc_path.h. */
 hc_status hc_path_state_from_density(const hc_path *path, double rho_kg_m3, double t_c,
                                      double t_ref_c, double baume_modulus, hc_brine_state *out)
@@ -241,8 +274,10 @@ hc_status hc_path_state_from_density(const hc_path *path, double rho_kg_m3, doub
     st = hc_path_state_from_cf(path, cf, t_c, t_ref_c, baume_modulus, out);
     if (st != HC_OK)
         return st;
-    /* Report the density as measured, not as the model rounds it. */
-    if (!(warn & (HC_WARN_BELOW_FEED | HC_WARN_BEYOND_PATH)))
+    /* Report the density as measured, never as the model rounds or clamps it. */
+    if (warn & (HC_WARN_BELOW_FEED | HC_WARN_BEYOND_PATH))
+        keep_measurement(out, rho_kg_m3 / out->density_kg_m3);
+    else
         out->density_kg_m3 = rho_kg_m3;
     out->warnings |= warn;
     out->method = HC_METHOD_DENSITY_INPUT;
@@ -271,9 +306,11 @@ hc_status hc_path_state_from_conductivity(const hc_path *path, double cond_ms_cm
     double cf;
     hc_status st;
     hc_method method;
+    double cal_sg = NAN;
     if (cal != NULL) {
         double sg, rho_ref;
         st = hc_calibration_sg(cal, cond_ms_cm, t_c, &sg, &warn);
+        cal_sg = sg;
         if (st != HC_OK)
             return st;
         rho_ref = sg * hc_water_density_lc(cal->t_ref_c);
@@ -320,6 +357,18 @@ hc_status hc_path_state_from_conductivity(const hc_path *path, double cond_ms_cm
     st = hc_path_state_from_cf(path, cf, t_c, t_ref_c, baume_modulus, out);
     if (st != HC_OK)
         return st;
+    if (warn & (HC_WARN_BELOW_FEED | HC_WARN_BEYOND_PATH)) {
+        /* The calibration's SG is the operators' own measure: kept. The
+         * brine model gives no density past its end: unknown, never the
+         * end brine's. */
+        double ratio = NAN;
+        hc_path_point end;
+        double rho_end;
+        if (cal != NULL && hc_path_point_at_cf(path, cf, &end, NULL) == HC_OK &&
+            hc_brine_density(end.molality, cal->t_ref_c, &rho_end) == HC_OK)
+            ratio = cal_sg * hc_water_density_lc(cal->t_ref_c) / rho_end;
+        keep_measurement(out, ratio);
+    }
     double halite = path->stage_cf[HC_STAGE_HALITE];
     if (isfinite(halite) && cf >= 0.9 * halite)
         warn |= HC_WARN_CONDUCTIVITY_WEAK | HC_WARN_DENSITY_PREFERRED;

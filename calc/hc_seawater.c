@@ -161,6 +161,7 @@ hc_status hc_seawater_state_from_sp(double sp, double t90_c, double p_dbar,
     out->practical_salinity = sp;
     out->salinity_g_kg = sr_from_sp(sp);
     out->density_kg_m3 = rho;
+    out->density_ref_kg_m3 = rho_ref;
     out->temperature_c = t90_c;
     out->specific_gravity = sg;
     out->reference_temperature_c = opt->reference_temperature_c;

@@ -8,6 +8,7 @@ void hc_state_clear(hc_brine_state *state)
     state->practical_salinity = NAN;
     state->salinity_g_kg = NAN;
     state->density_kg_m3 = NAN;
+    state->density_ref_kg_m3 = NAN;
     state->temperature_c = NAN;
     state->specific_gravity = NAN;
     state->reference_temperature_c = NAN;
@@ -17,11 +18,16 @@ void hc_state_clear(hc_brine_state *state)
     state->stage = HC_STAGE_NONE;
     state->next_stage = HC_STAGE_NONE;
     state->next_stage_density_kg_m3 = NAN;
+    state->next_stage_density_ref_kg_m3 = NAN;
     for (int i = 0; i < HC_MINERAL_COUNT; i++)
         state->saturation_index[i] = NAN;
     state->water_activity = NAN;
     state->method = HC_METHOD_NONE;
     state->warnings = 0;
+    state->density_uncertainty_kg_m3 = NAN;
+    state->sg_uncertainty = NAN;
+    state->baume_uncertainty = NAN;
+    state->cf_uncertainty = NAN;
 }
 
 static const char *const stage_names[HC_STAGE_COUNT] = {
@@ -89,6 +95,9 @@ static const struct {
      "a density signal or a hydrometer reading is preferred for this brine"},
     {HC_WARN_CALIBRATION_EXTRAPOLATED, "calibration-extrapolated",
      "outside the span of the site calibration"},
+    {HC_WARN_CF_UNCERTAIN, "cf-uncertain",
+     "past the halite onset density hardly changes with concentration factor; "
+     "the concentration factor is uncertain and no decision uses it"},
 };
 
 const char *hc_warning_name(unsigned bit)

@@ -1,6 +1,6 @@
 /* The brine state of one sample: the contract shared by the calculator CLI,
  * the daemon's pipeline, the store and the MQTT state message. Field names
- * follow the JSON names in shared/DESIGN.md. A value that is not known is NaN
+ * follow the JSON names of hp_state_json.h. A value that is not known is NaN
  * (JSON null). Plain data: no pointers, so states copy by assignment. */
 #ifndef HC_STATE_H
 #define HC_STATE_H
@@ -20,8 +20,8 @@ typedef enum {
     HC_STAGE_NONE = -1 /* no stage known (e.g. no next stage past bischofite) */
 } hc_stage;
 
-/* Where the state's density came from (`method`, DESIGN.md "Where the brine
- * state comes from"). */
+/* Where the state's density came from (`method`; the order of
+ * preference is in plugin/README.md, "Where a pond's density comes from"). */
 typedef enum {
     HC_METHOD_NONE,
     HC_METHOD_PSS78,             /* conductivity + temperature, PSS-78 + EOS-80 */
@@ -45,13 +45,17 @@ enum {
     HC_WARN_HILL_EXTENSION        = 1u << 5, /* PSS-78 below 2, Hill et al. (1986) extension */
     HC_WARN_DENSITY_PREFERRED     = 1u << 6, /* a density source is preferred for this brine */
     HC_WARN_CALIBRATION_EXTRAPOLATED = 1u << 7, /* outside the site calibration's span */
-    HC_WARN_COUNT_BITS            = 8
+    HC_WARN_CF_UNCERTAIN          = 1u << 8, /* past halite onset: density barely moves CF */
+    HC_WARN_COUNT_BITS            = 9
 };
 
 typedef struct {
     double practical_salinity;      /* PSS-78 [1]; NaN outside 2..42 (Hill: 0..2) */
     double salinity_g_kg;           /* dissolved salts per kg of brine [g/kg] */
-    double density_kg_m3;           /* at temperature_c [kg/m3] */
+    double density_kg_m3;           /* in situ, at temperature_c [kg/m3]; reported, never
+                                       decided on */
+    double density_ref_kg_m3;       /* the same brine at reference_temperature_c [kg/m3];
+                                       what every decision compares */
     double temperature_c;           /* ITS-90 [degC] */
     double specific_gravity;        /* rho(t_ref) / rho_water(t_ref) [1] */
     double reference_temperature_c; /* t_ref [degC] */
@@ -61,10 +65,17 @@ typedef struct {
     hc_stage stage;
     hc_stage next_stage;
     double next_stage_density_kg_m3; /* at temperature_c [kg/m3] */
+    double next_stage_density_ref_kg_m3; /* the same at reference_temperature_c [kg/m3] */
     double saturation_index[HC_MINERAL_COUNT]; /* log10(IAP/K); NaN when unknown */
     double water_activity;          /* [1] */
     hc_method method;
     unsigned warnings;              /* HC_WARN_* bits */
+    /* Standard uncertainties (k = 1) propagated through `method`
+     * (hc_uncertainty.h); NaN when not known. */
+    double density_uncertainty_kg_m3; /* of density_kg_m3 [kg/m3] */
+    double sg_uncertainty;            /* of specific_gravity [1] */
+    double baume_uncertainty;         /* of baume [deg Be] */
+    double cf_uncertainty;            /* of concentration_factor [1] */
 } hc_brine_state;
 
 /* Sets every number to NaN, stages to HC_STAGE_NONE, method to none. */

@@ -6,9 +6,10 @@ PKGS="build-essential pkg-config
 libmodbus-dev libpaho-mqtt-dev libsqlite3-dev sqlite3 libcmocka-dev libinih-dev
 libjansson-dev libsystemd-dev libmicrohttpd-dev libcrypt-dev
 mosquitto mosquitto-clients socat openssl valgrind systemd
-python3 python3-gsw python3-numpy
+python3 python3-gsw python3-numpy python3-pymodbus python3-serial-asyncio
 chromium chromium-driver python3-selenium fonts-dejavu-core
-man-db groff-base"
+man-db groff-base
+debhelper dpkg-dev lintian"
 missing=""
 for p in $PKGS; do
     st=$(dpkg-query -W -f='${Status}' "$p" 2>/dev/null || true)

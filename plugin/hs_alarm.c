@@ -218,10 +218,12 @@ static double quantity_value(struct alarm *a, const hs_alarm_input *in, int64_t 
     switch (a->rule.quantity) {
     case HS_QTY_HALITE_SI: return s ? s->saturation_index[HC_MIN_HALITE] : NAN;
     case HS_QTY_GYPSUM_SI: return s ? s->saturation_index[HC_MIN_GYPSUM] : NAN;
-    case HS_QTY_DENSITY: return s ? s->density_kg_m3 : NAN;
+    /* densities referred to the reference temperature: a pond warming in
+     * the afternoon loses in-situ density without changing its brine */
+    case HS_QTY_DENSITY: return s ? s->density_ref_kg_m3 : NAN;
     case HS_QTY_BAUME: return s ? s->baume : NAN;
     case HS_QTY_DEPTH: return in->depth_m;
-    case HS_QTY_DENSITY_FALL: return density_fall(a, s ? s->density_kg_m3 : NAN, now_ms);
+    case HS_QTY_DENSITY_FALL: return density_fall(a, s ? s->density_ref_kg_m3 : NAN, now_ms);
     case HS_QTY_SAMPLE_AGE: return in->sample_age_s;
     case HS_QTY_BUS_DOWN: return in->bus_down < 0 ? NAN : (double)(in->bus_down != 0);
     case HS_QTY_COUNT: break;

@@ -17,7 +17,7 @@ static const char *const state_names[HS_ALARM_STATE_COUNT] = {
 };
 
 const char *const hs_alarm_quantity_names[HS_QTY_COUNT + 1] = {
-    "halite_si", "gypsum_si", "density_kg_m3", "baume",
+    "halite_si", "gypsum_si", "density_ref_kg_m3", "baume",
     "depth_m",   "density_fall_kg_m3", "sample_age_s", "bus_down", NULL,
 };
 #define quantity_names hs_alarm_quantity_names
@@ -109,7 +109,7 @@ void hs_alarm_rule_default(hs_alarm_rule *r, hs_rule_kind kind)
         break;
     case HS_RULE_GYPSUM_IN_FEED:
         /* Crystallisers are fed at about 25.5 to 26 deg Be (common practice,
-         * no source; shared/DOMAIN.md section 11). */
+         * no source). */
         r->quantity = HS_QTY_BAUME;
         r->low = 25.0;
         r->deadband = 0.2;

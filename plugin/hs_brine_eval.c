@@ -9,10 +9,12 @@
 #include "hc_ion.h"
 #include "hc_level.h"
 #include "hc_seawater.h"
+#include "hc_uncertainty.h"
+#include "hs_accuracy.h"
 #include "hs_brine_eval.h"
 #include "hs_log.h"
 
-#define PATH_TEMPERATURE_C 25.0 /* HMW84 is a 25 degC model (DOMAIN.md section 5) */
+#define PATH_TEMPERATURE_C 25.0 /* HMW84 is a 25 degC model (Harvie, Moller & Weare 1984) */
 
 struct model {
     hc_path *path;
@@ -188,6 +190,7 @@ static void enrich_from_path(const hc_path *path, hc_brine_state *s)
     s->stage = p.stage;
     s->next_stage = p.next_stage;
     s->next_stage_density_kg_m3 = p.next_stage_density_kg_m3;
+    s->next_stage_density_ref_kg_m3 = p.next_stage_density_ref_kg_m3;
     memcpy(s->saturation_index, p.saturation_index, sizeof s->saturation_index);
     s->water_activity = p.water_activity;
 }
@@ -252,7 +255,7 @@ static int state_from_conductivity(const hs_site *site, const hc_path *path,
 }
 
 /* Density source 3: an operator's hydrometer reading, SG at t_ref/t_ref.
- * rho(t_ref) = SG rho_w(t_ref) (DOMAIN.md section 3; rho_w by Laliberte &
+ * rho(t_ref) = SG rho_w(t_ref) (heavy-liquid SG; rho_w by Laliberte &
  * Cooper 2004 eq. 8, as hc_path uses), then the path brine of that density
  * evaluated at the pond's temperature. */
 static int state_from_manual(const hs_site *site, const hc_path *path, const hs_pond_aids *a,
@@ -296,7 +299,7 @@ static void depth_of(const hs_site *site, size_t pond, const hs_reading *reading
     v->depth_quality = HS_QUALITY_BAD;
     if (usable(lp)) {
         /* the pond's own brine, not water: a 1.25 brine read as water
-         * overstates depth by 25 % (DOMAIN.md section 10) */
+         * overstates depth by 25 % (hydrostatics) */
         double rho = v->have_state ? v->state.density_kg_m3 : NAN;
         hs_quality q = lp->quality;
         if (!isfinite(rho)) {
@@ -318,6 +321,127 @@ static void depth_of(const hs_site *site, size_t pond, const hs_reading *reading
     } else if (lp != NULL || ld != NULL) {
         const hs_reading *r = lp != NULL ? lp : ld;
         v->depth_quality = r->have ? r->quality : HS_QUALITY_BAD;
+    }
+}
+
+/* ---- uncertainty: the chosen source as a function of its inputs ---- */
+
+typedef enum { SRC_DENSITY, SRC_HYDROSTATIC, SRC_CONDUCTIVITY, SRC_MANUAL } source_kind;
+
+/* Inputs x[] per source (hc_unc_propagate perturbs each by its u):
+ *   density       rho [kg/m3], t [degC]
+ *   hydrostatic   p_lower [Pa], p_upper [Pa], dz [m], t [degC]
+ *   conductivity  kappa [mS/cm], t [degC], brine model offset [1],
+ *                 calibration SG offset [1]
+ *   manual        SG [1], t [degC] */
+struct source_method {
+    source_kind kind;
+    hc_method method;
+    const hs_site *site;
+    const hc_path *path;
+    const hc_calibration *cal;
+    const hs_pond_aids *aids;
+    double g_m_s2;
+};
+
+static hc_status source_state(const double *x, const void *ctx, double *y)
+{
+    const struct source_method *m = ctx;
+    hc_brine_state s;
+    hc_state_clear(&s);
+    int rc = -1;
+    switch (m->kind) {
+    case SRC_DENSITY:
+        rc = state_from_density(m->site, m->path, x[0], x[1], m->method, &s);
+        break;
+    case SRC_HYDROSTATIC: {
+        double rho;
+        rc = hc_density_from_pressure_pair(x[0], x[1], x[2], m->g_m_s2, &rho) == HC_OK
+                 ? state_from_density(m->site, m->path, rho, x[3], m->method, &s)
+                 : -1;
+        break;
+    }
+    case SRC_CONDUCTIVITY: {
+        char note[8];
+        double kappa = x[0] * (1.0 + x[2]);
+        if (m->cal != NULL && x[3] != 0.0) {
+            hc_calibration shifted = *m->cal; /* the fit moved by its residual */
+            for (size_t k = 0; k < shifted.knots; k++)
+                shifted.sg[k] += x[3];
+            rc = state_from_conductivity(m->site, m->path, &shifted, kappa, x[1], &s, note,
+                                         sizeof note);
+        } else {
+            rc = state_from_conductivity(m->site, m->path, m->cal, kappa, x[1], &s, note,
+                                         sizeof note);
+        }
+        break;
+    }
+    case SRC_MANUAL: {
+        hs_pond_aids a = *m->aids;
+        a.manual_sg = x[0];
+        rc = state_from_manual(m->site, m->path, &a, x[1], &s);
+        break;
+    }
+    }
+    if (rc != 0)
+        return HC_ERR_DOMAIN;
+    hc_unc_outputs(&s, y);
+    return HC_OK;
+}
+
+/* Fills the state's uncertainty fields through the method that made it. */
+static void add_uncertainty(const struct source_method *m, const double *x, const double *u,
+                            size_t n, hc_brine_state *s)
+{
+    double u_y[HC_UNC_OUTPUTS];
+    if (hc_unc_propagate(source_state, m, x, u, n, u_y) == HC_OK)
+        hc_unc_store(u_y, s);
+}
+
+static double u_signal(const hs_site *site, size_t pond, hs_quantity q, double value)
+{
+    const hs_signal *sig = hs_site_signal(site, (int)pond, q);
+    return sig != NULL ? hc_unc_from_accuracy(hs_signal_accuracy(sig, value)) : 0.0;
+}
+
+static void uncertainty_of(const hs_site *site, size_t pond, const struct source_method *m,
+                           const hs_reading *temp, const hs_reading *dens,
+                           const hs_reading *lower, const hs_reading *upper,
+                           const hs_reading *cond, hc_brine_state *s)
+{
+    double t = temp->value;
+    double u_t = u_signal(site, pond, HS_Q_TEMPERATURE, t);
+    switch (m->kind) {
+    case SRC_DENSITY: {
+        double x[2] = {dens->value, t};
+        double u[2] = {u_signal(site, pond, HS_Q_DENSITY, dens->value), u_t};
+        add_uncertainty(m, x, u, 2, s);
+        break;
+    }
+    case SRC_HYDROSTATIC: {
+        double x[4] = {lower->value, upper->value, site->ponds[pond].pressure_spacing_m, t};
+        double u[4] = {u_signal(site, pond, HS_Q_LEVEL_PRESSURE, lower->value),
+                       u_signal(site, pond, HS_Q_PRESSURE_UPPER, upper->value),
+                       hc_unc_from_accuracy(HS_SPACING_ACCURACY_M), u_t};
+        add_uncertainty(m, x, u, 4, s);
+        break;
+    }
+    case SRC_CONDUCTIVITY: {
+        double x[4] = {cond->value, t, 0.0, 0.0};
+        double u[4] = {u_signal(site, pond, HS_Q_CONDUCTIVITY, cond->value), u_t,
+                       s->method == HC_METHOD_BRINE_CONDUCTIVITY ? HC_UNC_BRINE_MODEL_REL : 0.0,
+                       s->method == HC_METHOD_SITE_CALIBRATION && m->cal != NULL
+                           ? m->cal->rms_residual
+                           : 0.0};
+        add_uncertainty(m, x, u, 4, s);
+        break;
+    }
+    case SRC_MANUAL: {
+        double x[2] = {m->aids->manual_sg, t};
+        double u[2] = {hc_unc_from_resolution(HS_HYDROMETER_RESOLUTION_SG), u_t};
+        add_uncertainty(m, x, u, 2, s);
+        break;
+    }
     }
 }
 
@@ -345,9 +469,13 @@ void hs_pond_evaluate(const hs_site *site, size_t pond, const hs_reading *readin
     }
     take(v, temp, now_ms);
     double t_c = temp->value;
+    struct source_method m = {.site = site, .path = path, .cal = cal, .aids = aids,
+                              .g_m_s2 = g_m_s2};
     if (usable(dens) && state_from_density(site, path, dens->value, t_c,
                                            HC_METHOD_DENSITOMETER, &v->state) == 0) {
         take(v, dens, now_ms);
+        m.kind = SRC_DENSITY;
+        m.method = HC_METHOD_DENSITOMETER;
     } else if (usable(lower) && usable(upper) && isfinite(p->pressure_spacing_m)) {
         double rho;
         if (hc_density_from_pressure_pair(lower->value, upper->value, p->pressure_spacing_m,
@@ -358,25 +486,32 @@ void hs_pond_evaluate(const hs_site *site, size_t pond, const hs_reading *readin
         }
         take(v, lower, now_ms);
         take(v, upper, now_ms);
+        m.kind = SRC_HYDROSTATIC;
+        m.method = HC_METHOD_HYDROSTATIC;
     } else if (usable(cond) && state_from_conductivity(site, path, cal, cond->value, t_c,
                                                        &v->state, v->note, sizeof v->note) == 0) {
         /* Conductivity says little near and past halite saturation
-         * (DOMAIN.md section 9): a recent hydrometer reading knows better. */
-        hc_brine_state m;
+         * (CRC Handbook: NaCl and MgCl2 conductivity flatten and fall): a recent hydrometer reading knows better. */
+        hc_brine_state man;
         if ((v->state.warnings & HC_WARN_CONDUCTIVITY_WEAK) && manual_ok &&
-            state_from_manual(site, path, aids, t_c, &m) == 0) {
-            m.warnings |= HC_WARN_CONDUCTIVITY_WEAK;
-            v->state = m;
+            state_from_manual(site, path, aids, t_c, &man) == 0) {
+            man.warnings |= HC_WARN_CONDUCTIVITY_WEAK;
+            v->state = man;
+            m.kind = SRC_MANUAL;
         } else {
             take(v, cond, now_ms);
+            m.kind = SRC_CONDUCTIVITY;
         }
     } else if (manual_ok && state_from_manual(site, path, aids, t_c, &v->state) == 0) {
         v->note[0] = '\0';
+        m.kind = SRC_MANUAL;
     } else {
         if (v->note[0] == '\0')
             snprintf(v->note, sizeof v->note, "no usable density or conductivity");
         goto no_state;
     }
+    m.method = v->state.method;
+    uncertainty_of(site, pond, &m, temp, dens, lower, upper, cond, &v->state);
     v->have_state = 1;
     depth_of(site, pond, readings, g_m_s2, v);
     return;

@@ -1,5 +1,5 @@
 /* From a pond's latest signals to its brine state and depth, with the best
- * density source the pond has (shared/DESIGN.md "Where the brine state
+ * density source the pond has (plugin/README.md "Where a pond's density
  * comes from"):
  *   1. a density signal: inline densitometer, or the hydrostatic pair
  *      rho = dP / (g dz);

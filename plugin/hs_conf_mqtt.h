@@ -1,4 +1,4 @@
-/* [mqtt]: where the gateway publishes (shared/DESIGN.md topic tree). The
+/* [mqtt]: where the gateway publishes (the topic tree in halostage.conf(5)). The
  * section is optional: without it publishing is off and everything else
  * runs. plugin/hs_conf_mqtt.c reads it into site->mqtt (NULL when absent). */
 #ifndef HS_CONF_MQTT_H

@@ -6,6 +6,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "hs_accuracy.h"
 #include "hs_conf_keys.h"
 
 typedef hs_signal G;
@@ -51,6 +52,9 @@ static const hs_key signal_keys[] = {
      .size = HP_SENTINEL_MAX, .count_offset = offsetof(G, point.n_sentinels),
      .flags = HS_KEY_RELOADABLE,
      .help = "raw values the device sends for 'no reading', e.g. -32768, 65535"},
+    KEY_STR("accuracy", G, accuracy, HS_NO_DEFAULT, HS_KEY_RELOADABLE,
+            "the instrument's +-limit: N in the signal's unit, or N% of the reading; "
+            "default from the quantity's usual instrument class (hs_accuracy.h)"),
     KEY_DUR("poll_interval", G, point.interval_ms, 100, 86400 * SEC_MS, HS_NO_DEFAULT,
             HS_KEY_RELOADABLE, "default: the bus's poll_interval"),
     {NULL},
@@ -141,6 +145,14 @@ static void signal_finish(hs_site *site, hs_cfg *cfg, size_t index)
             g->si_factor = u->factor;
             g->si_offset = u->offset;
         }
+    }
+    if (g->accuracy[0]) {
+        char why[160];
+        if (hs_accuracy_parse(g->accuracy, g->si_factor != 0.0 ? g->si_factor : 1.0,
+                              &g->accuracy_abs_si, &g->accuracy_rel, why, sizeof why) != 0)
+            hs_cfg_error(cfg, where(cfg, index, "accuracy"), "accuracy: %s", why);
+        else
+            g->accuracy_set = 1;
     }
     if (g->point.valid_min >= g->point.valid_max)
         hs_cfg_error(cfg, where(cfg, index, "valid_max"),

@@ -22,6 +22,12 @@ static const hs_key site_keys[] = {
     KEY_NAME("feed", S, feed, 0, "default [feed NAME] of every pond; none = reference seawater"),
     KEY_DUR("stale_after", S, stale_after_ms, 1 * SEC_MS, 86400 * SEC_MS, "60s",
             HS_KEY_RELOADABLE, "a value not read good for this long becomes stale"),
+    KEY_DUR("raw_retention", S, raw_retention_ms, 86400 * SEC_MS, 3650.0 * 86400 * SEC_MS, "30d",
+            HS_KEY_RELOADABLE, "raw samples and pond states older than this are deleted"),
+    KEY_DUR("minute_retention", S, minute_retention_ms, 86400 * SEC_MS, 3650.0 * 86400 * SEC_MS,
+            "400d", HS_KEY_RELOADABLE, "1-minute rollups older than this are deleted"),
+    KEY_DUR("hour_retention", S, hour_retention_ms, 86400 * SEC_MS, 36500.0 * 86400 * SEC_MS,
+            "3650d", HS_KEY_RELOADABLE, "1-hour rollups older than this are deleted"),
     {NULL},
 };
 
@@ -53,6 +59,17 @@ static bool name_ok(const char *s)
 
 static void site_finish(hs_site *site, hs_cfg *cfg, size_t index)
 {
+    /* Rollups are what remains of the raw history once it is deleted: a
+     * coarser series kept shorter than a finer one would leave a hole. */
+    const hs_site_conf *s = &site->site;
+    if (s->minute_retention_ms < s->raw_retention_ms)
+        hs_cfg_error(cfg, hs_cfg_where(cfg, &hs_section_site, index, "minute_retention"),
+                     "minute_retention: shorter than raw_retention; 1-minute rollups must be "
+                     "kept at least as long as the raw samples");
+    if (s->hour_retention_ms < s->minute_retention_ms)
+        hs_cfg_error(cfg, hs_cfg_where(cfg, &hs_section_site, index, "hour_retention"),
+                     "hour_retention: shorter than minute_retention; 1-hour rollups must be "
+                     "kept at least as long as the 1-minute rollups");
     /* The name becomes an MQTT topic level: no '/', '+', '#' or blanks. */
     if (site->site.name[0] && !name_ok(site->site.name))
         hs_cfg_error(cfg, hs_cfg_where(cfg, &hs_section_site, index, "name"),

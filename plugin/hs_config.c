@@ -10,6 +10,7 @@
  * multi-line value. */
 #include <errno.h>
 #include <ini.h>
+#include <math.h>
 #include <stdarg.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -33,6 +34,17 @@ typedef struct {
     int line;
 } set_rec;
 
+/* A reference density written as SG or degree Baume, converted once [site]
+ * (reference temperature, modulus) is known. */
+typedef struct {
+    const hs_key *key;
+    const hs_section_type *type;
+    int index;
+    int line;
+    double value;
+    hs_dref_scale scale;
+} dref_rec;
+
 struct hs_cfg {
     const char *path;
     hs_site *site;
@@ -43,6 +55,7 @@ struct hs_cfg {
     size_t pos, size;
     obj_rec *objs; size_t n_objs;
     set_rec *sets; size_t n_sets;
+    dref_rec *drefs; size_t n_drefs;
     int cur;                      /* current object record, -1 = none */
     bool in_bad_section;          /* keys of a rejected section are skipped */
     bool oom;
@@ -272,6 +285,30 @@ static int store_value(hs_cfg *cfg, const hs_key *key, void *obj, const char *te
     }
     case HS_KT_DOUBLE: {
         double v;
+        if (key->unit == &hs_unit_density_ref) {
+            hs_dref_scale scale;
+            if (hs_parse_density_ref(text, &v, &scale, msg, len) != 0)
+                return -1;
+            if (scale != HS_DREF_KG_M3) {
+                if (cfg->cur < 0) {
+                    snprintf(msg, len, "internal: SG or Be outside a section");
+                    return -1;
+                }
+                int r = hs_cfg_grow((void **)&cfg->drefs, &cfg->n_drefs, sizeof cfg->drefs[0]);
+                if (r < 0) {
+                    cfg->oom = true;
+                    return 0;
+                }
+                cfg->drefs[r] = (dref_rec){key, cfg->objs[cfg->cur].type,
+                                           cfg->objs[cfg->cur].index, cfg->line, v, scale};
+                *(double *)(void *)field = NAN; /* until [site] is known */
+                break;
+            }
+            if (check_bounds(key, v, msg, len))
+                return -1;
+            *(double *)(void *)field = v;
+            break;
+        }
         int rc = key->unit ? hs_parse_quantity(text, key->unit, &v, msg, len)
                            : hs_parse_double(text, &v, msg, len);
         if (rc || check_bounds(key, v, msg, len))
@@ -593,9 +630,31 @@ static int read_file(hs_cfg *cfg)
     return 0;
 }
 
+/* SG and degree Baume values, now that [site] is read. */
+static void convert_drefs(hs_cfg *cfg)
+{
+    char msg[200];
+    const hs_site_conf *site = &cfg->site->site;
+    for (size_t i = 0; i < cfg->n_drefs; i++) {
+        const dref_rec *d = &cfg->drefs[i];
+        double v;
+        if (hs_density_ref_to_kg_m3(d->value, d->scale, site->reference_temperature_c,
+                                    site->baume_modulus, &v, msg, sizeof msg) != 0 ||
+            !isfinite(v) || check_bounds(d->key, v, msg, sizeof msg) != 0) {
+            if (!isfinite(v))
+                snprintf(msg, sizeof msg, "no reference temperature to convert it with");
+            hs_cfg_error(cfg, d->line, "%s: %s", d->key->name, msg);
+            continue;
+        }
+        void *obj = d->type->at(cfg->site, (size_t)d->index);
+        *(double *)(void *)((char *)obj + d->key->offset) = v;
+    }
+}
+
 static void final_passes(hs_cfg *cfg)
 {
     char label[120];
+    convert_drefs(cfg);
     for (size_t i = 0; i < cfg->n_objs; i++) {
         const obj_rec *o = &cfg->objs[i];
         for (const hs_key *k = o->type->keys; k->name; k++) {
@@ -668,6 +727,7 @@ int hs_site_load(const char *path, hs_site *site, hs_diag *diag)
     free(cfg.text);
     free(cfg.objs);
     free(cfg.sets);
+    free(cfg.drefs);
     if (cfg.errors > 0) {
         hs_site_free(site);
         return -1;

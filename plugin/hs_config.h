@@ -43,6 +43,17 @@ typedef struct {
 int hs_site_load(const char *path, hs_site *site, hs_diag *diag);
 void hs_site_free(hs_site *site);
 
+/* Scale of a reference-density value as written. */
+typedef enum { HS_DREF_KG_M3, HS_DREF_SG, HS_DREF_BAUME } hs_dref_scale;
+/* Parses a hs_unit_density_ref value: *v in kg/m3 for HS_DREF_KG_M3, else
+ * the SG or degree Baume as written. 0, or -1 with a reason. */
+int hs_parse_density_ref(const char *text, double *v, hs_dref_scale *scale, char *msg,
+                         size_t len);
+/* SG or degree Baume -> kg/m3 at t_ref: rho = SG rho_w(t_ref), SG = m / (m -
+ * Be). 0, or -1 with a reason. */
+int hs_density_ref_to_kg_m3(double v, hs_dref_scale scale, double t_ref_c, double modulus,
+                            double *kg_m3, char *msg, size_t len);
+
 /* ---- For section types (plugin/hs_conf_*.c) ---- */
 
 typedef struct hs_cfg hs_cfg; /* the reader's state during one load */
@@ -63,6 +74,12 @@ typedef struct {
     bool bare_ok;
 } hs_unit_kind;
 
+/* hs_unit_density_ref: a density at the site's reference temperature, the
+ * way brine masters write bands and triggers: kg/m3 (g/cm3, g/mL), SG
+ * ("1.210 SG", t_ref/t_ref) or degree Baume ("25.5 Be", the site's
+ * baume_modulus). SG and Be are converted to kg/m3 once [site] is known;
+ * a bare number is refused as ambiguous. */
+extern const hs_unit_kind hs_unit_density_ref;
 extern const hs_unit_kind hs_unit_length, hs_unit_area, hs_unit_density,
     hs_unit_temperature, hs_unit_angle, hs_unit_pressure, hs_unit_conductivity,
     hs_unit_rain, hs_unit_state;

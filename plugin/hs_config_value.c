@@ -8,6 +8,8 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "hc_baume.h"
+#include "hc_brine_density.h"
 #include "hs_config.h"
 
 /* Conversions to SI. Exact by definition unless noted. */
@@ -18,7 +20,7 @@ static const hs_unit area_units[] = {
 static const hs_unit density_units[] = {
     {"kg/m3", 1.0, 0.0}, {"g/cm3", 1000.0, 0.0}, {"g/mL", 1000.0, 0.0},
     {"g/L", 1.0, 0.0}, {NULL, 0, 0}};
-/* Temperatures are degC on ITS-90 throughout (DESIGN.md). */
+/* Temperatures are degC on ITS-90 throughout. */
 static const hs_unit temperature_units[] = {
     {"C", 1.0, 0.0}, {"degC", 1.0, 0.0}, {NULL, 0, 0}};
 static const hs_unit angle_units[] = {{"deg", 1.0, 0.0}, {NULL, 0, 0}};
@@ -40,6 +42,8 @@ static const hs_unit state_units[] = {{"state", 1.0, 0.0}, {NULL, 0, 0}};
 const hs_unit_kind hs_unit_length = {"length", length_units, false};
 const hs_unit_kind hs_unit_area = {"area", area_units, false};
 const hs_unit_kind hs_unit_density = {"density", density_units, false};
+const hs_unit_kind hs_unit_density_ref = {"density at the reference temperature",
+                                          density_units, false};
 const hs_unit_kind hs_unit_temperature = {"temperature", temperature_units, false};
 const hs_unit_kind hs_unit_angle = {"angle", angle_units, true};
 const hs_unit_kind hs_unit_pressure = {"pressure", pressure_units, false};
@@ -210,4 +214,74 @@ int hs_parse_bool(const char *text, bool *out, char *msg, size_t len)
     }
     snprintf(msg, len, "'%s' is not yes or no", text);
     return -1;
+}
+
+/* The trade's spellings of the two scales without a unit of density. */
+static hs_dref_scale dref_scale_of(const char *unit, int *known)
+{
+    static const char *const sg[] = {"SG", "sg"};
+    static const char *const be[] = {"Be", "degBe", "\xc2\xb0" "Be", "B\xc3\xa9",
+                                     "\xc2\xb0" "B\xc3\xa9", "deg Be"};
+    *known = 1;
+    for (size_t i = 0; i < sizeof sg / sizeof sg[0]; i++)
+        if (strcmp(unit, sg[i]) == 0)
+            return HS_DREF_SG;
+    for (size_t i = 0; i < sizeof be / sizeof be[0]; i++)
+        if (strcmp(unit, be[i]) == 0)
+            return HS_DREF_BAUME;
+    *known = 0;
+    return HS_DREF_KG_M3;
+}
+
+/* 0, or -1 with a reason. */
+int hs_parse_density_ref(const char *text, double *v, hs_dref_scale *scale, char *msg,
+                         size_t len)
+{
+    double x;
+    const char *unit;
+    if (split_number(text, &x, &unit, msg, len) != 0)
+        return -1;
+    if (*unit == '\0') {
+        snprintf(msg, len, "'%s' is ambiguous: a density at the reference temperature needs "
+                 "its scale, e.g. 1.210 SG, 25.5 Be or 1210 kg/m3", text);
+        return -1;
+    }
+    int known;
+    *scale = dref_scale_of(unit, &known);
+    if (known) {
+        *v = x;
+        return 0;
+    }
+    const hs_unit *u = hs_unit_find(&hs_unit_density_ref, unit);
+    if (u == NULL) {
+        snprintf(msg, len, "unknown unit '%s' for a density at the reference temperature "
+                 "(use kg/m3, g/cm3, g/mL, g/L, SG or Be)", unit);
+        return -1;
+    }
+    *v = x * u->factor + u->offset;
+    return 0;
+}
+
+/* 0, or -1 with a reason. */
+int hs_density_ref_to_kg_m3(double v, hs_dref_scale scale, double t_ref_c, double modulus,
+                            double *kg_m3, char *msg, size_t len)
+{
+    double sg = v;
+    if (scale == HS_DREF_KG_M3) {
+        *kg_m3 = v;
+        return 0;
+    }
+    if (scale == HS_DREF_BAUME && hc_sg_from_baume(v, modulus, &sg) != HC_OK) {
+        snprintf(msg, len, "%g Be is not on the heavy-liquid scale of modulus %g "
+                 "(0 <= Be < modulus)", v, modulus);
+        return -1;
+    }
+    if (!(sg >= 0.9 && sg <= 1.6)) {
+        snprintf(msg, len, "SG %g is not a brine's specific gravity (0.9 to 1.6)", sg);
+        return -1;
+    }
+    /* rho(t_ref) = SG rho_w(t_ref), rho_w by Laliberte & Cooper 2004 eq. 8
+     * as the brine states use [kg/m3] */
+    *kg_m3 = sg * hc_water_density_lc(t_ref_c);
+    return 0;
 }

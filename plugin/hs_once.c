@@ -14,11 +14,12 @@
 
 #include "hp_bus.h"
 #include "hp_queue.h"
-#include "hp_state_json.h"
 #include "hs_commission.h"
 #include "hs_config.h"
 #include "hc_level.h"
 #include "hs_brine_eval.h"
+#include "hs_pond_doc.h"
+#include "hs_pond_shape.h"
 
 typedef struct {
     bool seen;
@@ -174,6 +175,22 @@ static const char *level_problem(const hs_site *site, size_t p, const hs_pond_vi
     return "no usable level reading, or the sensor is out of the brine";
 }
 
+/* Volume and surface area at the level read, from the pond's geometry
+ * (the same as the daemon's); left unknown without one. */
+static void level_volume(const hs_pond *pd, double depth_m, struct hs_hydro_report *r)
+{
+    struct hs_stage_table table;
+    int loaded = 0;
+    hc_pond_shape shape;
+    char err[600];
+    memset(&table, 0, sizeof table);
+    if (isfinite(depth_m) && hs_pond_shape_of(pd, &table, &loaded, &shape, err, sizeof err) == 0 &&
+        hc_shape_at_level(&shape, depth_m, &r->volume_m3, &r->area_m2) != HC_OK)
+        r->volume_m3 = r->area_m2 = NAN;
+    if (loaded)
+        hs_stage_table_free(&table);
+}
+
 static void print_ponds(const hs_site *site, const latest *got, const hs_brine_models *models,
                         bool json)
 {
@@ -213,23 +230,30 @@ static void print_ponds(const hs_site *site, const latest *got, const hs_brine_m
             printf("\n");
             continue;
         }
-        json_t *o = hp_state_to_json(&res.state);
+        struct hs_pond_doc d;
+        hs_pond_doc_init(&d);
+        d.pond = pd->name;
+        d.role = hs_role_name(pd->role);
+        d.t_ms = res.t_ms;
+        d.quality = res.quality;
+        d.level_quality = isfinite(res.depth_m) ? (int)res.depth_quality : -1;
+        d.state = res.state;
+        d.hydro.depth_m = res.depth_m;
+        level_volume(pd, res.depth_m, &d.hydro);
+        d.note = problem;
+        d.level_note = lproblem;
+        json_t *o = hs_pond_doc_json(&d);
         if (!o) {
             fprintf(stderr, "halostaged: out of memory\n");
             break;
         }
-        json_object_set_new(o, "pond", json_string(pd->name));
-        json_object_set_new(o, "role", json_string(hs_role_name(pd->role)));
-        json_object_set_new(o, "depth_m", isfinite(res.depth_m) ? json_real(res.depth_m) : json_null());
-        json_object_set_new(o, "problem", problem ? json_string(problem) : json_null());
-        json_object_set_new(o, "level_problem", lproblem ? json_string(lproblem) : json_null());
         json_t *sigs = json_object();
         for (size_t s = 0; s < site->n_signals; s++)
             if (site->signals[s].pond_index == (int)p)
                 json_object_set_new(sigs, hs_quantity_name(site->signals[s].quantity),
                                     signal_json(&site->signals[s], &got[s]));
         json_object_set_new(o, "signals", sigs);
-        char *line = json_dumps(o, JSON_COMPACT | JSON_PRESERVE_ORDER);
+        char *line = hs_doc_dumps(o);
         if (line) {
             printf("%s\n", line);
             free(line);

@@ -6,7 +6,7 @@
 #include <string.h>
 #include <time.h>
 
-#include "hp_state_json.h"
+#include "hs_pond_doc.h"
 #include "hs_publish.h"
 
 int hs_topic_level_ok(const char *name)
@@ -61,30 +61,6 @@ void hs_iso8601_ms(char *buf, size_t len, int64_t t_ms)
 /* A number, or JSON null when it is not known. */
 static json_t *num(double v) { return isfinite(v) ? json_real(v) : json_null(); }
 
-json_t *hs_state_payload(const char *pond, int64_t t_ms, const hc_brine_state *s,
-                         const hs_pond_extra *x, hs_quality quality)
-{
-    char when[40];
-    hs_iso8601_ms(when, sizeof when, t_ms);
-    json_t *o = hp_state_to_json(s); /* the same fields as `halostage calc --json` */
-    if (o == NULL)
-        return NULL;
-    json_object_set_new(o, "pond", json_string(pond));
-    json_object_set_new(o, "time", json_string(when));
-    json_object_set_new(o, "quality", json_string(hs_quality_name(quality)));
-    if (x != NULL) {
-        json_object_set_new(o, "depth_m", num(x->depth_m));
-        json_object_set_new(o, "volume_m3", num(x->volume_m3));
-        json_object_set_new(o, "dissolved_salt_t", num(x->dissolved_salt_t));
-        json_object_set_new(o, "deposited_salt_t", num(x->deposited_salt_t));
-        json_object_set_new(o, "net_evaporation_mm_day", num(x->net_evaporation_mm_day));
-        json_object_set_new(o, "days_to_target_low", num(x->days_to_target_low));
-        json_object_set_new(o, "days_to_target_high", num(x->days_to_target_high));
-        json_object_set_new(o, "days_to_next_stage", num(x->days_to_next_stage));
-    }
-    return o;
-}
-
 json_t *hs_alarm_payload(const hs_alarm_event *ev)
 {
     char when[40], until[40];
@@ -133,24 +109,12 @@ char *hs_gateway_payload(const hs_topics *t, int online)
 int hs_enqueue_json(hs_store *st, hs_msg_kind kind, const char *topic, json_t *payload,
                     int retained)
 {
-    char *text = payload ? json_dumps(payload, JSON_COMPACT | JSON_REAL_PRECISION(10)) : NULL;
+    char *text = payload ? hs_doc_dumps(payload) : NULL;
     if (text == NULL)
         return -1;
     int rc = hs_store_outbox_put(st, kind, topic, text, strlen(text), 1, retained);
     free(text);
     return rc < 0 ? -1 : 0;
-}
-
-int hs_enqueue_state(hs_store *st, const hs_topics *t, const char *pond, int64_t t_ms,
-                     const hc_brine_state *s, const hs_pond_extra *extra, hs_quality quality)
-{
-    char topic[HS_TOPIC_MAX];
-    if (hs_topic(topic, sizeof topic, t, "pond", pond, "state") != 0)
-        return -1;
-    json_t *o = hs_state_payload(pond, t_ms, s, extra, quality);
-    int rc = hs_enqueue_json(st, HS_MSG_STATE, topic, o, 1);
-    json_decref(o);
-    return rc;
 }
 
 void hs_alarm_sink_emit(void *ctx, const hs_alarm_event *ev)

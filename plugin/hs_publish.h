@@ -1,9 +1,9 @@
 /* Publishing: what goes into the MQTT outbox (topics and JSON payloads per
- * shared/DESIGN.md) and the pump that moves outbox rows to the broker.
+ * README.md) and the pump that moves outbox rows to the broker.
  *
  * Topics (prefix "halostage" unless configured):
  *   <prefix>/<site>/gateway              retained {"online": bool, ...}; the will sets false
- *   <prefix>/<site>/pond/<pond>/state    retained brine state + level, volume, quality
+ *   <prefix>/<site>/pond/<pond>/state    retained pond-state document (hs_pond_doc.h)
  *   <prefix>/<site>/alarm/<pond>/<rule>  QoS 1 alarm transitions with event_id
  *   <prefix>/<site>/transfer/<name>      retained current advice with reasons
  *   <prefix>/<site>/command/<verb>       inbound (see hs_command.h)
@@ -50,18 +50,13 @@ int hs_topic_commands(char *buf, size_t len, const hs_topics *t);
 /* "2026-01-01T00:00:00.000Z" into buf (at least 32 bytes). */
 void hs_iso8601_ms(char *buf, size_t len, int64_t t_ms);
 
-/* JSON of a brine state with the DESIGN.md field names, plus the pond's
- * level and balance, quality and time. New reference; caller decrefs. */
-json_t *hs_state_payload(const char *pond, int64_t t_ms, const hc_brine_state *s,
-                         const hs_pond_extra *extra, hs_quality quality);
 /* JSON of an alarm transition. New reference. */
 json_t *hs_alarm_payload(const hs_alarm_event *ev);
 
-/* Queue helpers: serialize and put one message in the outbox. */
+/* Serialises payload (hs_doc_dumps) and puts it in the outbox. The pond
+ * state payload is the pond-state document (hs_pond_doc.h). */
 int hs_enqueue_json(hs_store *st, hs_msg_kind kind, const char *topic, json_t *payload,
                     int retained);
-int hs_enqueue_state(hs_store *st, const hs_topics *t, const char *pond, int64_t t_ms,
-                     const hc_brine_state *s, const hs_pond_extra *extra, hs_quality quality);
 
 /* An hs_alarm_emit_fn context that journals every transition and queues its
  * MQTT message in the same batch (so both or neither survive a crash). */

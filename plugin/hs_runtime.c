@@ -159,7 +159,12 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
         return rc;
     }
     char err[512] = "";
-    rt->store = hs_store_open(rt->site.site.database, HS_STORE_WRITE, NULL, err, sizeof err);
+    hs_store_options opt;
+    hs_store_options_default(&opt);
+    opt.raw_retention_ms = rt->site.site.raw_retention_ms;
+    opt.minute_retention_ms = rt->site.site.minute_retention_ms;
+    opt.hour_retention_ms = rt->site.site.hour_retention_ms;
+    rt->store = hs_store_open(rt->site.site.database, HS_STORE_WRITE, &opt, err, sizeof err);
     if (rt->store == NULL) {
         hs_log(HSP_LOG_ERR, "%s", err);
         hs_brine_models_free(models);
@@ -170,7 +175,7 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
     rt->started_ms = hs_rt_wall_ms();
     rt->queue = hp_queue_new(HS_RT_QUEUE_CAPACITY);
     if (rt->queue == NULL || alarms_open(rt) != 0 || hs_rt_mqtt_open(rt) != 0 ||
-        site_parts_open(rt, models) != 0) {
+        site_parts_open(rt, models) != 0 || hs_rt_scada_open(rt) != 0) {
         hs_log(HSP_LOG_ERR, "cannot start the pipeline of %s", config_path);
         if (rt->models == NULL)
             hs_brine_models_free(models);
@@ -262,6 +267,7 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
             hs_rt_transfers_run(rt, mono, now);
         rt->next_eval_ms = mono + EVAL_EVERY_MS;
         rt->cycles++;
+        hs_rt_scada_beat(rt, now);
     }
     if (hs_web_take_command_hint(rt->web))
         rt->next_command_ms = mono; /* the page waits for its answer */
@@ -316,9 +322,12 @@ int hs_runtime_reload(hs_runtime *rt, const char *config_path)
     for (size_t i = 0; old_names != NULL && i < n_old; i++)
         memcpy(old_names[i], rt->site.transfers[i].name, HS_NAME_MAX);
     rt->transfers = NULL;
+    hs_rt_scada_close(rt); /* its map has the old site's shape */
     site_parts_free(rt);
     hs_site_free(&rt->site);
     rt->site = fresh;
+    hs_store_set_retention(rt->store, rt->site.site.raw_retention_ms,
+                           rt->site.site.minute_retention_ms, rt->site.site.hour_retention_ms);
     hs_alarm_free(rt->alarms);
     rt->alarms = NULL;
     snprintf(rt->config_path, sizeof rt->config_path, "%s", config_path);
@@ -326,7 +335,8 @@ int hs_runtime_reload(hs_runtime *rt, const char *config_path)
         hs_log(HSP_LOG_WARNING, "%s: [mqtt] changed: that takes a restart; the running link "
                "stays as it was", config_path);
     rt->warm = 0;
-    int ok = site_parts_open(rt, models) == 0 && alarms_open(rt) == 0;
+    int ok = site_parts_open(rt, models) == 0 && alarms_open(rt) == 0 &&
+             hs_rt_scada_open(rt) == 0;
     for (size_t i = 0; ok && old_names != NULL && i < rt->site.n_transfers; i++)
         for (size_t j = 0; j < n_old; j++)
             if (strcmp(old_names[j], rt->site.transfers[i].name) == 0) {
@@ -387,6 +397,7 @@ void hs_runtime_close(hs_runtime *rt)
     if (rt->transfers != NULL && rt->buses != NULL)
         hs_rt_transfers_safe(rt);
     hs_rt_buses_stop(rt); /* the workers carry out queued writes before they end */
+    hs_rt_scada_close(rt);
     if (rt->store != NULL)
         hs_store_flush(rt->store);
     hs_rt_emit_gateway(rt, 0, hs_rt_wall_ms());

@@ -25,7 +25,7 @@ struct collect {
 };
 
 /* SG at t_from/t_from of the path brine -> SG at t_to/t_to. rho(t) = SG
- * rho_w(t) (DOMAIN.md section 3; rho_w Laliberte & Cooper 2004 eq. 8, as
+ * rho_w(t) (heavy-liquid SG; rho_w Laliberte & Cooper 2004 eq. 8, as
  * hc_path uses). Returns NaN when the path cannot place the brine. */
 static double sg_at(const hc_path *path, double sg, double t_from_c, double t_to_c,
                     double modulus)

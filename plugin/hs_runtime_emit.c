@@ -7,9 +7,8 @@
 #include <stdlib.h>
 #include <string.h>
 
-#include "hp_state_json.h"
-#include "hs_hydro_json.h"
 #include "hs_log.h"
+#include "hs_pond_doc.h"
 #include "hs_runtime_private.h"
 
 static hsp_quality host_quality(hs_quality q)
@@ -33,41 +32,41 @@ static void emit_value(hs_runtime *rt, const char *tag, hsp_value_type type, dou
     rt->sink.emit(rt->sink.data, &v);
 }
 
-/* The MQTT state object: the brine state, the hydrology figures, quality. */
-static json_t *state_object(hs_runtime *rt, size_t pond, int64_t now_ms)
+/* The pond-state document of a pond as the runtime knows it now. The
+ * strings are borrowed from rt. */
+void hs_rt_pond_doc(const hs_runtime *rt, size_t pond, struct hs_pond_doc *d)
 {
     const struct hs_rt_pond *p = &rt->ponds[pond];
-    hs_pond_extra extra;
-    hs_pond_extra_clear(&extra);
-    extra.depth_m = p->view.depth_m;
-    extra.volume_m3 = p->report.volume_m3;
-    extra.dissolved_salt_t = p->report.dissolved_salt_t;
-    extra.deposited_salt_t = p->report.deposited_salt_t;
-    extra.net_evaporation_mm_day = p->report.net_evaporation_mm_day;
-    extra.days_to_target_low = p->report.days_to_target_low;
-    extra.days_to_target_high = p->report.days_to_target_high;
-    extra.days_to_next_stage = p->report.days_to_next_stage_low;
-    int64_t t = p->view.t_ms ? p->view.t_ms : now_ms;
-    json_t *o = hs_state_payload(rt->site.ponds[pond].name, t, &p->view.state, &extra,
-                                 p->view.quality);
-    if (o == NULL)
-        return NULL;
-    hs_hydro_report_to_json(&p->report, o);
-    json_object_set_new(o, "level_quality", json_string(hs_quality_name(p->view.depth_quality)));
-    if (!p->view.have_state && p->view.note[0])
-        json_object_set_new(o, "note", json_string(p->view.note));
-    return o;
+    hs_pond_doc_init(d);
+    d->pond = rt->site.ponds[pond].name;
+    d->role = hs_role_name(rt->site.ponds[pond].role);
+    d->t_ms = p->view.t_ms;
+    d->quality = p->view.quality;
+    d->level_quality = (int)p->view.depth_quality;
+    d->state = p->view.state;
+    d->hydro = p->report;
+    d->hydro.depth_m = p->view.depth_m; /* the reading, even when the balance is off */
+    d->hydro_known = p->hydro_ok;
+    d->note = !p->view.have_state && p->view.note[0] ? p->view.note : NULL;
+}
+
+static json_t *state_object(hs_runtime *rt, size_t pond)
+{
+    struct hs_pond_doc d;
+    hs_rt_pond_doc(rt, pond, &d);
+    return hs_pond_doc_json(&d);
 }
 
 int hs_rt_enqueue_state(hs_runtime *rt, size_t pond, int64_t now_ms)
 {
+    (void)now_ms;
     if (rt->publisher == NULL)
         return 0;
     char topic[HS_TOPIC_MAX];
     if (hs_topic(topic, sizeof topic, &rt->topics, "pond", rt->site.ponds[pond].name,
                  "state") != 0)
         return -1;
-    json_t *o = state_object(rt, pond, now_ms);
+    json_t *o = state_object(rt, pond);
     if (o == NULL)
         return -1;
     int rc = hs_enqueue_json(rt->store, HS_MSG_STATE, topic, o, 1);
@@ -89,6 +88,7 @@ void hs_rt_emit_pond(hs_runtime *rt, size_t pond, int64_t now_ms)
         emit_value(rt, tag, HSP_VALUE_NUMBER, value, NULL, unit, q, t);      \
     } while (0)
     NUM("density_kg_m3", s->density_kg_m3, "kg/m3");
+    NUM("density_ref_kg_m3", s->density_ref_kg_m3, "kg/m3");
     NUM("baume", s->baume, "degBe");
     NUM("specific_gravity", s->specific_gravity, "");
     NUM("temperature_c", s->temperature_c, "degC");
@@ -102,8 +102,9 @@ void hs_rt_emit_pond(hs_runtime *rt, size_t pond, int64_t now_ms)
     q = host_quality(p->view.quality);
     snprintf(tag, sizeof tag, "pond/%s/stage", name);
     emit_value(rt, tag, HSP_VALUE_TEXT, NAN, hc_stage_name(s->stage), "", q, t);
-    json_t *o = state_object(rt, pond, now_ms);
-    char *text = o != NULL ? json_dumps(o, JSON_COMPACT) : NULL;
+    json_t *o = state_object(rt, pond);
+    hs_rt_scada_pond(rt, pond, o);
+    char *text = o != NULL ? hs_doc_dumps(o) : NULL;
     if (text != NULL) {
         snprintf(tag, sizeof tag, "pond/%s/state", name);
         emit_value(rt, tag, HSP_VALUE_JSON, NAN, text, "", q, t);
@@ -131,7 +132,7 @@ static json_t *transfer_object(hs_runtime *rt, size_t i, int64_t now_ms)
                           hs_advice_name(x->last.advice), "pump_on", x->last.pump_on, "actuate",
                           t->actuate ? 1 : 0, "reasons", reasons, "time", when);
     if (o != NULL)
-        json_object_set_new(o, "destination_density_after_mixing_kg_m3",
+        json_object_set_new(o, "destination_density_after_mixing_ref_kg_m3",
                             isfinite(x->predicted_mix_kg_m3) ? json_real(x->predicted_mix_kg_m3)
                                                              : json_null());
     return o;
@@ -141,6 +142,7 @@ void hs_rt_emit_transfer(hs_runtime *rt, size_t i, int64_t now_ms)
 {
     const hs_transfer_conf *t = &rt->site.transfers[i];
     const struct hs_rt_transfer *x = &rt->transfers[i];
+    hs_rt_scada_transfer(rt, i);
     json_t *o = transfer_object(rt, i, now_ms);
     if (o == NULL)
         return;
@@ -158,7 +160,7 @@ void hs_rt_emit_transfer(hs_runtime *rt, size_t i, int64_t now_ms)
     snprintf(tag, sizeof tag, "transfer/%s/advice", t->name);
     emit_value(rt, tag, HSP_VALUE_TEXT, NAN, hs_advice_name(x->last.advice), "",
                HSP_QUALITY_GOOD, now_ms);
-    char *text = json_dumps(o, JSON_COMPACT);
+    char *text = hs_doc_dumps(o);
     if (text != NULL) {
         snprintf(tag, sizeof tag, "transfer/%s", t->name);
         emit_value(rt, tag, HSP_VALUE_JSON, NAN, text, "", HSP_QUALITY_GOOD, now_ms);

@@ -13,33 +13,16 @@
 #include "hc_balance.h"
 #include "hs_conf_transfer.h"
 #include "hs_hydro_store.h"
+#include "hs_pond_shape.h"
 #include "hs_stage_table.h"
 
 static int shape_of(const hs_pond *p, struct hs_rt_pond *rp, hc_pond_shape *shape)
 {
-    memset(shape, 0, sizeof *shape);
-    if (p->stage_storage[0] != '\0') {
-        char err[600];
-        if (hs_stage_table_load(p->stage_storage, &rp->table, err, sizeof err) != 0) {
-            hs_log(HSP_LOG_ERR, "[pond %s]: %s", p->name, err);
-            return -1;
-        }
-        rp->table_loaded = 1;
-        shape->is_table = 1;
-        shape->table = rp->table.view;
-        return 0;
-    }
-    if (!isfinite(p->floor_area_m2))
-        return -1;
-    /* crest at the freeboard when given; otherwise 2 m (common practice,
-     * no source: solar pond dikes are rarely higher) */
-    shape->prism = (hc_prism){p->floor_area_m2, 0, isfinite(p->side_slope) ? p->side_slope : 0,
-                              isfinite(p->freeboard_m) ? p->freeboard_m : 2.0};
-    if (hc_prism_check(&shape->prism) != HC_OK) {
-        hs_log(HSP_LOG_ERR, "[pond %s]: area and side slope give no usable geometry", p->name);
-        return -1;
-    }
-    return 0;
+    char err[600];
+    int rc = hs_pond_shape_of(p, &rp->table, &rp->table_loaded, shape, err, sizeof err);
+    if (rc < 0)
+        hs_log(HSP_LOG_ERR, "[pond %s]: %s", p->name, err);
+    return rc == 0 ? 0 : -1;
 }
 
 int hs_rt_hydro_init(hs_runtime *rt)
@@ -95,7 +78,7 @@ const hc_pond_shape *hs_rt_pond_shape(const hs_runtime *rt, size_t pond)
 
 /* Days until 1/CF reaches 1/cf_goal at the recent trend. Under steady net
  * evaporation over a steady area the water mass falls linearly in time, so
- * 1/CF = W/W0 is linear in time (CF by its definition, DOMAIN.md section 7);
+ * 1/CF = W/W0 is linear in time (CF by its definition: initial over remaining water mass);
  * the slope comes from a least-squares line through the recent points, and
  * low/high from the slope -/+ one standard error. */
 static void trend_days(const struct hs_rt_pond *rp, double cf_now, double cf_goal, double *lo,

@@ -8,6 +8,7 @@
 #include <stdint.h>
 
 #include "hp_bus.h"
+#include "hp_mbserver.h"
 #include "hp_mqtt.h"
 #include "hp_queue.h"
 #include "hs_alarm.h"
@@ -15,6 +16,7 @@
 #include "hs_command.h"
 #include "hs_conf_transfer.h"
 #include "hs_hydro.h"
+#include "hs_mb_image.h"
 #include "hs_publish.h"
 #include "hs_runtime.h"
 #include "hs_site.h"
@@ -94,6 +96,8 @@ struct hs_runtime {
     hs_publisher *publisher;
     hs_commands commands;
     hs_web *web;                  /* NULL: no [web] section */
+    hs_mb_image *mb_image;        /* [modbus_server]: the map; NULL off */
+    hp_mbserver *mb_server;       /* its thread; reads mb_image only */
 
     int64_t next_eval_ms;         /* monotonic */
     int64_t next_maintain_ms;
@@ -129,6 +133,8 @@ void hs_rt_emit_transfer(hs_runtime *rt, size_t transfer, int64_t now_ms);
 void hs_rt_emit_alarm(hs_runtime *rt, const hs_alarm_event *ev);
 void hs_rt_emit_gateway(hs_runtime *rt, int online, int64_t now_ms);
 int hs_rt_enqueue_state(hs_runtime *rt, size_t pond, int64_t now_ms);
+struct hs_pond_doc;
+void hs_rt_pond_doc(const hs_runtime *rt, size_t pond, struct hs_pond_doc *d);
 
 /* hs_runtime_hydro.c */
 int hs_rt_hydro_init(hs_runtime *rt);
@@ -144,6 +150,14 @@ void hs_rt_mqtt_pump(hs_runtime *rt, int wait_ms);
 /* Sends what the outbox holds (up to wait_ms), publishes the gateway
  * offline, disconnects. */
 void hs_rt_mqtt_close(hs_runtime *rt, int wait_ms);
+
+/* hs_runtime_scada.c: the read-only Modbus server and the Sparkplug edge
+ * node, each off without its section. */
+int hs_rt_scada_open(hs_runtime *rt);
+void hs_rt_scada_close(hs_runtime *rt);
+void hs_rt_scada_pond(hs_runtime *rt, size_t pond, const json_t *doc);
+void hs_rt_scada_transfer(hs_runtime *rt, size_t transfer);
+void hs_rt_scada_beat(hs_runtime *rt, int64_t now_ms);
 
 int64_t hs_rt_wall_ms(void);
 int64_t hs_rt_mono_ms(void);

@@ -94,7 +94,8 @@ static struct hs_xfer_input pond_density(const hs_runtime *rt, int pond)
     const hs_pond_view *v = &rt->ponds[pond].view;
     if (!v->have_state)
         return (struct hs_xfer_input){NAN, HS_XQ_BAD};
-    return (struct hs_xfer_input){v->state.density_kg_m3, xq(v->quality)};
+    /* at the reference temperature: the brine, not the weather, decides */
+    return (struct hs_xfer_input){v->state.density_ref_kg_m3, xq(v->quality)};
 }
 
 static struct hs_xfer_input pond_level(const hs_runtime *rt, int pond)
@@ -106,9 +107,10 @@ static struct hs_xfer_input pond_level(const hs_runtime *rt, int pond)
     return (struct hs_xfer_input){v->depth_m, xq(v->depth_quality)};
 }
 
-/* The destination's density after one batch of source brine, from the
- * mixed composition (mass of water and of every ion conserved; DOMAIN.md
- * section 10), never by averaging densities. */
+/* The destination's density after one batch of source brine, at the site
+ * reference temperature like every density a decision compares, from the
+ * mixed composition (mass of water and of every ion conserved), never by
+ * averaging densities. */
 static struct hs_xfer_input mixed_density(hs_runtime *rt, const hs_transfer_conf *t)
 {
     struct hs_xfer_input out = {NAN, HS_XQ_BAD};
@@ -134,7 +136,7 @@ static struct hs_xfer_input mixed_density(hs_runtime *rt, const hs_transfer_conf
         hc_amount_from_volume(md, mm, HC_ION_COUNT, dst->report.volume_m3,
                               dst->view.state.density_kg_m3, &b) ||
         hc_amount_mix(&a, &b, &m) || hc_amount_molality(&m, mm, mix, &mass) ||
-        hc_brine_density(mix, dst->view.state.temperature_c, &rho) != HC_OK)
+        hc_brine_density(mix, rt->site.site.reference_temperature_c, &rho) != HC_OK)
         return out;
     hs_quality q = src->view.quality > dst->view.quality ? src->view.quality : dst->view.quality;
     return (struct hs_xfer_input){rho, xq(q)};

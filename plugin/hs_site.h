@@ -31,6 +31,9 @@ typedef struct {
     char feed[HS_NAME_MAX];         /* default feed; "" = built-in seawater */
     int feed_index;                 /* into feeds, -1 = built-in seawater */
     int64_t stale_after_ms;         /* default for every bus */
+    int64_t raw_retention_ms;       /* raw samples and pond states kept this long */
+    int64_t minute_retention_ms;    /* 1-minute rollups kept this long */
+    int64_t hour_retention_ms;      /* 1-hour rollups kept this long */
     int line;                       /* of the [site] header, 0 if absent */
 } hs_site_conf;
 
@@ -103,6 +106,10 @@ typedef struct {
     char unit[HS_UNIT_NAME_MAX];   /* engineering unit of the decoded value */
     double si_factor;              /* SI value = value * si_factor + si_offset */
     double si_offset;
+    char accuracy[24];             /* `accuracy` as written; "" = the quantity's default */
+    int accuracy_set;              /* parsed into the two below (hs_accuracy.h) */
+    double accuracy_abs_si;        /* +- [SI unit] */
+    double accuracy_rel;           /* +- fraction of the reading */
 } hs_signal;
 
 /* Major ions of a feed analysis, as the thermodynamics module takes them. */
@@ -126,6 +133,8 @@ typedef struct {
 struct hs_transfer_conf;
 struct hs_mqtt_conf;
 struct hs_web_conf;
+struct hs_modbus_server_conf;
+struct hs_sparkplug_conf;
 
 typedef struct hs_site {
     char path[HS_PATH_MAX];        /* the configuration file as given */
@@ -139,6 +148,8 @@ typedef struct hs_site {
     struct hs_mqtt_conf *mqtt;     /* hs_conf_mqtt.h; NULL without [mqtt] */
     struct hs_alarm_conf *alarms; size_t n_alarms; /* hs_conf_alarm.h */
     struct hs_web_conf *web;       /* hs_conf_web.h; NULL without [web] */
+    struct hs_modbus_server_conf *modbus_server; /* hs_conf_scada.h; NULL: off */
+    struct hs_sparkplug_conf *sparkplug;         /* hs_conf_scada.h; NULL: off */
     /* Other section types ([mqtt], [alarm NAME], [transfer NAME], ...) add
      * their arrays below, each owned and released by its own file. */
 } hs_site;

@@ -62,6 +62,11 @@ static const char *const migrations[] = {
     /* 1 -> 2: rollups are reached through their primary key, series by
      * series; the (step_s, t_ms) index cost a third of the file. */
     "DROP INDEX IF EXISTS rollup_step_t;",
+    /* 2 -> 3: every state carries its standard uncertainty (k = 1). */
+    "ALTER TABLE pond_state ADD COLUMN density_uncertainty_kg_m3 REAL;"
+    "ALTER TABLE pond_state ADD COLUMN sg_uncertainty REAL;"
+    "ALTER TABLE pond_state ADD COLUMN baume_uncertainty REAL;"
+    "ALTER TABLE pond_state ADD COLUMN cf_uncertainty REAL;",
 };
 #define SCHEMA_VERSION ((int)(sizeof migrations / sizeof migrations[0]))
 
@@ -80,8 +85,10 @@ static const char *const stmt_sql[SQL_COUNT] = {
         " next_stage_density_kg_m3, si_gypsum, si_halite, water_activity, method,"
         " warnings, depth_m, volume_m3, dissolved_salt_t, deposited_salt_t,"
         " net_evaporation_mm_day, days_to_target_low, days_to_target_high,"
-        " days_to_next_stage) VALUES(?1,?2,?3,?4,?5,?6,?7,?8,?9,?10,?11,?12,?13,?14,"
-        "?15,?16,?17,?18,?19,?20,?21,?22,?23,?24,?25,?26,?27,?28)",
+        " days_to_next_stage, density_uncertainty_kg_m3, sg_uncertainty,"
+        " baume_uncertainty, cf_uncertainty) VALUES(?1,?2,?3,?4,?5,?6,?7,?8,?9,?10,?11,"
+        "?12,?13,?14,?15,?16,?17,?18,?19,?20,?21,?22,?23,?24,?25,?26,?27,?28,?29,?30,?31,"
+        "?32)",
     [SQL_JOURNAL_ADD] =
         "INSERT INTO alarm_journal(event_id, t_ms, pond, rule, from_state, to_state,"
         " cause, value, limit_value, priority, actor, note, episode_id, shelved_until_ms)"
@@ -122,6 +129,16 @@ void hs_store_options_default(hs_store_options *opt)
     opt->batch_rows = 1000;
     opt->busy_timeout_ms = 5000;
     opt->outbox_max_rows = 100000;
+}
+
+void hs_store_set_retention(hs_store *st, int64_t raw_ms, int64_t minute_ms, int64_t hour_ms)
+{
+    if (raw_ms > 0)
+        st->opt.raw_retention_ms = raw_ms;
+    if (minute_ms > 0)
+        st->opt.minute_retention_ms = minute_ms;
+    if (hour_ms > 0)
+        st->opt.hour_retention_ms = hour_ms;
 }
 
 void hs_pond_extra_clear(hs_pond_extra *x)

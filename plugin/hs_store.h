@@ -56,6 +56,28 @@ typedef struct {
 /* Fills the defaults listed above. */
 void hs_store_options_default(hs_store_options *opt);
 
+/* What a backup copied (hs_store_backup). */
+typedef struct {
+    int schema_version;
+    int pages;
+    int64_t bytes;
+    int64_t pond_states, samples, journal_rows;
+} hs_backup_report;
+
+/* Copies the history file at db_path to to_path while a daemon may be
+ * writing it: one consistent snapshot holding every row committed before the
+ * copy began, checked with integrity_check, a single file (no -wal), mode
+ * 0640, put in place by rename only when complete. Refuses an existing
+ * to_path unless overwrite, and the live file itself. 0, or -1 with a reason
+ * naming the file in err (nothing is left at to_path then). */
+int hs_store_backup(const char *db_path, const char *to_path, int overwrite, int busy_timeout_ms,
+                    hs_backup_report *rep, char *err, size_t len);
+
+/* Changes the retention periods of an open writer (a reload of the site
+ * file); they apply from the next maintenance pass. Non-positive values keep
+ * the current period. */
+void hs_store_set_retention(hs_store *st, int64_t raw_ms, int64_t minute_ms, int64_t hour_ms);
+
 /* Opens (and in HS_STORE_WRITE mode creates and migrates) the store at path.
  * opt may be NULL for defaults. On failure returns NULL and, when err is not
  * NULL, writes a reason into err (errlen bytes). The caller owns the handle

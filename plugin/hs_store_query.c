@@ -3,6 +3,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "hc_brine_density.h"
 #include "hs_store_private.h"
 
 /* The state field named after "POND:" in series, or NULL for a signal. */
@@ -181,7 +182,8 @@ int hs_store_states(hs_store *st, const char *pond, int64_t since_ms, int64_t un
             " baume, baume_modulus, concentration_factor, stage, next_stage,"
             " next_stage_density_kg_m3, si_gypsum, si_halite, water_activity, method, warnings,"
             " depth_m, volume_m3, dissolved_salt_t, deposited_salt_t, net_evaporation_mm_day,"
-            " days_to_target_low, days_to_target_high, days_to_next_stage"
+            " days_to_target_low, days_to_target_high, days_to_next_stage,"
+            " density_uncertainty_kg_m3, sg_uncertainty, baume_uncertainty, cf_uncertainty"
             " FROM pond_state ps JOIN pond p ON p.id = ps.pond_id"
             " WHERE ps.t_ms >= ?1 AND ps.t_ms < ?2 AND (?3 IS NULL OR p.name = ?3)"
             " ORDER BY ps.t_ms, p.name",
@@ -212,6 +214,11 @@ int hs_store_states(hs_store *st, const char *pond, int64_t since_ms, int64_t un
         r.state.stage = stage_col(s, 12);
         r.state.next_stage = stage_col(s, 13);
         r.state.next_stage_density_kg_m3 = hs_col_num(s, 14);
+        /* not stored: the density at the reference temperature follows from
+         * SG t_ref/t_ref = rho(t_ref) / rho_w(t_ref) (hc_baume.h), water by
+         * Laliberte & Cooper 2004 eq. 8 as the live states use [kg/m3] */
+        r.state.density_ref_kg_m3 = r.state.specific_gravity *
+                                    hc_water_density_lc(r.state.reference_temperature_c);
         r.state.saturation_index[HC_MIN_GYPSUM] = hs_col_num(s, 15);
         r.state.saturation_index[HC_MIN_HALITE] = hs_col_num(s, 16);
         r.state.water_activity = hs_col_num(s, 17);
@@ -225,6 +232,10 @@ int hs_store_states(hs_store *st, const char *pond, int64_t since_ms, int64_t un
         r.extra.days_to_target_low = hs_col_num(s, 25);
         r.extra.days_to_target_high = hs_col_num(s, 26);
         r.extra.days_to_next_stage = hs_col_num(s, 27);
+        r.state.density_uncertainty_kg_m3 = hs_col_num(s, 28);
+        r.state.sg_uncertainty = hs_col_num(s, 29);
+        r.state.baume_uncertainty = hs_col_num(s, 30);
+        r.state.cf_uncertainty = hs_col_num(s, 31);
         fn(ctx, &r);
         n++;
     }

@@ -10,7 +10,7 @@
 /* Pond-state fields that get series and rollups (names as the columns). */
 const char *const hs_store_state_fields[] = {
     "density_kg_m3", "baume", "temperature_c", "concentration_factor", "specific_gravity",
-    "depth_m", "volume_m3", NULL,
+    "depth_m", "volume_m3", "density_uncertainty_kg_m3", NULL,
 };
 
 static int bind_text_or_null(sqlite3_stmt *s, int col, const char *text)
@@ -110,6 +110,10 @@ int hs_store_add_state(hs_store *st, const char *pond, int64_t t_ms, const hc_br
     hs_bind_num(s, 26, extra->days_to_target_low);
     hs_bind_num(s, 27, extra->days_to_target_high);
     hs_bind_num(s, 28, extra->days_to_next_stage);
+    hs_bind_num(s, 29, b->density_uncertainty_kg_m3);
+    hs_bind_num(s, 30, b->sg_uncertainty);
+    hs_bind_num(s, 31, b->baume_uncertainty);
+    hs_bind_num(s, 32, b->cf_uncertainty);
     return step_write(st, s, "adding a pond state");
 }
 

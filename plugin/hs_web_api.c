@@ -14,6 +14,7 @@
 #include "hs_alarm.h"
 #include "hs_conf_transfer.h"
 #include "hs_config.h"
+#include "hs_pond_doc.h"
 #include "hs_store_latest.h"
 #include "hs_web_private.h"
 
@@ -94,29 +95,28 @@ static json_t *band_json(const hs_site *site, double rho_kg_m3)
                      num(sg), "baume", num(be));
 }
 
+/* The pond-state document (hs_pond_doc.h), the same one MQTT and `status
+ * --json` print, plus what the page needs around it: its age, the next
+ * pond, its band and level limits, and its alarms not back to normal. */
 static json_t *pond_json(struct hs_web *w, const hs_pond *p, json_t *active, int64_t now)
 {
     hs_state_row row;
-    json_t *o;
-    if (hs_store_latest_state(w->store, p->name, &row) == 0) {
-        o = hp_state_to_json(&row.state);
-        json_object_set_new(o, "time_ms", json_integer(row.t_ms));
-        json_object_set_new(o, "age_s", json_real((double)(now - row.t_ms) / 1000.0));
-        json_object_set_new(o, "quality", json_string(hs_quality_name(row.quality)));
-        json_object_set_new(o, "depth_m", num(row.extra.depth_m));
-        json_object_set_new(o, "volume_m3", num(row.extra.volume_m3));
-        json_object_set_new(o, "dissolved_salt_t", num(row.extra.dissolved_salt_t));
-        json_object_set_new(o, "deposited_salt_t", num(row.extra.deposited_salt_t));
-        json_object_set_new(o, "net_evaporation_mm_day", num(row.extra.net_evaporation_mm_day));
-        json_object_set_new(o, "days_to_target_low", num(row.extra.days_to_target_low));
-        json_object_set_new(o, "days_to_target_high", num(row.extra.days_to_target_high));
-        json_object_set_new(o, "days_to_next_stage", num(row.extra.days_to_next_stage));
+    struct hs_pond_doc d;
+    int have = hs_store_latest_state(w->store, p->name, &row) == 0;
+    if (have) {
+        hs_pond_doc_from_row(&d, &row, p->name, hs_role_name(p->role));
     } else {
-        o = json_object();
-        json_object_set_new(o, "quality", json_string("no data"));
+        hs_pond_doc_init(&d);
+        d.pond = p->name;
+        d.role = hs_role_name(p->role);
+        d.note = "no stored state";
     }
-    json_object_set_new(o, "pond", json_string(p->name));
-    json_object_set_new(o, "role", json_string(hs_role_name(p->role)));
+    json_t *o = hs_pond_doc_json(&d);
+    if (o == NULL)
+        return NULL;
+    json_object_set_new(o, "time_ms", have ? json_integer(row.t_ms) : json_null());
+    json_object_set_new(o, "age_s", have ? json_real((double)(now - row.t_ms) / 1000.0)
+                                         : json_null());
     json_object_set_new(o, "next", p->next[0] ? json_string(p->next) : json_null());
     json_object_set_new(o, "band", json_pack("{s:o, s:o}", "in", band_json(&w->site,
                                              p->density_in_kg_m3), "out",
@@ -188,7 +188,7 @@ enum MHD_Result hs_web_api_ponds(struct hs_web_call *c)
     int64_t now = hs_web_mono_ms();
     if (w->ponds_text == NULL || w->ponds_seq != seq || now - w->ponds_ms > PONDS_MAX_AGE_MS) {
         json_t *doc = ponds_document(w);
-        char *text = doc ? json_dumps(doc, JSON_COMPACT | JSON_REAL_PRECISION(8)) : NULL;
+        char *text = doc ? hs_doc_dumps(doc) : NULL;
         json_decref(doc);
         if (text == NULL)
             return hs_web_error(c, 503, NULL, "the store cannot be read now: %s",

@@ -390,7 +390,7 @@ static modbus_t *new_context(const hp_bus_conf *c)
     }
     if (!ctx)
         return NULL;
-    /* libmodbus wants microseconds below 1,000,000 (PITFALLS.md). */
+    /* libmodbus wants microseconds below 1,000,000 (libmodbus 3.1.6, modbus_set_response_timeout). */
     modbus_set_response_timeout(ctx, (uint32_t)(c->response_timeout_ms / 1000),
                                 (uint32_t)(c->response_timeout_ms % 1000) * 1000u);
     modbus_set_byte_timeout(ctx, (uint32_t)(c->byte_timeout_ms / 1000),

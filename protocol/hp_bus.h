@@ -3,7 +3,7 @@
  * (hp_plan.h), into the sample queue. A dead or hung device costs only its
  * own bus time: buses never wait for each other.
  *
- * Failure handling (libmodbus 3.1.6, see PITFALLS.md): error recovery stays
+ * Failure handling (libmodbus 3.1.6, see protocol/README.md): error recovery stays
  * NONE; a read is tried 1 + retries times; after a timeout the line is
  * flushed; a broken link (reset, refused, bad descriptor) or repeated
  * timeouts close the context, and reconnects back off exponentially from

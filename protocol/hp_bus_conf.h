@@ -37,7 +37,7 @@ typedef struct {
 } hp_bus_conf;
 
 /* True for the baud rates we accept (libmodbus 3.1.6 silently falls back to
- * 9600 on any other; PITFALLS.md). */
+ * 9600 on any other; libmodbus 3.1.6). */
 bool hp_baud_valid(int baud);
 
 #endif

@@ -67,6 +67,7 @@ json_t *hp_state_to_json(const hc_brine_state *state)
     int ok = set(o, "practical_salinity", number_or_null(state->practical_salinity)) &&
              set(o, "salinity_g_kg", number_or_null(state->salinity_g_kg)) &&
              set(o, "density_kg_m3", number_or_null(state->density_kg_m3)) &&
+             set(o, "density_ref_kg_m3", number_or_null(state->density_ref_kg_m3)) &&
              set(o, "temperature_c", number_or_null(state->temperature_c)) &&
              set(o, "specific_gravity", number_or_null(state->specific_gravity)) &&
              set(o, "reference_temperature_c", number_or_null(state->reference_temperature_c)) &&
@@ -76,9 +77,16 @@ json_t *hp_state_to_json(const hc_brine_state *state)
              set(o, "stage", stage_or_null(state->stage)) &&
              set(o, "next_stage", stage_or_null(state->next_stage)) &&
              set(o, "next_stage_density_kg_m3", number_or_null(state->next_stage_density_kg_m3)) &&
+             set(o, "next_stage_density_ref_kg_m3",
+                 number_or_null(state->next_stage_density_ref_kg_m3)) &&
              set(o, "saturation_index", saturation_object(state)) &&
              set(o, "water_activity", number_or_null(state->water_activity)) &&
              set(o, "method", json_string(hc_method_name(state->method))) &&
+             set(o, "density_uncertainty_kg_m3",
+                 number_or_null(state->density_uncertainty_kg_m3)) &&
+             set(o, "specific_gravity_uncertainty", number_or_null(state->sg_uncertainty)) &&
+             set(o, "baume_uncertainty", number_or_null(state->baume_uncertainty)) &&
+             set(o, "concentration_factor_uncertainty", number_or_null(state->cf_uncertainty)) &&
              set(o, "warnings", warnings_array(state->warnings));
     if (!ok) {
         json_decref(o);

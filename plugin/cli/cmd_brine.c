@@ -165,6 +165,8 @@ static hc_status compute(const struct brine_request *rq, struct brine_result *r,
             s->saturation_index[m] = NAN;
     st = hc_brine_density(rq->molality, rq->t_c, &s->density_kg_m3);
     if (st == HC_OK)
+        st = hc_brine_density(rq->molality, rq->t_ref_c, &s->density_ref_kg_m3);
+    if (st == HC_OK)
         st = hc_brine_specific_gravity(rq->molality, rq->t_ref_c, &s->specific_gravity);
     if (st == HC_OK)
         st = hc_baume_from_sg(s->specific_gravity, rq->modulus, &s->baume);

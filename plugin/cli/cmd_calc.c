@@ -17,12 +17,14 @@
 
 #include "cli/cli_number.h"
 #include "cli/commands.h"
+#include "hs_accuracy.h"
 #include "hc_baume.h"
 #include "hc_eos80.h"
 #include "hc_path.h"
 #include "hc_pss78.h"
 #include "hc_seawater.h"
 #include "hc_state.h"
+#include "hc_uncertainty.h"
 #include "hp_state_json.h"
 
 struct calc_request {
@@ -37,6 +39,11 @@ struct calc_request {
     hc_seawater_options opt;
     const char *tref_text; /* as typed, for messages */
     int json;
+    int have_accuracy;     /* --accuracy: of the conductivity or density */
+    double accuracy_abs;   /* +- in the input's unit */
+    double accuracy_rel;   /* +- fraction of the reading */
+    int have_t_accuracy;
+    double t_accuracy;     /* +- [degC] */
 };
 
 static void usage(FILE *out)
@@ -62,7 +69,17 @@ static void usage(FILE *out)
             "  --reference-temperature DEGC|60F\n"
             "                           for specific gravity and Baume: 15 (default), 20, 60F\n"
             "  --modulus M              Baume modulus: 145 (default), 144.3, 146.78, ...\n"
-            "  --json                   one JSON object instead of the table\n");
+            "  --accuracy N|N%%          the instrument's +-limit on --conductivity or\n"
+            "                           --density (default 0.5%% of a conductivity,\n"
+            "                           0.5 kg/m3 of a density: usual instrument classes)\n"
+            "  --temperature-accuracy N +-limit of the temperature [degC]\n"
+            "                           (default Pt100 class A: 0.15 + 0.002 |t|)\n"
+            "  --json                   one JSON object instead of the table\n"
+            "\n"
+            "Each density, SG, Baume and CF carries its standard uncertainty (k = 1),\n"
+            "propagated through the method used (GUM, JCGM 100:2008). A density given\n"
+            "is reported as given; past the end of the evaporation path the stage is\n"
+            "the path's last and the concentration factor is unknown (beyond-path).\n");
 }
 
 /* 0 ok, 2 usage error (message printed), 3 --help shown. */
@@ -118,6 +135,22 @@ static int parse_request(int argc, char **argv, struct calc_request *rq)
             rc = hs_cli_tref("calc", v, HC_EOS80_T_MIN_C, HC_EOS80_T_VALID_MAX_C,
                              &rq->opt.reference_temperature_c);
             rq->tref_text = v;
+        } else if (strcmp(a, "--accuracy") == 0) {
+            char why[160];
+            if (hs_accuracy_parse(v, 1.0, &rq->accuracy_abs, &rq->accuracy_rel, why,
+                                  sizeof why) != 0) {
+                fprintf(stderr, "halostage calc: --accuracy: %s\n", why);
+                return 2;
+            }
+            rq->have_accuracy = 1;
+        } else if (strcmp(a, "--temperature-accuracy") == 0) {
+            rc = hs_cli_number("calc", a, v, &rq->t_accuracy);
+            if (rc == 0 && !(rq->t_accuracy >= 0.0 && rq->t_accuracy < 50.0)) {
+                fprintf(stderr, "halostage calc: --temperature-accuracy %s: must be 0 or more "
+                                "and below 50 degC\n", v);
+                return 2;
+            }
+            rq->have_t_accuracy = 1;
         } else if (strcmp(a, "--modulus") == 0) {
             rc = hs_cli_number("calc", a, v, &rq->opt.baume_modulus);
             if (rc == 0 && !hc_baume_modulus_valid(rq->opt.baume_modulus)) {
@@ -204,21 +237,54 @@ static void add_path_view(const hc_path *path, hc_brine_state *st)
     st->stage = v.stage;
     st->next_stage = v.next_stage;
     st->next_stage_density_kg_m3 = v.next_stage_density_kg_m3;
+    st->next_stage_density_ref_kg_m3 = v.next_stage_density_ref_kg_m3;
     memcpy(st->saturation_index, v.saturation_index, sizeof st->saturation_index);
     st->water_activity = v.water_activity;
 }
 
-static hc_status compute_state(const struct calc_request *rq, hc_brine_state *st)
+/* The state of (value, t): conductivity or density as the request says,
+ * through PSS-78/EOS-80 in the seawater range, else the path (NULL: none). */
+static hc_status state_at(const struct calc_request *rq, const hc_path *path, double value,
+                          double t_c, hc_brine_state *st)
 {
     hc_status s;
     if (rq->have_conductivity)
-        s = hc_seawater_state_from_conductivity(rq->conductivity_ms_cm, rq->temperature_c,
-                                                rq->pressure_dbar, &rq->opt, st);
+        s = hc_seawater_state_from_conductivity(value, t_c, rq->pressure_dbar, &rq->opt, st);
     else
-        s = hc_seawater_state_from_density(rq->density_kg_m3, rq->temperature_c,
-                                           rq->pressure_dbar, &rq->opt, st);
+        s = hc_seawater_state_from_density(value, t_c, rq->pressure_dbar, &rq->opt, st);
     if (s != HC_OK && s != HC_ERR_SALINITY_RANGE)
         return s;
+    if (s == HC_OK) {
+        if (path != NULL)
+            add_path_view(path, st);
+        return HC_OK;
+    }
+    if (path == NULL)
+        return s;
+    double t_ref = rq->opt.reference_temperature_c, m = rq->opt.baume_modulus;
+    if (rq->have_conductivity)
+        return hc_path_state_from_conductivity(path, value, t_c, t_ref, m, NULL, st);
+    return hc_path_state_from_density(path, value, t_c, t_ref, m, st);
+}
+
+struct calc_method {
+    const struct calc_request *rq;
+    const hc_path *path;
+};
+
+/* x: the measured value, t [degC], brine model offset [1] (hc_uncertainty.h). */
+static hc_status calc_method_fn(const double *x, const void *ctx, double *y)
+{
+    const struct calc_method *cm = ctx;
+    hc_brine_state st;
+    hc_status s = state_at(cm->rq, cm->path, x[0] * (1.0 + x[2]), x[1], &st);
+    if (s == HC_OK)
+        hc_unc_outputs(&st, y);
+    return s;
+}
+
+static hc_status compute_state(const struct calc_request *rq, hc_brine_state *st)
+{
     /* The feed's evaporation path at the sample temperature (built once here;
      * the daemon builds it once per site). A feed below S_P 2 has none. */
     hc_feed feed;
@@ -226,21 +292,24 @@ static hc_status compute_state(const struct calc_request *rq, hc_brine_state *st
     hc_status ps = hc_feed_seawater(rq->opt.feed_sp, &feed);
     if (ps == HC_OK)
         ps = hc_path_build(&feed, rq->temperature_c, HC_PATH_FRACTIONAL, &path);
+    double value = rq->have_conductivity ? rq->conductivity_ms_cm : rq->density_kg_m3;
+    hc_status s = state_at(rq, ps == HC_OK ? path : NULL, value, rq->temperature_c, st);
+    if (s == HC_ERR_SALINITY_RANGE && ps == HC_ERR_NO_CONVERGENCE)
+        s = ps;
     if (s == HC_OK) {
-        if (ps == HC_OK)
-            add_path_view(path, st);
-        hc_path_free(path);
-        return HC_OK;
+        /* the instrument classes a daemon assumes (plugin/hs_accuracy.h) */
+        double a_value = rq->have_accuracy ? rq->accuracy_abs + rq->accuracy_rel * fabs(value)
+                         : rq->have_conductivity ? 0.005 * fabs(value) : 0.5;
+        double a_t = rq->have_t_accuracy ? rq->t_accuracy
+                                         : 0.15 + 0.002 * fabs(rq->temperature_c);
+        double x[3] = {value, rq->temperature_c, 0.0};
+        double u[3] = {hc_unc_from_accuracy(a_value), hc_unc_from_accuracy(a_t),
+                       st->method == HC_METHOD_BRINE_CONDUCTIVITY ? HC_UNC_BRINE_MODEL_REL : 0.0};
+        struct calc_method cm = {rq, ps == HC_OK ? path : NULL};
+        double u_y[HC_UNC_OUTPUTS];
+        if (hc_unc_propagate(calc_method_fn, &cm, x, u, 3, u_y) == HC_OK)
+            hc_unc_store(u_y, st);
     }
-    if (ps != HC_OK)
-        return s == HC_ERR_SALINITY_RANGE && ps == HC_ERR_NO_CONVERGENCE ? ps : s;
-    double t_ref = rq->opt.reference_temperature_c, m = rq->opt.baume_modulus;
-    if (rq->have_conductivity)
-        s = hc_path_state_from_conductivity(path, rq->conductivity_ms_cm, rq->temperature_c,
-                                            t_ref, m, NULL, st);
-    else
-        s = hc_path_state_from_density(path, rq->density_kg_m3, rq->temperature_c, t_ref, m,
-                                       st);
     hc_path_free(path);
     return s;
 }
@@ -276,12 +345,16 @@ static void print_table(const struct calc_request *rq, const hc_brine_state *st)
     print_value("practical salinity", st->practical_salinity, "%.4f", " (PSS-78)");
     print_value("salinity", st->salinity_g_kg, "%.3f", " g/kg of brine");
     print_value("density", st->density_kg_m3, "%.3f", " kg/m3 at sample temperature");
+    print_value("  uncertainty", st->density_uncertainty_kg_m3, "+-%.3f", " kg/m3 (k = 1)");
     snprintf(unit, sizeof unit, " (%s)", tref);
     print_value("specific gravity", st->specific_gravity, "%.5f", unit);
+    print_value("  uncertainty", st->sg_uncertainty, "+-%.5f", "");
     snprintf(unit, sizeof unit, " deg Be (modulus %g)", st->baume_modulus);
     print_value("degree Baume", st->baume, "%.2f", unit);
+    print_value("  uncertainty", st->baume_uncertainty, "+-%.2f", " deg Be");
     snprintf(unit, sizeof unit, " (feed: %s, S_P %g)", rq->feed_name, rq->opt.feed_sp);
     print_value("concentration factor", st->concentration_factor, "%.3f", unit);
+    print_value("  uncertainty", st->cf_uncertainty, "+-%.3f", "");
     printf("  %-24s %s\n", "stage", hc_stage_name(st->stage));
     if (st->next_stage != HC_STAGE_NONE) {
         printf("  %-24s %s", "next stage", hc_stage_name(st->next_stage));

@@ -22,7 +22,7 @@
 #include "commands.h"
 #include "store_opts.h"
 
-/* 60 degF on the Celsius scale: (60 - 32) / 1.8 (DOMAIN.md section 3). */
+/* 60 degF on the Celsius scale: (60 - 32) / 1.8 (60 degF, the US Baume scale reference). */
 #define SIXTY_F_IN_C (28.0 / 1.8)
 
 static void usage(FILE *out)
@@ -228,7 +228,7 @@ int hs_cmd_calibrate(int argc, char **argv)
     };
     if (!listing) {
         char msg[200];
-        /* SG 0.99 to 1.40: water to past bischofite (DOMAIN.md section 3: 1.30 is
+        /* SG 0.99 to 1.40: water to past bischofite (Usiglio 1849: 1.30 is
          * 33.5 Be; late bittern stays below 1.40), common practice, no source */
         if (number("--sg", sg_text, 0.99, 1.40, &row.specific_gravity) != 0 ||
             (ref_text && reference_temperature(ref_text, &row.reference_temperature_c) != 0) ||

@@ -1,4 +1,4 @@
-/* halostage export --csv --config FILE [--what states|alarms] [--pond P]
+/* halostage export --csv|--json --config FILE [--what states|alarms] [--pond P]
  *                  [--since WHEN] [--until WHEN]
  * The stored pond states (or the alarm journal) as CSV for spreadsheets:
  * one header line whose names carry their units, times in ISO 8601 UTC,
@@ -6,10 +6,12 @@
 #include <getopt.h>
 #include <math.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 
 #include "cli_number.h"
 #include "commands.h"
+#include "hs_pond_doc.h"
 #include "hs_publish.h"
 #include "store_opts.h"
 
@@ -88,6 +90,28 @@ static void state_row(void *ctx, const hs_state_row *r)
     (*n)++;
 }
 
+/* One pond-state document per line (`--json`). */
+struct json_ctx {
+    long n;
+    const hs_site *site;
+};
+
+static void state_doc(void *ctx, const hs_state_row *r)
+{
+    struct json_ctx *j = ctx;
+    int p = hs_site_pond(j->site, r->pond);
+    struct hs_pond_doc d;
+    hs_pond_doc_from_row(&d, r, r->pond, p >= 0 ? hs_role_name(j->site->ponds[p].role) : NULL);
+    json_t *o = hs_pond_doc_json(&d);
+    char *text = o != NULL ? hs_doc_dumps(o) : NULL;
+    if (text != NULL) {
+        printf("%s\n", text);
+        j->n++;
+    }
+    free(text);
+    json_decref(o);
+}
+
 static const char state_header[] =
     "time (UTC ISO 8601),pond,quality,density (kg/m3),temperature (degC),"
     "specific gravity (1),reference temperature (degC),baume (deg Be),baume modulus (1),"
@@ -129,9 +153,10 @@ static const char journal_header[] =
 static void usage(FILE *out)
 {
     fprintf(out,
-            "usage: halostage export --csv --config FILE [--what states|alarms] [--pond POND]\n"
-            "                        [--since WHEN] [--until WHEN]\n"
+            "usage: halostage export --csv|--json --config FILE [--what states|alarms]\n"
+            "                        [--pond POND] [--since WHEN] [--until WHEN]\n"
             "  CSV on stdout; the header names carry the units; times are ISO 8601 UTC.\n"
+            "  --json: the pond states as pond-state documents, one per line.\n"
             "  WHEN: a duration back from now (30d), now, or a UTC time (2026-03-01T06:00Z).\n"
             "  Default: the pond states of the last 30 days.\n");
 }
@@ -142,11 +167,12 @@ int hs_cmd_export(int argc, char **argv)
         {"config", required_argument, NULL, 'c'}, {"pond", required_argument, NULL, 'p'},
         {"since", required_argument, NULL, 's'},  {"until", required_argument, NULL, 'u'},
         {"what", required_argument, NULL, 'w'},   {"csv", no_argument, NULL, 'x'},
-        {"help", no_argument, NULL, 'h'},         {NULL, 0, NULL, 0},
+        {"json", no_argument, NULL, 'j'},         {"help", no_argument, NULL, 'h'},
+        {NULL, 0, NULL, 0},
     };
     const char *config = NULL, *pond = NULL, *since_s = "30d", *until_s = "now";
     const char *what = "states";
-    int csv = 0, c;
+    int csv = 0, json = 0, c;
     optind = 1;
     opterr = 0; /* one line of our own instead of getopt's and the usage */
     while ((c = getopt_long(argc, argv, "c:p:s:u:w:xh", opts, NULL)) != -1) {
@@ -157,14 +183,16 @@ int hs_cmd_export(int argc, char **argv)
         case 'u': until_s = optarg; break;
         case 'w': what = optarg; break;
         case 'x': csv = 1; break;
+        case 'j': json = 1; break;
         case 'h': usage(stdout); return 0;
         default: hs_cli_bad_option("export", argv, argc); return 2;
         }
     }
-    if (config == NULL || !csv || optind < argc ||
-        (strcmp(what, "states") != 0 && strcmp(what, "alarms") != 0)) {
-        fprintf(stderr, "halostage export: need --csv and --config; --what is states or "
-                        "alarms (see --help)\n");
+    if (config == NULL || csv + json != 1 || optind < argc ||
+        (strcmp(what, "states") != 0 && strcmp(what, "alarms") != 0) ||
+        (json && strcmp(what, "states") != 0)) {
+        fprintf(stderr, "halostage export: need --config and one of --csv or --json; --what is "
+                        "states or alarms, --json exports states (see --help)\n");
         return 2;
     }
     int64_t since, until;
@@ -177,7 +205,11 @@ int hs_cmd_export(int argc, char **argv)
         return rc;
     long rows = 0;
     int n;
-    if (strcmp(what, "states") == 0) {
+    if (json) {
+        struct json_ctx j = {0, &site};
+        n = hs_store_states(st, pond, since, until, state_doc, &j);
+        rows = j.n;
+    } else if (strcmp(what, "states") == 0) {
         fputs(state_header, stdout);
         n = hs_store_states(st, pond, since, until, state_row, &rows);
     } else {

@@ -23,7 +23,8 @@ static const struct {
     const char *head;
     int decimals;
 } cols[] = {
-    {"density_kg_m3", "density kg/m3", 1},
+    {"density_kg_m3", "in-situ kg/m3", 1},
+    {"density_uncertainty_kg_m3", "+-kg/m3", 1},
     {"baume", "deg Be", 2},
     {"temperature_c", "temp C", 1},
     {"depth_m", "depth m", 3},

@@ -13,7 +13,7 @@
 
 #include "cli_number.h"
 #include "commands.h"
-#include "hp_state_json.h"
+#include "hs_pond_doc.h"
 #include "hs_alarm.h"
 #include "hs_conf_transfer.h"
 #include "hs_config.h"
@@ -128,18 +128,21 @@ static void alarms_of(const struct alarm_list *l, const char *pond, char *buf, s
 static void print_table(const hs_site *site, hs_store *st, const struct alarm_list *alarms,
                         int64_t now)
 {
-    printf("site %s, %s\n", site->site.name, site->site.database);
-    printf("%-9s %-12s %-17s %8s %6s %7s %10s %9s %-8s %s\n", "POND", "ROLE", "STAGE",
-           "kg/m3", "Be", "LEVEL m", "VOLUME m3", "TO TARGET", "QUALITY", "ALARMS");
+    printf("site %s, %s; REF kg/m3 and Be at the reference temperature %g degC\n",
+           site->site.name, site->site.database, site->site.reference_temperature_c);
+    printf("%-9s %-12s %-17s %9s %6s %6s %7s %10s %9s %-8s %s\n", "POND", "ROLE", "STAGE",
+           "REF kg/m3", "+-", "Be", "LEVEL m", "VOLUME m3", "TO TARGET", "QUALITY", "ALARMS");
     for (size_t i = 0; i < site->n_ponds; i++) {
         const hs_pond *p = &site->ponds[i];
         hs_state_row row;
         int rc = hs_store_latest_state(st, p->name, &row);
-        char rho[16] = "-", be[16] = "-", lvl[16] = "-", vol[16] = "-", d[24] = "-";
+        char rho[16] = "-", u_rho[16] = "-", be[16] = "-", lvl[16] = "-", vol[16] = "-", d[24] = "-";
         char al[200];
         const char *stage = "-", *quality = rc == 0 ? hs_quality_name(row.quality) : "no data";
         if (rc == 0) {
-            num(rho, sizeof rho, row.state.density_kg_m3, 1);
+            /* the density decisions compare: at the reference temperature */
+            num(rho, sizeof rho, row.state.density_ref_kg_m3, 1);
+            num(u_rho, sizeof u_rho, row.state.density_uncertainty_kg_m3, 1);
             num(be, sizeof be, row.state.baume, 2);
             num(lvl, sizeof lvl, row.extra.depth_m, 3);
             num(vol, sizeof vol, row.extra.volume_m3, 0);
@@ -150,8 +153,8 @@ static void print_table(const hs_site *site, hs_store *st, const struct alarm_li
                 quality = "old";
         }
         alarms_of(alarms, p->name, al, sizeof al);
-        printf("%-9s %-12s %-17s %8s %6s %7s %10s %9s %-8s %s\n", p->name, hs_role_name(p->role),
-               stage, rho, be, lvl, vol, d, quality, al);
+        printf("%-9s %-12s %-17s %9s %6s %6s %7s %10s %9s %-8s %s\n", p->name,
+               hs_role_name(p->role), stage, rho, u_rho, be, lvl, vol, d, quality, al);
     }
     if (site->n_transfers > 0) {
         printf("\n%-16s %-18s %-8s %s\n", "TRANSFER", "FROM -> TO", "ADVICE", "REASONS");
@@ -180,24 +183,16 @@ static json_t *status_json(const hs_site *site, hs_store *st, const struct alarm
     for (size_t i = 0; i < site->n_ponds; i++) {
         const hs_pond *p = &site->ponds[i];
         hs_state_row row;
-        json_t *o;
+        struct hs_pond_doc d;
         if (hs_store_latest_state(st, p->name, &row) == 0) {
-            o = hp_state_to_json(&row.state);
-            json_object_set_new(o, "time_ms", json_integer(row.t_ms));
-            json_object_set_new(o, "quality", json_string(hs_quality_name(row.quality)));
-            json_object_set_new(o, "depth_m", isfinite(row.extra.depth_m) ? json_real(row.extra.depth_m) : json_null());
-            json_object_set_new(o, "volume_m3", isfinite(row.extra.volume_m3) ? json_real(row.extra.volume_m3) : json_null());
-            json_object_set_new(o, "days_to_target",
-                                json_pack("{s:o, s:o}", "low",
-                                          isfinite(row.extra.days_to_target_low) ? json_real(row.extra.days_to_target_low) : json_null(),
-                                          "high",
-                                          isfinite(row.extra.days_to_target_high) ? json_real(row.extra.days_to_target_high) : json_null()));
+            hs_pond_doc_from_row(&d, &row, p->name, hs_role_name(p->role));
         } else {
-            o = json_object();
-            json_object_set_new(o, "quality", json_string("no data"));
+            hs_pond_doc_init(&d);
+            d.pond = p->name;
+            d.role = hs_role_name(p->role);
+            d.note = "no stored state";
         }
-        json_object_set_new(o, "pond", json_string(p->name));
-        json_object_set_new(o, "role", json_string(hs_role_name(p->role)));
+        json_t *o = hs_pond_doc_json(&d);
         json_array_append_new(ponds, o);
     }
     for (size_t i = 0; i < site->n_transfers; i++) {
@@ -275,7 +270,7 @@ int hs_cmd_status(int argc, char **argv)
         rc = 1;
     } else if (json) {
         json_t *o = status_json(&site, st, &alarms);
-        char *text = json_dumps(o, JSON_COMPACT | JSON_REAL_PRECISION(10));
+        char *text = hs_doc_dumps(o);
         if (text)
             printf("%s\n", text);
         free(text);

@@ -21,6 +21,7 @@ int hs_cmd_brine(int argc, char **argv);
 int hs_cmd_path(int argc, char **argv);
 int hs_cmd_status(int argc, char **argv);
 int hs_cmd_forecast(int argc, char **argv);
+int hs_cmd_chain(int argc, char **argv);
 int hs_cmd_plan(int argc, char **argv);
 
 int hs_cmd_history(int argc, char **argv);
@@ -28,5 +29,7 @@ int hs_cmd_export(int argc, char **argv);
 int hs_cmd_ack(int argc, char **argv);
 int hs_cmd_calibrate(int argc, char **argv);
 int hs_cmd_user(int argc, char **argv);
+int hs_cmd_map(int argc, char **argv);
+int hs_cmd_backup(int argc, char **argv);
 
 #endif

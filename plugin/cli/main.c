@@ -9,7 +9,8 @@ static void usage(FILE *out)
     fprintf(out, "usage: halostage COMMAND [OPTIONS]\n\ncommands:\n");
     for (const struct hs_command *c = hs_commands; c->name != NULL; c++)
         fprintf(out, "  %-10s %s\n", c->name, c->summary);
-    fprintf(out, "\n`halostage COMMAND --help` describes one command.\n");
+    fprintf(out, "\n`halostage COMMAND --help` describes one command; "
+                 "`halostage --version` prints the version.\n");
 }
 
 int main(int argc, char **argv)
@@ -17,6 +18,10 @@ int main(int argc, char **argv)
     if (argc < 2) {
         usage(stderr);
         return 2;
+    }
+    if (strcmp(argv[1], "--version") == 0) {
+        printf("halostage %s\n", HS_VERSION);
+        return 0;
     }
     if (strcmp(argv[1], "help") == 0 || strcmp(argv[1], "--help") == 0 ||
         strcmp(argv[1], "-h") == 0) {

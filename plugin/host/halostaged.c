@@ -28,6 +28,7 @@ static void usage(FILE *out)
             "  --log-level L     error|warning|notice|info|debug (default info)\n"
             "  --emit-stdout     print every value the plugin emits, one per line\n"
             "  --run-for S       stop by itself after S seconds (demos, tests)\n"
+            "  --version         print the version and exit\n"
             "Signals: TERM/INT stop cleanly, HUP reloads the configuration.\n");
 }
 
@@ -54,6 +55,7 @@ int main(int argc, char **argv)
         {"once", no_argument, NULL, 'o'},
         {"json", no_argument, NULL, 'j'},
         {"help", no_argument, NULL, 'h'},
+        {"version", no_argument, NULL, 'V'},
         {NULL, 0, NULL, 0},
     };
     struct hs_host_options options = {0};
@@ -66,6 +68,7 @@ int main(int argc, char **argv)
         case 'c': options.config_path = optarg; break;
         case 'p': options.plugin_path = optarg; break;
         case 'e': options.emit_stdout = 1; break;
+        case 'V': printf("halostaged %s\n", HS_VERSION); return 0;
         case 'l':
             level = hs_host_log_level_from_name(optarg);
             if (level < 0) {

@@ -35,7 +35,8 @@ void hs_host_default_plugin_path(char *buf, size_t len)
                 return;
         }
     }
-    snprintf(buf, len, "/usr/local/lib/halostage/halostage.so");
+    /* Where `make install` or the package put it (PLUGINDIR at build time). */
+    snprintf(buf, len, "%s/halostage.so", HS_PLUGIN_DIR);
 }
 
 static int offered(int version)

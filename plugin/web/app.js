@@ -84,6 +84,9 @@ function span(lo, hi) {
   return `${(fin(a) && fin(b) ? (a + b) / 2 : fin(b) ? b : a).toFixed(1)} ${u}`;
 }
 
+/* {low, expected, high} of the pond-state document, or nothing known. */
+function range(r) { return r && typeof r === 'object' ? r : {}; }
+
 function ageText(s) {
   if (!fin(s)) return '';
   if (s < 90) return `${Math.round(s)} s ago`;
@@ -201,7 +204,10 @@ function schedule() {
 
 /* ---- routing ---- */
 
+function loggedIn() { return !!(S.me && (S.me.user || S.me.role === 'public')); }
+
 function route() {
+  if (!loggedIn()) return; /* the log-in form stays alone until then */
   const h = location.hash.replace(/^#\/?/, '').split('/');
   S.view = ['chain', 'pond', 'alarms'].includes(h[0]) ? h[0] : 'chain';
   if (S.view === 'pond' && h[1]) S.pond = decodeURIComponent(h[1]);
@@ -293,8 +299,8 @@ function pondCard(p) {
       el('div', { class: 'small', text: `${otherDensityText(p)} at ${tref()}` })),
     el('div', { class: 'facts' },
       el('span', {}, 'Level ', el('b', { text: fin(p.depth_m) ? `${p.depth_m.toFixed(2)} m` : '–' })),
-      el('span', {}, 'To target ', el('b', { text: span(p.days_to_target_low, p.days_to_target_high) })),
-      el('span', {}, 'Next stage in ', el('b', { text: span(p.days_to_next_stage, p.days_to_next_stage) })),
+      el('span', {}, 'To target ', el('b', { text: span(range(p.days_to_target).low, range(p.days_to_target).high) })),
+      el('span', {}, 'Next stage in ', el('b', { text: span(range(p.days_to_next_stage).low, range(p.days_to_next_stage).high) })),
       el('span', {}, 'Data ', el('b', { text: `${p.quality}${fin(p.age_s) ? ', ' + ageText(p.age_s) : ''}` }))),
     gauge(p));
   if ((p.alarms || []).length) li.append(el('div', { class: 'alarm-chips' }, ...p.alarms.map(alarmChip)));
@@ -526,8 +532,8 @@ function drawRest(al) {
   fc.replaceChildren(...S.doc.ponds.map((p) => el('tr', {},
     el('td', { text: p.pond }), el('td', {}, el('span', { class: `stage ${stageClass(p.stage)}`, text: p.stage || '–' })),
     el('td', { text: p.next_stage || '–' }),
-    el('td', { text: span(p.days_to_target_low, p.days_to_target_high) }),
-    el('td', { text: span(p.days_to_next_stage, p.days_to_next_stage) }))));
+    el('td', { text: span(range(p.days_to_target).low, range(p.days_to_target).high) }),
+    el('td', { text: span(range(p.days_to_next_stage).low, range(p.days_to_next_stage).high) }))));
   const jb = $('journal').tBodies[0];
   jb.replaceChildren(...(al.journal.length ? al.journal.slice(0, 200).map((j) => el('tr', { 'data-event': String(j.event_id) },
     el('td', { text: when(j.time_ms) }), el('td', { text: j.pond }), el('td', { text: j.rule }),

@@ -53,7 +53,7 @@ hs_wait_file_line() {
 }
 
 # hs_start_mosquitto PORT [EXTRA_CONF_LINES]: a private broker on loopback.
-# Sets HS_MOSQ_PID. Runs as root when started by root (see PITFALLS.md).
+# Sets HS_MOSQ_PID. Runs as root when started by root (it drops to the mosquitto user otherwise).
 hs_start_mosquitto() {
     local port=$1 extra=${2:-} conf="$HS_TMP/mosquitto-$1.conf"
     {

@@ -19,7 +19,7 @@ for f in practical_salinity salinity_g_kg density_kg_m3 temperature_c specific_g
          next_stage_density_kg_m3 saturation_index water_activity method warnings; do
     [ "$(field "$out" "'$f' in d")" = True ] || not_ok "JSON lacks $f"
 done
-ok "JSON carries every DESIGN.md brine-state field"
+ok "JSON carries every brine-state field"
 check "method and stage by name" \
     test "$(field "$out" 'd["method"] + "/" + d["stage"]')" = "pss78/seawater"
 # EOS-80 at S_P 34.99677, 15 degC (Millero & Poisson 1981) is 1025.9695 kg/m3 [C]

@@ -46,7 +46,7 @@ check "MQTT: a retained state for every pond reached a real subscriber" all_stat
 check "MQTT: gateway online" grep -q '^halostage/demo-works/gateway {.*"online":true' "$HS_TMP/mqtt.txt"
 check "MQTT: transfer advice published" hs_wait_file_line "$HS_TMP/mqtt.txt" '^halostage/demo-works/transfer/store-to-x1 ' 10
 
-# the payload is the DESIGN.md brine state plus level and quality
+# the payload is the brine state (hp_state_json.h) plus level and quality
 line=$(grep '^halostage/demo-works/pond/x1/state ' "$HS_TMP/mqtt.txt" | tail -1 | cut -d' ' -f2-)
 /usr/bin/python3 - "$line" <<'PY' >"$HS_TMP/x1.check" 2>&1
 import json, sys

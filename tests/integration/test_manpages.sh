@@ -44,7 +44,7 @@ n_keys=0
 missing_keys=""
 n_files=0
 for src in plugin/hs_conf_*.c; do
-    kind=$(grep -oE '\.kind = "[a-z]+"' "$src" | head -1 | sed -E 's/.*"(.*)"/\1/')
+    kind=$(grep -oE '\.kind = "[a-z_]+"' "$src" | head -1 | sed -E 's/.*"(.*)"/\1/')
     [ -n "$kind" ] || continue
     n_files=$((n_files + 1))
     text=$(section_text "$kind")
@@ -72,7 +72,7 @@ else
 fi
 
 # Every section kind the parser knows has a heading.
-for kind in $(grep -ohE '\.kind = "[a-z]+"' plugin/hs_conf_*.c | sed -E 's/.*"(.*)"/\1/'); do
+for kind in $(grep -ohE '\.kind = "[a-z_]+"' plugin/hs_conf_*.c | sed -E 's/.*"(.*)"/\1/'); do
     grep -q "^\.SH \[$kind" "$P5" || not_ok "$P5 has no .SH [$kind"
 done
 

@@ -26,7 +26,7 @@ mkcert() {
         -CAcreateserial -days 2 -out "$D/client.pem"
 }
 mkcert >"$D/openssl.log" 2>&1 || not_ok "openssl makes the test certificates"
-chmod 644 "$D"/*.key  # the broker may run as another user (PITFALLS.md)
+chmod 644 "$D"/*.key  # the broker may run as another user (mosquitto drops to its own user)
 
 printf 'gateway-7\n' >"$D/pw-good"
 printf 'not-it\n' >"$D/pw-bad"

@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # `halostage brine`, `halostage path` and `halostage calc` beyond seawater, as
 # a lab technician and a brine master run them. Sources beside each check:
-# [S] published, [C] computed with HMW84 (shared DOMAIN.md), [M] from memory.
+# [S] published, [C] computed with HMW84 (not itself published), [M] from memory.
 . "$(dirname "$0")/lib.sh"
 HS=$HS_BUILD/halostage
 PY=/usr/bin/python3
@@ -70,7 +70,7 @@ check "path --json exits 0" test $? -eq 0
 check "path reaches bischofite" test "$(field "$out" 'd["complete"]')" = True
 # Stage sequence from carbonate (aragonite, field onset CF 1.5-2, DOMAIN 7
 # [S]) and gypsum through halite into the magnesium and potash salts to
-# bischofite (DESIGN.md order; HMW84 fractional path [C]).
+# bischofite (stage order of hc_state.h; HMW84 fractional path [C]).
 check "stage sequence carbonate..bischofite" test "$(field "$out" \
     '" ".join(dict.fromkeys(s["stage"] for s in d["steps"]))')" = \
     "seawater carbonate gypsum halite magnesium-sulfate potash bischofite"

@@ -218,7 +218,7 @@ void sim_model_step(sim *s, double dt_s)
         const hs_pond *p = &s->site.ponds[i];
         q->temperature_c = 22.0 + 6.0 * season + 7.0 * (sun - 0.3);
         /* 6 mm/day mean, twice as fast at noon, slower in salty brine (water
-         * activity falls to ~0.75 at halite saturation, DOMAIN.md §10). */
+         * activity falls to ~0.75 at halite saturation, Salhotra et al. 1985). */
         double activity = 1.0 - 0.25 * fmin(1.0, (q->cf - 1.0) / 10.0);
         double evap_m_s = 6e-3 / 86400.0 * (1.0 + 0.4 * season) * 2.0 * sun * activity;
         double before = q->depth_m;

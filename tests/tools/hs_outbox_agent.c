@@ -168,6 +168,7 @@ int main(int argc, char **argv)
     while (!stop && now_ms() - start < timeout_s * 1000) {
         if (generated < alarms && now_ms() >= next) {
             s.density_kg_m3 = generated % 2 == 0 ? 1250.0 : 1150.0;
+            s.density_ref_kg_m3 = s.density_kg_m3; /* what the band compares */
             hs_alarm_update(eng, "east-1", &in, now_ms(), hs_alarm_sink_emit, &sink);
             generated++;
             next += pace_ms;

@@ -65,11 +65,28 @@ static hs_alarm_rule band_rule(void)
     return r;
 }
 
+/* rho is the density at the reference temperature, the one rules compare;
+ * the in-situ density is set apart from it so that a rule reading the
+ * wrong one fails these tests. */
+static void feed_both(hs_alarm_engine *eng, double rho_ref, double rho_insitu, int64_t t,
+                      struct log *l)
+{
+    hc_brine_state s;
+    hc_state_clear(&s);
+    s.density_ref_kg_m3 = rho_ref;
+    s.density_kg_m3 = rho_insitu;
+    hs_alarm_input in;
+    hs_alarm_input_clear(&in);
+    in.state = &s;
+    assert_int_equal(hs_alarm_update(eng, "east-2", &in, t, record, l), HS_ALARM_DONE);
+}
+
 static void feed(hs_alarm_engine *eng, double rho, int64_t t, struct log *l)
 {
     hc_brine_state s;
     hc_state_clear(&s);
-    s.density_kg_m3 = rho;
+    s.density_ref_kg_m3 = rho;
+    s.density_kg_m3 = rho - 40.0;
     hs_alarm_input in;
     hs_alarm_input_clear(&in);
     in.state = &s;
@@ -302,6 +319,35 @@ static void density_fall_and_stale(void **unused)
     hs_alarm_free(eng);
 }
 
+/* The afternoon warms a pond from 15 to 35 degC: its in-situ density falls
+ * about 8 kg/m3 (a 1.09 SG brine; EOS-80 thermal expansion, UNESCO 1981)
+ * while its brine, and so its density at the reference temperature, stays
+ * the same. No density-fall and no band alarm; a real fall of the
+ * reference density (rain) with the in-situ density flat still raises. */
+static void warm_afternoon_is_not_rain(void **unused)
+{
+    (void)unused;
+    hs_alarm_rule fall, band = band_rule();
+    hs_alarm_rule_default(&fall, HS_RULE_DENSITY_FALL);
+    snprintf(fall.name, sizeof fall.name, "rain");
+    band.low = 1085.0;
+    band.high = 1100.0;
+    band.on_delay_ms = 0;
+    hs_alarm_engine *eng = engine_with(&fall, 1);
+    assert_int_equal(hs_alarm_add(eng, &band, "east-2"), HS_ALARM_DONE);
+    struct log l = {0};
+    for (int i = 0; i <= 120; i++) { /* two hours, warming then cooling */
+        double warm = i <= 60 ? i / 60.0 : (120 - i) / 60.0;
+        feed_both(eng, 1090.0, 1090.0 - 8.0 * warm, (int64_t)i * 60000, &l);
+    }
+    assert_int_equal(l.n, 0);
+    for (int i = 0; i < 20; i++) /* rain: 6 kg/m3 down at reference temperature */
+        feed_both(eng, 1090.0 - 0.3 * i, 1090.0, 7200000 + (int64_t)i * 60000, &l);
+    assert_true(l.n >= 1);
+    assert_int_equal(l.ev[0].kind, HS_RULE_DENSITY_FALL);
+    hs_alarm_free(eng);
+}
+
 static void restore_after_restart(void **unused)
 {
     (void)unused;
@@ -349,7 +395,7 @@ static void names_and_checks(void **unused)
     assert_true(fabs(r.high - 29.0) < 1e-12);
     assert_int_equal(r.quantity, HS_QTY_BAUME);
     /* Crystalliser feed: 25 deg Be, below the 25.5-26 of common practice,
-     * no source (shared/DOMAIN.md section 11). */
+     * no source. */
     hs_alarm_rule_default(&r, HS_RULE_GYPSUM_IN_FEED);
     assert_true(fabs(r.low - 25.0) < 1e-12);
 }
@@ -364,6 +410,7 @@ int main(void)
         cmocka_unit_test(suppressed_and_out_of_service),
         cmocka_unit_test(ack_by_event_id),
         cmocka_unit_test(density_fall_and_stale),
+        cmocka_unit_test(warm_afternoon_is_not_rain),
         cmocka_unit_test(restore_after_restart),
         cmocka_unit_test(names_and_checks),
     };

@@ -158,13 +158,13 @@ static void evaporation_slows_with_activity(void **unused)
     assert_true(f < 0);
     assert_int_equal(hc_evaporation_activity_factor(1.1, 0.5, &f), HC_ERR_DOMAIN);
     assert_int_equal(hc_evaporation_activity_factor(0.9, 1.0, &f), HC_ERR_DOMAIN);
-    /* Seawater a_w 0.98 (DOMAIN.md 10), pan 10 mm/day, pan coefficient 0.7
+    /* Seawater a_w 0.98 (Salhotra et al. 1985; from memory), pan 10 mm/day, pan coefficient 0.7
      * (Kohler, Nordenson & Fox 1955, from memory), RH 0.6: by hand
      * 10 * 0.7 * (0.38 / 0.4) = 6.65 mm/day. */
     double e;
     assert_int_equal(hc_evaporation_expected(10, 0.7, 0.98, 0.6, &e), HC_OK);
     assert_near(e, 6.65, 1e-12);
-    /* Halite-point brine (a_w 0.75, DOMAIN.md 10) under the same weather:
+    /* Halite-point brine (a_w 0.75, HMW84 halite point [C]) under the same weather:
      * 10 * 0.7 * (0.15 / 0.4) = 2.625 mm/day. */
     assert_int_equal(hc_evaporation_expected(10, 0.7, 0.75, 0.6, &e), HC_OK);
     assert_near(e, 2.625, 1e-12);

@@ -31,7 +31,7 @@ static void definition(void **unused)
 static void domain_table_modulus_145(void **unused)
 {
     (void)unused;
-    /* DOMAIN.md section 3 conversion table with m = 145, computed from the
+    /* The heavy-liquid conversion table with m = 145, computed from the
      * definition [C], given to 2 decimals; 1.2185 <-> 26.0 is also the
      * published halite point (Baseggio 1974, 4th Symp. on Salt) [S]. */
     static const struct { double sg, be; } cv[] = {

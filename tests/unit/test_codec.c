@@ -2,7 +2,7 @@
  * Vectors are hand-computed from IEEE 754 binary32/binary64 bit patterns and
  * two's complement; word/byte orders follow the usual ABCD naming (A = most
  * significant byte). libmodbus 3.1.6's float getters, which are correct
- * (PITFALLS.md; only its setters are wrong), serve as an independent
+ * (libmodbus 3.1.6: only its setters are wrong), serve as an independent
  * cross-check. */
 #include <math.h>
 #include <setjmp.h>

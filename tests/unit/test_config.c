@@ -99,6 +99,41 @@ static void valid_file_loads(void **state)
     hs_site_free(&site);
 }
 
+/* BASE's [site] (lines 1-3) with extra keys after it (line 4 on); the rest of
+ * BASE follows, shifted by the number of extra lines. */
+#define SITE_THEN(extra) "[site]\nname = test-works\nlatitude = 10\n" extra \
+    "[bus plc]\ntype = tcp\nhost = 127.0.0.1\nport = 1502\nunit_ids = 1\n" \
+    "[pond a]\nrole = concentrator\narea = 2 ha\n"
+
+static void retention_keys(void **state)
+{
+    (void)state;
+    hs_site site;
+    hs_diag diag;
+    conf_write_file(cd.path, SITE_THEN(""));
+    assert_int_equal(hs_site_load(cd.path, &site, &diag), 0);
+    assert_int_equal(site.site.raw_retention_ms, 30LL * 86400000);     /* defaults */
+    assert_int_equal(site.site.minute_retention_ms, 400LL * 86400000);
+    assert_int_equal(site.site.hour_retention_ms, 3650LL * 86400000);
+    hs_site_free(&site);
+    conf_write_file(cd.path, SITE_THEN("raw_retention = 7d\nminute_retention = 90d\n"
+                                       "hour_retention = 20000d\n"));
+    assert_int_equal(hs_site_load(cd.path, &site, &diag), 0);
+    assert_int_equal(site.site.raw_retention_ms, 7LL * 86400000);
+    assert_int_equal(site.site.minute_retention_ms, 90LL * 86400000);
+    assert_int_equal(site.site.hour_retention_ms, 20000LL * 86400000);
+    hs_site_free(&site);
+}
+static void retention_order(void **s)
+{
+    (void)s;
+    expect_error(SITE_THEN("raw_retention = 60d\nminute_retention = 30d\n"), 5,
+                 "minute_retention: shorter than raw_retention");
+    expect_error(SITE_THEN("hour_retention = 100d\n"), 4,
+                 "hour_retention: shorter than minute_retention");
+    expect_error(SITE_THEN("raw_retention = 12h\n"), 4, "raw_retention");
+}
+
 static void unknown_section(void **s)  { (void)s; expect_error(BASE "[pump x]\n", 23, "unknown section [pump]"); }
 static void unknown_key(void **s)      { (void)s; expect_error(BASE "colour = red\n", 23, "unknown key 'colour'"); }
 static void duplicate_key(void **s)    { (void)s; expect_error(BASE "unit = mS/cm\n", 23, "duplicate key 'unit'"); }
@@ -249,6 +284,34 @@ static void feed_converts(void **s)
     assert_int_equal(site.ponds[0].feed_index, -1);
     hs_site_free(&site);
 }
+/* Bands in the trade's units: degree Baume on the heavy-liquid scale with
+ * the site's modulus, SG = m / (m - Be) (NBS Circular 59, 1916), and SG
+ * t_ref/t_ref, both turned into kg/m3 at the reference temperature (20 degC
+ * here) with pure water 998.207 kg/m3 at 20 degC (Kell 1975, J. Chem. Eng.
+ * Data 20, 97). A bare number is refused as ambiguous, with its line. */
+static void reference_density_scales(void **s)
+{
+    (void)s;
+    hs_site site;
+    hs_diag diag;
+    conf_write_file(cd.path, BASE "[pond c]\nrole = bittern\narea = 1 ha\n"
+                    "density_in = 1.150 SG\ndensity_out = 25.5 Be\n"
+                    "[pond d]\nrole = bittern\narea = 1 ha\ndensity_in = 1.2 g/cm3\n"
+                    "density_out = 1230 kg/m3\n");
+    assert_int_equal(hs_site_load(cd.path, &site, &diag), 0);
+    assert_double_equal(site.ponds[2].density_in_kg_m3, 1.150 * 998.207, 0.05);
+    assert_double_equal(site.ponds[2].density_out_kg_m3, 145.0 / (145.0 - 25.5) * 998.207, 0.05);
+    assert_double_equal(site.ponds[3].density_in_kg_m3, 1200.0, 1e-9);
+    hs_site_free(&site);
+    expect_error(BASE "[pond c]\nrole = bittern\narea = 1 ha\ndensity_out = 1.25\n", 26,
+                 "density_out: '1.25' is ambiguous");
+    expect_error(BASE "[pond c]\nrole = bittern\narea = 1 ha\ndensity_out = 80 Be\n", 26,
+                 "density_out: SG 2.23");
+    expect_error(BASE "[pond c]\nrole = bittern\narea = 1 ha\ndensity_out = 150 Be\n", 26,
+                 "not on the heavy-liquid scale of modulus 145");
+    expect_error(BASE "[pond c]\nrole = bittern\narea = 1 ha\ndensity_out = 25 furlongs\n", 26,
+                 "unknown unit 'furlongs'");
+}
 static void long_line(void **s)
 {
     (void)s;
@@ -320,8 +383,10 @@ int main(void)
         cmocka_unit_test(stage_storage_missing), cmocka_unit_test(malformed_lines),
         cmocka_unit_test(indented_keys_are_keys), cmocka_unit_test(feed_checks),
         cmocka_unit_test(feed_converts), cmocka_unit_test(long_line),
+        cmocka_unit_test(reference_density_scales),
         cmocka_unit_test(missing_file), cmocka_unit_test(all_errors_reported),
         cmocka_unit_test(reference_shows_every_key),
+        cmocka_unit_test(retention_keys), cmocka_unit_test(retention_order),
     };
     return cmocka_run_group_tests(tests, make_dir, remove_dir);
 }

@@ -41,7 +41,7 @@ static void pure_water(void **unused)
      * value above). At 60 degF (15.556 degC) TEOS-10 gsw 3.6
      * rho_t_exact(0, 15.5556, 0) = 999.01707 [C]; SMOW and the IAPWS pure
      * water of TEOS-10 differ by about 0.002 kg/m3 there, so allow 0.0025.
-     * (DOMAIN.md's 999.014 [C] comes from an unnamed model; SMOW gives
+     * (a quoted 999.014 comes from an unnamed model; SMOW gives
      * 999.0154.) */
     assert_near(hc_eos80_rho_water(t90(25.0)), 997.04796, 6e-6);
     assert_near(hc_eos80_rho_water((60.0 - 32.0) * 5.0 / 9.0), 999.01707, 0.0025);

@@ -64,7 +64,7 @@ static void curve_is_sound(void **unused)
         double total = p.dissolved_kg_per_kg_water / cfs[i] + p.deposited_kg_per_kg_feed_water;
         assert_near(total, p0.dissolved_kg_per_kg_water, 6e-4);
     }
-    /* Nothing deposits before aragonite (field onset CF 1.5-2, DOMAIN.md 7
+    /* Nothing deposits before aragonite (field onset CF 1.5-2, field brines
      * [S]); before gypsum (HMW84 fractional onset CF 3.4 [C]) only CaCO3,
      * about 0.1 g per kg: Usiglio (1849) found 0.117 g of CaCO3 with Fe2O3
      * per litre of Mediterranean water [M]. Accept 0.07-0.12 g. */

@@ -40,7 +40,7 @@ static void depth_uses_brine_density(void **unused)
     double d;
     assert_int_equal(hc_depth_from_pressure(11858, 1210, 9.80, 0.05, &d), HC_OK);
     assert_near(d, 1.05, 1e-12);
-    /* DOMAIN.md 10 (hydrostatics): reading 1.25 brine as water overstates the
+    /* Hydrostatics: reading 1.25 brine as water overstates the
      * depth by 25 %. */
     double as_water, as_brine;
     hc_depth_from_pressure(9806.65, 1000, 9.80665, 0, &as_water);

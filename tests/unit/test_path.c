@@ -80,7 +80,7 @@ static void halite_onset(void **unused)
 static void late_onsets_and_stage_order(void **unused)
 {
     (void)unused;
-    /* Stages in DESIGN.md order, each beginning later than the one before. */
+    /* Stages in hc_stage order, each beginning later than the one before. */
     const hc_stage order[] = {HC_STAGE_CARBONATE, HC_STAGE_GYPSUM, HC_STAGE_HALITE,
                               HC_STAGE_MAGNESIUM_SULFATE, HC_STAGE_POTASH, HC_STAGE_BISCHOFITE};
     double prev = 1.0;

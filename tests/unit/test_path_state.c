@@ -81,9 +81,13 @@ static void out_of_path_warnings(void **unused)
     hc_brine_state s;
     assert_int_equal(hc_path_state_from_density(path, 1010.0, 25.0, 15.556, 145.0, &s), HC_OK);
     assert_true(s.warnings & HC_WARN_BELOW_FEED);
-    assert_true(fabs(s.concentration_factor - 1.0) < 1e-12);
+    /* the measurement stays; the path cannot place it: CF unknown, first stage */
+    assert_true(fabs(s.density_kg_m3 - 1010.0) < 1e-9);
+    assert_true(isnan(s.concentration_factor));
+    assert_int_equal(s.stage, HC_STAGE_SEAWATER);
     assert_int_equal(hc_path_state_from_density(path, 1400.0, 25.0, 15.556, 145.0, &s), HC_OK);
     assert_true(s.warnings & HC_WARN_BEYOND_PATH);
+    assert_true(fabs(s.density_kg_m3 - 1400.0) < 1e-9);
     assert_int_equal(s.stage, HC_STAGE_BISCHOFITE);
     assert_int_equal(s.next_stage, HC_STAGE_NONE);
     assert_int_equal(hc_path_state_from_density(path, NAN, 25.0, 15.556, 145.0, &s),
@@ -122,7 +126,7 @@ static void state_from_conductivity_model(void **unused)
     assert_false(s.warnings & HC_WARN_CONDUCTIVITY_WEAK);
     assert_true(s.concentration_factor > 2.0 && s.concentration_factor < 8.0);
     /* Near halite saturation conductivity says little: warned, density preferred
-     * (DESIGN.md "Where the brine state comes from"). */
+     * (plugin/README.md "Where a pond's density comes from"). */
     assert_int_equal(hc_path_state_from_conductivity(path, 260.0, 25.0, 15.556, 145.0, NULL, &s),
                      HC_OK);
     assert_true(s.warnings & HC_WARN_CONDUCTIVITY_WEAK);

@@ -1,6 +1,6 @@
 /* Pitzer model (HMW84 with E-theta) and mineral solubilities.
  * Sources are named beside each check: [S] published, [C] computed with the
- * published model, [M] from memory (see shared DOMAIN.md flags). */
+ * published model, [M] from memory (flags as in tests/README.md). */
 #include <math.h>
 #include <setjmp.h>
 #include <stdarg.h>

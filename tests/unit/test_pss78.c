@@ -130,7 +130,7 @@ static void forward_errors(void **unused)
     assert_int_equal(hc_pss78_sp_from_c(40, 15, -0.01, &s, &w), HC_ERR_PRESSURE_RANGE);
     assert_int_equal(hc_pss78_sp_from_c(40, 15, 10000.01, &s, &w), HC_ERR_PRESSURE_RANGE);
     /* 70 mS/cm at 25 degC is S ~ 49: beyond PSS-78, refused, never
-     * extrapolated (gsw would extrapolate; DOMAIN.md section 1). */
+     * extrapolated (gsw would extrapolate). */
     assert_int_equal(hc_pss78_sp_from_c(70, 25, 0, &s, &w), HC_ERR_SALINITY_RANGE);
     assert_int_equal(hc_pss78_sp_from_c(200, 25, 0, &s, &w), HC_ERR_SALINITY_RANGE);
     /* outputs untouched on failure */

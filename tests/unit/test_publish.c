@@ -9,6 +9,7 @@
 #include <string.h>
 #include <cmocka.h>
 
+#include "hs_pond_doc.h"
 #include "hs_publish.h"
 
 static void topics_refuse_wildcards(void **unused)
@@ -44,26 +45,75 @@ static void iso_times_are_utc(void **unused)
     assert_string_equal(buf, "1970-01-01T00:00:00.000Z");
 }
 
-static void state_payload_carries_units(void **unused)
+/* The pond-state document: unknown is null, units in the names, one shape
+ * of the day counts, and numbers with their digits, not binary noise. */
+static void pond_doc_shape_and_digits(void **unused)
 {
     (void)unused;
-    hc_brine_state s;
-    hc_state_clear(&s);
-    s.density_kg_m3 = 1212.5;
-    s.stage = HC_STAGE_HALITE;
-    hs_pond_extra x;
-    hs_pond_extra_clear(&x);
-    x.depth_m = 0.31;
-    json_t *o = hs_state_payload("crys-1", INT64_C(1767225600000), &s, &x, HS_QUALITY_GOOD);
+    struct hs_pond_doc d;
+    hs_pond_doc_init(&d);
+    d.pond = "crys-1";
+    d.role = "crystalliser";
+    d.t_ms = INT64_C(1767225600000);
+    d.quality = HS_QUALITY_GOOD;
+    d.state.density_kg_m3 = 1212.5;
+    d.state.temperature_c = 16.9 + 2e-15; /* 16.900000000000002 in %.17g */
+    d.state.stage = HC_STAGE_HALITE;
+    d.hydro.depth_m = 0.31;
+    d.hydro.days_to_target_low = 3.0;
+    d.hydro.days_to_target_high = 7.123456789;
+    json_t *o = hs_pond_doc_json(&d);
     assert_non_null(o);
     assert_true(fabs(json_real_value(json_object_get(o, "density_kg_m3")) - 1212.5) < 1e-12);
-    assert_true(json_is_null(json_object_get(o, "temperature_c"))); /* unknown: null */
-    assert_true(fabs(json_real_value(json_object_get(o, "depth_m")) - 0.31) < 1e-12);
+    assert_true(json_is_null(json_object_get(o, "practical_salinity"))); /* unknown: null */
     assert_true(json_is_null(json_object_get(o, "volume_m3")));
+    assert_true(json_is_null(json_object_get(o, "level_quality")));
+    assert_true(json_is_null(json_object_get(o, "note")));
     assert_string_equal(json_string_value(json_object_get(o, "stage")), "halite");
     assert_string_equal(json_string_value(json_object_get(o, "quality")), "good");
+    assert_string_equal(json_string_value(json_object_get(o, "role")), "crystalliser");
     assert_string_equal(json_string_value(json_object_get(o, "time")), "2026-01-01T00:00:00.000Z");
+    json_t *days = json_object_get(o, "days_to_target");
+    assert_true(json_is_object(days)); /* one shape: {low, expected, high} */
+    assert_true(json_is_null(json_object_get(days, "expected")));
+    assert_null(json_object_get(o, "days_to_target_low"));
+    char *text = hs_doc_dumps(o);
+    assert_non_null(text);
+    assert_non_null(strstr(text, "\"temperature_c\":16.9,"));
+    assert_non_null(strstr(text, "\"high\":7.123}")); /* a forecast: 4 digits */
+    assert_non_null(strstr(text, "\"depth_m\":0.31,"));
+    assert_null(strstr(text, "0000000"));
+    free(text);
     json_decref(o);
+}
+
+/* A stored row gives the same keys, in the same order, as a live one. */
+static void pond_doc_from_row_same_keys(void **unused)
+{
+    (void)unused;
+    struct hs_pond_doc live, stored;
+    hs_pond_doc_init(&live);
+    live.pond = "a";
+    hs_state_row row;
+    memset(&row, 0, sizeof row);
+    hc_state_clear(&row.state);
+    hs_pond_extra_clear(&row.extra);
+    row.t_ms = 1000;
+    row.extra.volume_m3 = 1234567.891;
+    row.extra.dissolved_salt_t = 55.5;
+    hs_pond_doc_from_row(&stored, &row, "a", NULL);
+    json_t *a = hs_pond_doc_json(&live), *b = hs_pond_doc_json(&stored);
+    assert_int_equal(json_object_size(a), json_object_size(b));
+    void *ia = json_object_iter(a), *ib = json_object_iter(b);
+    for (; ia != NULL && ib != NULL; ia = json_object_iter_next(a, ia),
+                                     ib = json_object_iter_next(b, ib))
+        assert_string_equal(json_object_iter_key(ia), json_object_iter_key(ib));
+    char *text = hs_doc_dumps(b);
+    assert_non_null(strstr(text, "\"volume_m3\":1234568.0,"));
+    assert_non_null(strstr(text, "\"dissolved_salt_t\":55.5,"));
+    free(text);
+    json_decref(a);
+    json_decref(b);
 }
 
 static void alarm_payload_fields(void **unused)
@@ -121,7 +171,8 @@ int main(void)
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(topics_refuse_wildcards),
         cmocka_unit_test(iso_times_are_utc),
-        cmocka_unit_test(state_payload_carries_units),
+        cmocka_unit_test(pond_doc_shape_and_digits),
+        cmocka_unit_test(pond_doc_from_row_same_keys),
         cmocka_unit_test(alarm_payload_fields),
         cmocka_unit_test(link_options_checked),
     };

@@ -15,7 +15,7 @@ static void reference_composition_at_35(void **unused)
 {
     (void)unused;
     /* Millero et al. (2008) Deep-Sea Res. I 55, 50, table 4, converted to
-     * mol per kg of water at S_P = 35 (DOMAIN.md section 4 [C], 4 figures). */
+     * mol per kg of water at S_P = 35 (Millero et al. 2008 composition [C], 4 figures). */
     static const struct { hc_sw_ion ion; double m, tol; } cv[] = {
         {HC_SW_NA, 0.4861, 5e-5}, {HC_SW_K, 0.01058, 5e-6}, {HC_SW_MG, 0.05474, 5e-6},
         {HC_SW_CA, 0.01066, 5e-6}, {HC_SW_SO4, 0.02926, 5e-6}, {HC_SW_CL, 0.5658, 5e-5},
@@ -60,7 +60,7 @@ static void lumping_rule(void **unused)
     assert_int_equal(hc_seawater_composition(35.0, HC_SW_LUMP, &lump), HC_OK);
     assert_int_equal(hc_seawater_composition(35.0, HC_SW_LUMP | HC_SW_DROP_CARBONATE, &dry),
                      HC_OK);
-    /* Sr into Ca, Br into Cl (DOMAIN.md section 4 lumping rule) */
+    /* Sr into Ca, Br into Cl (the usual lumping rule for this model) */
     assert_near(lump.molality[HC_SW_SR], 0.0, 0.0);
     assert_near(lump.molality[HC_SW_BR], 0.0, 0.0);
     assert_near(lump.molality[HC_SW_CA], full.molality[HC_SW_CA] + full.molality[HC_SW_SR],
@@ -106,7 +106,7 @@ static void concentration_factor(void **unused)
     assert_near(cf, 1.0, 1e-15);
     assert_int_equal(hc_seawater_cf(0.0, 35.0, &cf), HC_OK);
     assert_near(cf, 0.0, 0.0);
-    /* CF is the ratio of water masses (DOMAIN.md section 7): 1 kg of S_P 35
+    /* CF is the ratio of water masses (definition): 1 kg of S_P 35
      * seawater holds 964.835 g water; at S_P 40 the same salt (35.16504 g)
      * sits in 35.16504 (1000 - S_R40) / S_R40 g water. */
     assert_int_equal(hc_seawater_cf(40.0, 35.0, &cf), HC_OK);
@@ -151,7 +151,7 @@ static void state_from_conductivity(void **unused)
 static void sg_uses_reference_temperature(void **unused)
 {
     (void)unused;
-    /* DOMAIN.md section 3: SG at t_ref needs the density at t_ref for the
+    /* Heavy-liquid SG: SG at t_ref needs the density at t_ref for the
      * same composition. The same water measured warm and cold has one SG. */
     hc_brine_state warm, cold;
     assert_int_equal(hc_seawater_state_from_sp(38.0, 35.0, 0.0, NULL, &warm), HC_OK);

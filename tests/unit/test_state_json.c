@@ -1,4 +1,4 @@
-/* JSON form of a brine state: every DESIGN.md field, null for unknowns,
+/* JSON form of a brine state: every brine-state field, null for unknowns,
  * names for stages, methods and warnings. A format contract, no science. */
 #include <math.h>
 #include <setjmp.h>
@@ -35,8 +35,12 @@ static void cleared_state_is_all_null(void **unused)
     assert_string_equal(json_string_value(json_object_get(o, "method")), "none");
     assert_int_equal(json_object_size(json_object_get(o, "saturation_index")), 0);
     assert_int_equal(json_array_size(json_object_get(o, "warnings")), 0);
-    /* 15 DESIGN.md fields plus baume_modulus, nothing else */
-    assert_int_equal(json_object_size(o), 16);
+    /* 15 brine-state fields plus baume_modulus, the two densities at the
+     * reference temperature and four uncertainties, nothing else */
+    assert_int_equal(json_object_size(o), 22);
+    assert_true(json_is_null(json_object_get(o, "density_ref_kg_m3")));
+    assert_true(json_is_null(json_object_get(o, "next_stage_density_ref_kg_m3")));
+    assert_true(json_is_null(json_object_get(o, "density_uncertainty_kg_m3")));
     json_decref(o);
 }
 

@@ -97,10 +97,14 @@ static void migrates_an_older_file(void **unused)
     hs_store *st = open_writer(NULL);
     hs_store_close(st);
     /* Make it look like a version-1 file: the rollup index that version 2
-     * drops, and the old version number. */
+     * drops, no uncertainty columns (version 3), and the old version number. */
     sqlite3 *db;
     assert_int_equal(sqlite3_open(path, &db), SQLITE_OK);
     assert_int_equal(sqlite3_exec(db, "CREATE INDEX rollup_step_t ON rollup(step_s, t_ms);"
+                                      "ALTER TABLE pond_state DROP COLUMN density_uncertainty_kg_m3;"
+                                      "ALTER TABLE pond_state DROP COLUMN sg_uncertainty;"
+                                      "ALTER TABLE pond_state DROP COLUMN baume_uncertainty;"
+                                      "ALTER TABLE pond_state DROP COLUMN cf_uncertainty;"
                                       "PRAGMA user_version = 1;", NULL, NULL, NULL), SQLITE_OK);
     sqlite3_close(db);
     char err[256];
@@ -111,6 +115,8 @@ static void migrates_an_older_file(void **unused)
     assert_int_equal(scalar("PRAGMA user_version"), hs_store_schema_version());
     assert_int_equal(scalar("SELECT count(*) FROM sqlite_master WHERE name = 'rollup_step_t'"),
                      0);
+    assert_int_equal(scalar("SELECT count(*) FROM pragma_table_info('pond_state')"
+                            " WHERE name LIKE '%uncertainty%'"), 4);
 }
 
 static void wal_and_strict(void **unused)

@@ -1,0 +1,95 @@
+/* The runtime's SCADA outlets: the read-only Modbus server and the
+ * Sparkplug B edge node, each in its own thread, each fed from the runtime's
+ * thread with what the pond-state document and the transfer advice say.
+ * Neither has a way back: the Modbus server gets only a read function over
+ * the register image, the edge node only accepts a rebirth request; nothing
+ * here reaches hs_rt_write() or a bus. */
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "hs_conf_scada.h"
+#include "hs_log.h"
+#include "hs_runtime_private.h"
+
+int hs_rt_scada_open(hs_runtime *rt)
+{
+    const hs_modbus_server_conf *m = rt->site.modbus_server;
+    rt->mb_image = NULL;
+    rt->mb_server = NULL;
+    if (m == NULL)
+        return 0;
+    hp_order order = m->word_order ? HP_ORDER_LITTLE : HP_ORDER_BIG;
+    rt->mb_image = hs_mb_image_new(rt->site.n_ponds, rt->site.n_transfers, order);
+    if (rt->mb_image == NULL) {
+        hs_log(HSP_LOG_ERR, "[modbus_server]: cannot build the register map");
+        return -1;
+    }
+    hp_mbserver_options opt = {
+        .listen = m->listen, .unit_id = m->unit_id, .max_clients = m->max_clients,
+        .idle_timeout_ms = (int)m->idle_timeout_ms, .allow = &m->acl,
+        .read = hs_mb_image_read, .ctx = rt->mb_image,
+    };
+    char err[256];
+    rt->mb_server = hp_mbserver_start(&opt, err, sizeof err);
+    if (rt->mb_server == NULL) {
+        hs_log(HSP_LOG_ERR, "%s:%d: [modbus_server]: %s", rt->site.path, m->line, err);
+        hs_mb_image_free(rt->mb_image);
+        rt->mb_image = NULL;
+        return -1;
+    }
+    hs_log(HSP_LOG_NOTICE, "Modbus server (read-only) on %s, unit %u, %s word order%s%s",
+           m->listen, m->unit_id, hs_word_order_names[m->word_order],
+           m->allow[0] ? ", clients " : "", m->allow);
+    return 0;
+}
+
+void hs_rt_scada_close(hs_runtime *rt)
+{
+    hp_mbserver_stop(rt->mb_server); /* first: the server reads the image */
+    rt->mb_server = NULL;
+    hs_mb_image_free(rt->mb_image);
+    rt->mb_image = NULL;
+}
+
+static uint16_t alarm_bits(const hs_runtime *rt, const char *pond)
+{
+    uint16_t bits = 0;
+    for (size_t i = 0; rt->alarms != NULL && i < hs_alarm_count(rt->alarms); i++) {
+        hs_alarm_info info;
+        if (hs_alarm_get(rt->alarms, i, &info) == 0 && info.active &&
+            strcmp(info.pond, pond) == 0 && info.kind < 16)
+            bits |= (uint16_t)(1u << info.kind);
+    }
+    return bits;
+}
+
+void hs_rt_scada_pond(hs_runtime *rt, size_t pond, const json_t *doc)
+{
+    if (rt->mb_image == NULL)
+        return;
+    hs_scada_pond p;
+    hs_scada_pond_clear(&p);
+    hs_scada_pond_from_doc(&p, doc);
+    p.code[HS_CODE_ALARM_BITS] = alarm_bits(rt, rt->site.ponds[pond].name);
+    hs_mb_image_pond(rt->mb_image, pond, &p);
+}
+
+void hs_rt_scada_transfer(hs_runtime *rt, size_t i)
+{
+    if (rt->mb_image == NULL)
+        return;
+    const struct hs_rt_transfer *x = &rt->transfers[i];
+    hs_scada_transfer t = {
+        .advice = x->have_last ? (uint16_t)x->last.advice : 0xFFFF,
+        .pump_on = x->have_last && x->last.pump_on ? 1 : 0,
+        .reasons = x->have_last ? x->last.reasons : 0,
+    };
+    hs_mb_image_transfer(rt->mb_image, i, &t);
+}
+
+void hs_rt_scada_beat(hs_runtime *rt, int64_t now_ms)
+{
+    if (rt->mb_image != NULL)
+        hs_mb_image_beat(rt->mb_image, (uint32_t)(now_ms / 1000));
+}
