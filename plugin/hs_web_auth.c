@@ -176,7 +176,7 @@ static void client_key(struct hs_web_call *c, const char *name, char *key, size_
             inet_ntop(AF_INET6, &((const struct sockaddr_in6 *)(const void *)sa)->sin6_addr,
                       addr, sizeof addr);
     }
-    snprintf(key, len, "%s|%.40s", addr, name);
+    snprintf(key, len, "%.50s|%.40s", addr, name); /* INET6_ADDRSTRLEN is 46 */
 }
 
 static struct hs_web_throttle *throttle_find(struct hs_web *w, const char *key, int make)

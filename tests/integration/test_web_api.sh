@@ -52,4 +52,5 @@ fi
 HS_WEB_URL=$HS_WEB_URL HS_WEB_CONF=$HS_WEB_CONF HS_WEB_PID=$HS_WEB_DAEMON_PID HS_WEB_TMP=$HS_TMP \
     HS_BUILD=$HS_BUILD timeout 300 /usr/bin/python3 tests/integration/web_api.py
 [ $? -eq 0 ] || { hs_failed=1; tail -5 "$HS_TMP/halostaged.log"; }
+hs_web_stop_daemon
 hs_finish

@@ -25,4 +25,5 @@ HS_WEB_URL=$HS_WEB_URL HS_WEB_SHOTS=$shots HS_WEB_TMP=$HS_TMP \
     timeout 300 /usr/bin/python3 tests/integration/web_browser.py
 rc=$?
 [ "$rc" -eq 0 ] || { hs_failed=1; tail -5 "$HS_TMP/halostaged.log"; }
+hs_web_stop_daemon
 hs_finish

@@ -76,9 +76,14 @@ class Client:
 
 
 def until(fn, seconds=30):
+    """Polls fn until it is true; a refused connection (the server is
+    restarting on reload) counts as not yet."""
     end = time.monotonic() + seconds
     while time.monotonic() < end:
-        v = fn()
+        try:
+            v = fn()
+        except (urllib.error.URLError, ConnectionError, ssl.SSLError, TimeoutError):
+            v = None
         if v:
             return v
         time.sleep(0.1)
@@ -291,12 +296,7 @@ def main():
     ctx = ssl.create_default_context(cafile=cert)
     https = Client(URL.replace("http://", "https://"), ctx)
 
-    def tls_up():
-        try:
-            return https.call("GET", "/api/v1/session")[0] == 200
-        except (urllib.error.URLError, ConnectionError, ssl.SSLError):
-            return False
-    ok(until(tls_up, 30), "after a reload with tls_cert/tls_key the page is served over HTTPS")
+    ok(until(lambda: https.call("GET", "/api/v1/session")[0] == 200, 30), "after a reload with tls_cert/tls_key the page is served over HTTPS")
     s, j = https.login("ops", "operator-pass-1")
     sc = https.call("POST", "/api/v1/session", {"user": "ops", "password": "operator-pass-1"})[2].get("Set-Cookie", "")
     ok(s == 200 and "Secure" in sc, "over HTTPS the session cookie is Secure")

@@ -42,3 +42,13 @@ CONF
     HS_PIDS+=("$HS_WEB_DAEMON_PID")
     hs_wait_port "$web" 30
 }
+
+# Stops halostaged with SIGTERM and checks that it ended cleanly: exit 0 and
+# no sanitizer report (ASan/UBSan/LSan builds) in its log.
+hs_web_stop_daemon() {
+    kill -TERM "$HS_WEB_DAEMON_PID" 2>/dev/null
+    wait "$HS_WEB_DAEMON_PID"
+    local rc=$?
+    check "halostaged with [web] stops cleanly on SIGTERM (exit $rc, no sanitizer report)" \
+        test "$rc" -eq 0 -a -z "$(grep -E 'Sanitizer|runtime error' "$HS_TMP/halostaged.log")"
+}
