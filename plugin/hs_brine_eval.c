@@ -281,6 +281,18 @@ static int manual_usable(const hs_pond_aids *a, int64_t now_ms)
            now_ms - a->manual_t_ms <= a->manual_max_age_ms;
 }
 
+hc_stage hs_stage_at_density_ref(const hs_brine_models *models, int feed_index,
+                                 double rho_ref_kg_m3, double t_ref_c)
+{
+    double cf;
+    if (models == NULL || !isfinite(rho_ref_kg_m3))
+        return HC_STAGE_NONE;
+    const hc_path *path = hs_brine_models_path(models, feed_index);
+    if (path == NULL || hc_path_cf_at_density(path, rho_ref_kg_m3, t_ref_c, &cf, NULL) != HC_OK)
+        return HC_STAGE_NONE;
+    return hc_path_stage_at_cf(path, cf, NULL);
+}
+
 void hs_pond_aids_clear(hs_pond_aids *aids)
 {
     memset(aids, 0, sizeof *aids);

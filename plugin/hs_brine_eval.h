@@ -71,6 +71,12 @@ typedef struct {
 
 void hs_pond_aids_clear(hs_pond_aids *aids);
 
+/* The stage of the path brine of the pond's feed whose density at t_ref_c
+ * is rho_ref_kg_m3 (the same path lookup every state uses); HC_STAGE_NONE
+ * when not known. */
+hc_stage hs_stage_at_density_ref(const hs_brine_models *models, int feed_index,
+                                 double rho_ref_kg_m3, double t_ref_c);
+
 /* One pond's view. readings are indexed like site->signals. models may be
  * NULL: then only the seawater range (EOS-80, PSS-78) is known. aids may be
  * NULL (no calibration, no manual reading). now_ms is the wall clock;

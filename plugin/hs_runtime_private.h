@@ -16,10 +16,12 @@
 #include "hs_command.h"
 #include "hs_conf_transfer.h"
 #include "hs_hydro.h"
+#include "hs_lock.h"
 #include "hs_mb_image.h"
 #include "hs_publish.h"
 #include "hs_runtime.h"
 #include "hs_site.h"
+#include "hs_sparkplug.h"
 #include "hs_stage_table.h"
 #include "hs_store.h"
 #include "hs_transfer.h"
@@ -67,6 +69,8 @@ struct hs_rt_pond {
     struct hs_stage_table table;  /* stage-storage table when the pond has one */
     int table_loaded;
     double rain_last_m;           /* last rain-gauge total fed to the balance, NaN none */
+    char uncertain[256];          /* alarm rules of the pond the uncertainty holds back
+                                     ("band,fall"), as last logged */
 };
 
 struct hs_runtime {
@@ -88,6 +92,7 @@ struct hs_runtime {
     struct hs_rt_transfer *transfers; /* per transfer */
     uint16_t heartbeat;
 
+    hs_lock *lock;                /* one daemon per site (hs_lock.h) */
     hs_store *store;
     hs_alarm_engine *alarms;
     hs_alarm_sink alarm_sink;
@@ -98,6 +103,8 @@ struct hs_runtime {
     hs_web *web;                  /* NULL: no [web] section */
     hs_mb_image *mb_image;        /* [modbus_server]: the map; NULL off */
     hp_mbserver *mb_server;       /* its thread; reads mb_image only */
+    hs_sparkplug *spb;            /* [sparkplug]: the edge node's thread; NULL off */
+    uint64_t spb_bd_seq;          /* the next session's bdSeq, kept across reloads */
 
     int64_t next_eval_ms;         /* monotonic */
     int64_t next_maintain_ms;

@@ -9,6 +9,7 @@
 #include "hc_brine_density.h"
 #include "hc_ion.h"
 #include "hc_mixing.h"
+#include "hc_uncertainty.h"
 #include "hs_log.h"
 #include "hs_runtime_private.h"
 
@@ -186,7 +187,14 @@ void hs_rt_transfers_run(hs_runtime *rt, int64_t mono_ms, int64_t now_ms)
         memset(&in, 0, sizeof in);
         in.now_ms = mono_ms;
         in.source_density = pond_density(rt, t->source_index);
-        in.source_stage = rt->ponds[t->source_index].view.state.stage;
+        const hs_pond_view *sv = &rt->ponds[t->source_index].view;
+        in.source_stage = sv->state.stage;
+        in.source_density_u = sv->have_state ? hc_unc_density_ref(&sv->state) : NAN;
+        if (in.source_density_u > 0.0)
+            in.source_stage_low = hs_stage_at_density_ref(
+                rt->models, rt->site.ponds[t->source_index].feed_index,
+                sv->state.density_ref_kg_m3 - HS_DECISION_K * in.source_density_u,
+                sv->state.reference_temperature_c);
         in.source_level = pond_level(rt, t->source_index);
         in.dest_level = pond_level(rt, t->dest_index);
         in.dest_density_after_mixing = mixed_density(rt, t);
@@ -224,8 +232,13 @@ void hs_rt_transfers_safe(hs_runtime *rt)
 {
     for (size_t i = 0; rt->transfers != NULL && i < rt->site.n_transfers; i++) {
         const hs_transfer_conf *t = &rt->site.transfers[i];
-        if (hs_transfer_safe_write(&rt->transfers[i].rule) != HS_WRITE_OFF)
+        struct hs_xfer_input manual = from_reading(rt, t->manual_index);
+        if (hs_transfer_safe_write(&rt->transfers[i].rule, &manual) != HS_WRITE_OFF) {
+            if (t->actuate)
+                hs_log(HSP_LOG_NOTICE, "[transfer %s]: pump output left as it is at shutdown: "
+                       "the pump is in manual or its manual signal is unknown", t->name);
             continue;
+        }
         int coil = t->output == HS_OUTPUT_COIL;
         if (hs_rt_write(rt, t->bus_index, t->unit_id, coil, t->output_address,
                         coil ? 0 : t->off_value) == 0)

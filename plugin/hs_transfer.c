@@ -19,6 +19,11 @@ static const struct {
     {"bus-down", "a field bus this transfer needs is down"},
     {"manual-override", "the pump is in manual (local) control"},
     {"no-run-feedback", "the pump did not confirm running; locked out for the minimum off time"},
+    {"manual-unknown", "the pump's manual signal is unknown: hands off, nothing is written"},
+    {"feedback-lockout", "the pump failed to start too often; locked out until an operator resets it"},
+    {"density-source", "the density this transfer decides on is not from its own source (changed or missing)"},
+    {"output-unconfirmed", "the device does not confirm the pump command"},
+    {"output-dropped", "the PLC or a panel stopped the pump; not restarted before the minimum off time"},
     {"trigger-met", "the source brine has reached its transfer point"},
     {"trigger-not-met", "the source brine has not reached its transfer point"},
     {"hysteresis-hold", "running on: source still within the hysteresis of its transfer point"},
@@ -26,12 +31,20 @@ static const struct {
     {"min-off-time", "kept off for the minimum off time"},
     {"max-run-time", "stopped: maximum run time reached"},
     {"pump-still-running", "commanded off but the pump still reports running"},
+    {"uncertain-source", "the source density is too uncertain to say the trigger is met"},
 };
 
 void hs_transfer_state_init(struct hs_transfer_state *state)
 {
     memset(state, 0, sizeof *state);
     state->start_density_kg_m3 = NAN;
+    state->start_method = -1;
+}
+
+void hs_transfer_reset_lockout(struct hs_transfer_state *state)
+{
+    state->locked_out = 0;
+    state->failed_starts = 0;
 }
 
 void hs_transfer_rule_defaults(struct hs_transfer_rule *rule)
@@ -47,6 +60,8 @@ void hs_transfer_rule_defaults(struct hs_transfer_rule *rule)
     rule->dest_density_min_kg_m3 = NAN;
     rule->dest_density_max_kg_m3 = NAN;
     rule->feedback_timeout_ms = 30000;
+    rule->lockout_after = 3;
+    rule->density_method = -1;
 }
 
 int hs_transfer_rule_check(const struct hs_transfer_rule *rule, char *why, size_t why_len)
@@ -71,6 +86,8 @@ int hs_transfer_rule_check(const struct hs_transfer_rule *rule, char *why, size_
         reason = "minimum on time exceeds the maximum run time";
     else if (rule->actuate && rule->has_feedback && rule->feedback_timeout_ms == 0)
         reason = "an actuated pump with run feedback needs a feedback timeout";
+    else if (rule->lockout_after < 0)
+        reason = "lockout_after cannot be negative";
     if (reason == NULL)
         return 0;
     if (why != NULL && why_len > 0)
@@ -110,18 +127,24 @@ static int triggered(const struct hs_transfer_rule *rule, const struct hs_transf
                      const struct hs_transfer_inputs *in, unsigned *reasons)
 {
     double rho = in->source_density.value;
-    int met;
+    double u = in->source_density_u;
+    double margin = u > 0.0 ? HS_DECISION_K * u : 0.0; /* NaN u: no margin known */
+    double band = fmax(rule->hysteresis_kg_m3, margin);
+    int met, sure;
     double hold_from;
     if (rule->trigger == HS_TRIGGER_STAGE) {
         met = in->source_stage != HC_STAGE_NONE && in->source_stage >= rule->start_stage;
+        sure = met && (margin == 0.0 || (in->source_stage_low != HC_STAGE_NONE &&
+                                         in->source_stage_low >= rule->start_stage));
         /* Stages are discrete; hold on through noise at the boundary by the
          * density at which the run began. */
-        hold_from = state->start_density_kg_m3 - rule->hysteresis_kg_m3;
+        hold_from = state->start_density_kg_m3 - band;
     } else {
         met = rho >= rule->start_density_kg_m3;
-        hold_from = rule->start_density_kg_m3 - rule->hysteresis_kg_m3;
+        sure = rho >= rule->start_density_kg_m3 + margin;
+        hold_from = rule->start_density_kg_m3 - band;
     }
-    if (met) {
+    if (sure || (met && state->running)) {
         *reasons |= HS_XR_TRIGGER_MET;
         return 1;
     }
@@ -130,6 +153,8 @@ static int triggered(const struct hs_transfer_rule *rule, const struct hs_transf
         return 1;
     }
     *reasons |= HS_XR_TRIGGER_NOT_MET;
+    if (met)
+        *reasons |= HS_XR_UNCERTAIN_SOURCE;
     return 0;
 }
 
@@ -172,8 +197,19 @@ static unsigned interlocks(const struct hs_transfer_rule *rule, struct hs_transf
     }
     if (rule->has_rain && require(&in->rain, &r) && in->rain.value != 0)
         r |= HS_XR_RAIN;
-    if (rule->has_manual && require(&in->manual, &r) && in->manual.value != 0)
-        r |= HS_XR_MANUAL_OVERRIDE;
+    if (rule->has_manual) {
+        unsigned mr = 0;
+        if (!require(&in->manual, &mr))
+            r |= mr | (rule->actuate ? HS_XR_MANUAL_UNKNOWN : 0);
+        else if (in->manual.value != 0)
+            r |= HS_XR_MANUAL_OVERRIDE;
+    }
+    if (rule->density_method >= 0 && in->source_method != rule->density_method)
+        r |= HS_XR_DENSITY_SOURCE;
+    if (state->running && state->start_method >= 0 && in->source_method != state->start_method)
+        r |= HS_XR_DENSITY_SOURCE;
+    if (in->output_unconfirmed)
+        r |= HS_XR_OUTPUT_UNCONFIRMED;
     if (rule->actuate && rule->has_feedback)
         require(&in->run_feedback, &r);
     return r;
@@ -182,17 +218,27 @@ static unsigned interlocks(const struct hs_transfer_rule *rule, struct hs_transf
 /* Run-feedback supervision, only where we command the pump. */
 static unsigned supervise_feedback(const struct hs_transfer_rule *rule,
                                    struct hs_transfer_state *state,
-                                   const struct hs_transfer_inputs *in, int *alarm)
+                                   const struct hs_transfer_inputs *in, int *alarm,
+                                   int *lockout_alarm)
 {
     if (!rule->actuate || !rule->has_feedback || in->run_feedback.quality != HS_XQ_GOOD ||
         !isfinite(in->run_feedback.value))
         return 0;
     int64_t since = in->now_ms - state->changed_ms;
     int confirms = in->run_feedback.value != 0;
+    if (state->running && confirms)
+        state->failed_starts = 0;
     if (state->running && !confirms && since >= rule->feedback_timeout_ms) {
         int64_t lockout = rule->min_off_ms > 0 ? rule->min_off_ms : rule->feedback_timeout_ms;
-        if (!(state->latched & HS_XR_NO_RUN_FEEDBACK))
+        if (!(state->latched & HS_XR_NO_RUN_FEEDBACK)) {
             *alarm = 1;
+            state->failed_starts++;
+            if (rule->lockout_after > 0 && state->failed_starts >= rule->lockout_after &&
+                !state->locked_out) {
+                state->locked_out = 1;
+                *lockout_alarm = 1;
+            }
+        }
         latch(state, HS_XR_NO_RUN_FEEDBACK, in->now_ms + lockout);
         return 0;
     }
@@ -221,7 +267,13 @@ void hs_transfer_decide(const struct hs_transfer_rule *rule, struct hs_transfer_
 
     int density_ok;
     unsigned reasons = interlocks(rule, state, in, &density_ok);
-    reasons |= supervise_feedback(rule, state, in, &out->feedback_alarm);
+    reasons |= supervise_feedback(rule, state, in, &out->feedback_alarm, &out->lockout_alarm);
+    if (in->output_dropped && state->running) {
+        int64_t rest = rule->min_off_ms > 0 ? rule->min_off_ms : rule->feedback_timeout_ms;
+        latch(state, HS_XR_OUTPUT_DROPPED, now + rest);
+    }
+    if (state->locked_out)
+        reasons |= HS_XR_LOCKOUT;
 
     int wanted = density_ok && triggered(rule, state, in, &reasons);
     if (state->running && rule->max_run_ms > 0 && now - state->changed_ms >= rule->max_run_ms) {
@@ -256,8 +308,12 @@ void hs_transfer_decide(const struct hs_transfer_rule *rule, struct hs_transfer_
     if (on != state->running) {
         state->running = on;
         state->changed_ms = now;
-        if (on)
+        if (on) {
             state->start_density_kg_m3 = in->source_density.value;
+            state->start_method = in->source_method;
+        } else {
+            state->start_method = -1;
+        }
     }
 
     out->pump_on = on;
@@ -271,16 +327,23 @@ void hs_transfer_decide(const struct hs_transfer_rule *rule, struct hs_transfer_
     else
         out->advice = HS_ADVICE_IDLE;
 
-    if (!rule->actuate || (reasons & HS_XR_MANUAL_OVERRIDE))
-        out->write = HS_WRITE_NONE;
+    out->manual_unknown = (reasons & HS_XR_MANUAL_UNKNOWN) != 0;
+    if (!rule->actuate || (reasons & (HS_XR_MANUAL_OVERRIDE | HS_XR_MANUAL_UNKNOWN)))
+        out->write = HS_WRITE_NONE; /* hands off: local control, or we cannot tell */
     else
         out->write = on ? HS_WRITE_ON : HS_WRITE_OFF;
     out->changed = prev == NULL || prev->advice != out->advice || prev->reasons != out->reasons;
 }
 
-hs_pump_write hs_transfer_safe_write(const struct hs_transfer_rule *rule)
+hs_pump_write hs_transfer_safe_write(const struct hs_transfer_rule *rule,
+                                     const struct hs_xfer_input *manual)
 {
-    return rule->actuate ? HS_WRITE_OFF : HS_WRITE_NONE;
+    if (!rule->actuate)
+        return HS_WRITE_NONE;
+    if (rule->has_manual && (manual == NULL || manual->quality != HS_XQ_GOOD ||
+                             !isfinite(manual->value) || manual->value != 0))
+        return HS_WRITE_NONE; /* in manual, or unknown: never written */
+    return HS_WRITE_OFF;
 }
 
 const char *hs_transfer_reason_name(unsigned bit)

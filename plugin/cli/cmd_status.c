@@ -17,6 +17,7 @@
 #include "hs_alarm.h"
 #include "hs_conf_transfer.h"
 #include "hs_config.h"
+#include "hs_lock.h"
 #include "hs_store.h"
 #include "hs_store_latest.h"
 
@@ -125,11 +126,37 @@ static void alarms_of(const struct alarm_list *l, const char *pond, char *buf, s
         snprintf(buf, len, "-");
 }
 
+/* Who runs the site: the holder of the site lock (hs_lock.h). */
+static void print_daemon(const hs_site *site)
+{
+    long pid = 0;
+    char err[300] = "";
+    int held = hs_lock_holder(site->site.database, &pid, err, sizeof err);
+    if (held < 0)
+        printf("daemon: unknown (%s)\n", err);
+    else if (held && pid > 0)
+        printf("daemon: PID %ld holds the site lock\n", pid);
+    else if (held)
+        printf("daemon: a process holds the site lock\n");
+    else
+        printf("daemon: not running (nobody holds the site lock)\n");
+}
+
+static json_t *daemon_json(const hs_site *site)
+{
+    long pid = 0;
+    char err[300] = "";
+    int held = hs_lock_holder(site->site.database, &pid, err, sizeof err);
+    return json_pack("{s:o, s:o}", "running", held < 0 ? json_null() : json_boolean(held),
+                     "pid", held > 0 && pid > 0 ? json_integer(pid) : json_null());
+}
+
 static void print_table(const hs_site *site, hs_store *st, const struct alarm_list *alarms,
                         int64_t now)
 {
     printf("site %s, %s; REF kg/m3 and Be at the reference temperature %g degC\n",
            site->site.name, site->site.database, site->site.reference_temperature_c);
+    print_daemon(site);
     printf("%-9s %-12s %-17s %9s %6s %6s %7s %10s %9s %-8s %s\n", "POND", "ROLE", "STAGE",
            "REF kg/m3", "+-", "Be", "LEVEL m", "VOLUME m3", "TO TARGET", "QUALITY", "ALARMS");
     for (size_t i = 0; i < site->n_ponds; i++) {
@@ -213,8 +240,8 @@ static json_t *status_json(const hs_site *site, hs_store *st, const struct alarm
                                             "state", alarms->rows[i].state, "value",
                                             isfinite(alarms->rows[i].value) ? json_real(alarms->rows[i].value) : json_null(),
                                             "time_ms", (json_int_t)alarms->rows[i].t_ms));
-    return json_pack("{s:s, s:o, s:o, s:o}", "site", site->site.name, "ponds", ponds,
-                     "transfers", transfers, "alarms", al);
+    return json_pack("{s:s, s:o, s:o, s:o, s:o}", "site", site->site.name, "daemon",
+                     daemon_json(site), "ponds", ponds, "transfers", transfers, "alarms", al);
 }
 
 static void usage(FILE *out)

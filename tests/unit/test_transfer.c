@@ -77,6 +77,56 @@ static struct hs_transfer_decision step(struct engine *e, const struct hs_transf
     return d;
 }
 
+/* Decisions respect the state's uncertainty (k = HS_DECISION_K = 2): a
+ * trigger met only within 2u of the source density waits with
+ * uncertain-source; met by more, it runs; a run holds down to the start
+ * density less max(hysteresis, 2u). Round numbers for the logic. */
+static void uncertain_source_waits(void **unused)
+{
+    (void)unused;
+    struct engine e;
+    engine_init(&e, base_rule());
+    struct hs_transfer_inputs in = ready_inputs(0);
+    in.source_density = good(1215);     /* 5 above the start density */
+    in.source_density_u = 4.0;          /* 2u = 8: cannot tell */
+    struct hs_transfer_decision d = step(&e, &in);
+    assert_false(d.pump_on);
+    assert_true(d.reasons & HS_XR_UNCERTAIN_SOURCE);
+    assert_true(d.reasons & HS_XR_TRIGGER_NOT_MET);
+    in.now_ms = 1000;
+    in.source_density_u = 2.0;          /* 2u = 4 < 5: sure */
+    d = step(&e, &in);
+    assert_true(d.pump_on);
+    assert_false(d.reasons & HS_XR_UNCERTAIN_SOURCE);
+    /* running: 1204 is 6 below the start, within 2u = 8 (above the
+     * hysteresis of 3): held on */
+    in.now_ms = 2000;
+    in.source_density = good(1204);
+    in.source_density_u = 4.0;
+    d = step(&e, &in);
+    assert_true(d.pump_on);
+    assert_true(d.reasons & HS_XR_HYSTERESIS_HOLD);
+    in.now_ms = 3000;
+    in.source_density = good(1201);     /* 9 below: beyond 2u */
+    d = step(&e, &in);
+    assert_false(d.pump_on);
+    /* stage trigger: the stage of density - 2u must be reached too */
+    struct hs_transfer_rule r = base_rule();
+    r.trigger = HS_TRIGGER_STAGE;
+    r.start_stage = HC_STAGE_HALITE;
+    engine_init(&e, r);
+    in = ready_inputs(0);
+    in.source_density_u = 5.0;
+    in.source_stage_low = HC_STAGE_GYPSUM;
+    d = step(&e, &in);
+    assert_false(d.pump_on);
+    assert_true(d.reasons & HS_XR_UNCERTAIN_SOURCE);
+    in.now_ms = 1000;
+    in.source_stage_low = HC_STAGE_HALITE;
+    d = step(&e, &in);
+    assert_true(d.pump_on);
+}
+
 static void runs_when_ready(void **unused)
 {
     (void)unused;
@@ -337,9 +387,117 @@ static void actuation_writes(void **unused)
     in.source_level = good(0.5);
     in.manual = good(1); /* local control: never written */
     assert_int_equal(step(&e, &in).write, HS_WRITE_NONE);
-    assert_int_equal(hs_transfer_safe_write(&r), HS_WRITE_OFF);
+    struct hs_xfer_input remote = good(0), local = good(1);
+    assert_int_equal(hs_transfer_safe_write(&r, &remote), HS_WRITE_OFF);
+    assert_int_equal(hs_transfer_safe_write(&r, &local), HS_WRITE_NONE);
     r.actuate = 0;
-    assert_int_equal(hs_transfer_safe_write(&r), HS_WRITE_NONE);
+    assert_int_equal(hs_transfer_safe_write(&r, &remote), HS_WRITE_NONE);
+}
+
+/* Issue 17 point 3: manual is never written, not at shutdown and not while
+ * the manual signal is unknown (hands off, and an alarm). */
+static void manual_unknown_hands_off(void **unused)
+{
+    (void)unused;
+    struct hs_transfer_rule r = base_rule();
+    r.actuate = 1;
+    struct engine e;
+    engine_init(&e, r);
+    struct hs_transfer_inputs in = ready_inputs(0);
+    assert_int_equal(step(&e, &in).write, HS_WRITE_ON);
+    const hs_xfer_quality unknown[] = {HS_XQ_BAD, HS_XQ_STALE, HS_XQ_ABSENT};
+    for (size_t k = 0; k < sizeof unknown / sizeof unknown[0]; k++) {
+        in.manual = (struct hs_xfer_input){0, unknown[k]};
+        in.now_ms += 1000;
+        struct hs_transfer_decision d = step(&e, &in);
+        assert_int_equal(d.write, HS_WRITE_NONE);
+        assert_int_equal(d.manual_unknown, 1);
+        assert_true(d.reasons & HS_XR_MANUAL_UNKNOWN);
+        assert_int_equal(d.pump_on, 0);
+        assert_int_equal(hs_transfer_safe_write(&r, &in.manual), HS_WRITE_NONE);
+    }
+    assert_int_equal(hs_transfer_safe_write(&r, NULL), HS_WRITE_NONE);
+    /* known again and remote: the safe state is written again */
+    in.manual = good(0);
+    in.now_ms += 1000;
+    struct hs_transfer_decision d = step(&e, &in);
+    assert_int_equal(d.manual_unknown, 0);
+    assert_int_not_equal(d.write, HS_WRITE_NONE);
+    /* without a manual signal, shutdown writes the safe state */
+    r.has_manual = 0;
+    assert_int_equal(hs_transfer_safe_write(&r, NULL), HS_WRITE_OFF);
+}
+
+/* Issue 17 point 6: after lockout_after failed starts the transfer stays off
+ * until an operator resets it; one alarm when it locks. */
+static void feedback_lockout(void **unused)
+{
+    (void)unused;
+    struct hs_transfer_rule r = base_rule();
+    r.actuate = 1;
+    r.has_feedback = 1;
+    r.feedback_timeout_ms = 10000;
+    r.min_off_ms = 20000;
+    r.lockout_after = 2;
+    struct engine e;
+    engine_init(&e, r);
+    struct hs_transfer_inputs in = ready_inputs(100000);
+    in.run_feedback = good(0);
+    e.state.started = 1;
+    int lockouts = 0;
+    for (int k = 0; k < 600; k++) {
+        struct hs_transfer_decision d = step(&e, &in);
+        lockouts += d.lockout_alarm;
+        in.now_ms += 1000;
+    }
+    assert_int_equal(lockouts, 1);
+    assert_int_equal(e.state.failed_starts, 2);
+    assert_int_equal(e.state.locked_out, 1);
+    struct hs_transfer_decision d = step(&e, &in);
+    assert_true(d.reasons & HS_XR_LOCKOUT);
+    assert_int_equal(d.write, HS_WRITE_OFF);
+    hs_transfer_reset_lockout(&e.state);
+    in.now_ms += 1000;
+    d = step(&e, &in);
+    assert_false(d.reasons & HS_XR_LOCKOUT);
+    assert_int_equal(d.write, HS_WRITE_ON);
+    /* a confirmed run clears the count of failed starts */
+    in.run_feedback = good(1);
+    in.now_ms += 1000;
+    step(&e, &in);
+    assert_int_equal(e.state.failed_starts, 0);
+}
+
+/* Issue 17 point 5: the transfer decides only on its own density source and
+ * stops when the source changes during a run. */
+static void density_source(void **unused)
+{
+    (void)unused;
+    struct hs_transfer_rule r = base_rule();
+    r.actuate = 1;
+    r.density_method = HC_METHOD_DENSITOMETER;
+    struct engine e;
+    engine_init(&e, r);
+    struct hs_transfer_inputs in = ready_inputs(0);
+    in.source_method = HC_METHOD_DENSITOMETER;
+    assert_int_equal(step(&e, &in).write, HS_WRITE_ON);
+    in.source_method = HC_METHOD_PSS78; /* densitometer bad: conductivity fallback */
+    in.now_ms += 1000;
+    struct hs_transfer_decision d = step(&e, &in);
+    assert_int_equal(d.write, HS_WRITE_OFF);
+    assert_true(d.reasons & HS_XR_DENSITY_SOURCE);
+    assert_int_equal(d.advice, HS_ADVICE_BLOCKED);
+    /* no configured source: a change of method during a run stops it */
+    r.density_method = -1;
+    engine_init(&e, r);
+    in = ready_inputs(0);
+    in.source_method = HC_METHOD_PSS78;
+    assert_int_equal(step(&e, &in).write, HS_WRITE_ON);
+    in.source_method = HC_METHOD_SITE_CALIBRATION;
+    in.now_ms += 1000;
+    d = step(&e, &in);
+    assert_true(d.reasons & HS_XR_DENSITY_SOURCE);
+    assert_int_equal(d.pump_on, 0);
 }
 
 static void run_feedback_missing(void **unused)
@@ -546,6 +704,8 @@ static void property_random_sequences(void **unused)
                 assert_int_equal(d.write, HS_WRITE_NONE);
             if (usable(&in.manual) && in.manual.value != 0)
                 assert_int_equal(d.write, HS_WRITE_NONE);
+            if (!usable(&in.manual)) /* unknown manual: hands off */
+                assert_int_equal(d.write, HS_WRITE_NONE);
             if (d.reasons & HS_XR_INTERLOCK_MASK)
                 assert_int_equal(d.pump_on, 0);
             /* timing rules */
@@ -574,6 +734,7 @@ int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(runs_when_ready),
+        cmocka_unit_test(uncertain_source_waits),
         cmocka_unit_test(idle_below_trigger),
         cmocka_unit_test(density_hysteresis),
         cmocka_unit_test(stage_trigger),
@@ -594,6 +755,9 @@ int main(void)
         cmocka_unit_test(min_off_time),
         cmocka_unit_test(max_run_time),
         cmocka_unit_test(actuation_writes),
+        cmocka_unit_test(manual_unknown_hands_off),
+        cmocka_unit_test(feedback_lockout),
+        cmocka_unit_test(density_source),
         cmocka_unit_test(run_feedback_missing),
         cmocka_unit_test(pump_still_running),
         cmocka_unit_test(rule_checks),
