@@ -119,6 +119,8 @@ static int site_parts_open(hs_runtime *rt, hs_brine_models *models)
     for (size_t i = 0; i < site->n_ponds; i++) {
         hs_pond_aids_clear(&rt->ponds[i].aids);
         hc_state_clear(&rt->ponds[i].view.state);
+        rt->ponds[i].last_state_quality = -1;
+        rt->ponds[i].dirty = 1; /* the first cycle publishes what is known, even nothing */
         rt->ponds[i].view.depth_m = NAN;
         rt->ponds[i].view.quality = HS_QUALITY_BAD;
     }
@@ -241,14 +243,21 @@ static void note_uncertain_alarms(hs_runtime *rt, size_t i)
     snprintf(p->uncertain, sizeof p->uncertain, "%s", now);
 }
 
-static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms)
+/* A pond is evaluated every cycle (its alarms watch the age of its
+ * inputs), but its state is fed to the hydrology, stored and published
+ * only when a new input arrived or an input's quality changed; an
+ * unchanged retained state goes out again every state_heartbeat_ms. */
+static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms, int64_t mono_ms)
 {
     struct hs_rt_pond *p = &rt->ponds[i];
+    int fresh = p->dirty;
     p->aids.calibration = p->calib_ok ? &p->calibration : NULL; /* rt->ponds may have moved */
     hs_pond_evaluate(&rt->site, i, rt->readings, rt->models, &p->aids, rt->gravity_m_s2, now_ms,
                      &p->view);
-    hs_rt_hydro_update(rt, i, now_ms);
-    if (p->view.have_state) {
+    if (fresh)
+        hs_rt_hydro_update(rt, i, now_ms);
+    if (fresh && p->view.have_state &&
+        (p->view.t_ms != p->last_state_ms || (int)p->view.quality != p->last_state_quality)) {
         hs_pond_extra extra;
         hs_pond_extra_clear(&extra);
         extra.depth_m = p->view.depth_m;
@@ -262,6 +271,9 @@ static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms)
         if (hs_store_add_state(rt->store, rt->site.ponds[i].name, p->view.t_ms, &p->view.state,
                                &extra, p->view.quality) != 0)
             hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
+        p->last_state_ms = p->view.t_ms;
+        p->last_state_quality = (int)p->view.quality;
+        rt->states_stored++;
     }
     hs_alarm_input in;
     hs_alarm_input_clear(&in);
@@ -276,8 +288,21 @@ static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms)
             in.bus_down = 1;
     hs_alarm_update(rt->alarms, rt->site.ponds[i].name, &in, now_ms, alarm_emit, rt);
     note_uncertain_alarms(rt, i);
-    hs_rt_enqueue_state(rt, i, now_ms);
-    hs_rt_emit_pond(rt, i, now_ms);
+    int changed = p->pub_mono_ms == 0 || p->view.t_ms != p->pub_t_ms ||
+                  (int)p->view.quality != p->pub_quality ||
+                  (int)p->view.depth_quality != p->pub_depth_quality ||
+                  p->view.have_state != p->pub_have;
+    int heartbeat = rt->state_heartbeat_ms > 0 && mono_ms - p->pub_mono_ms >= rt->state_heartbeat_ms;
+    if ((fresh && changed) || heartbeat) {
+        hs_rt_enqueue_state(rt, i, now_ms);
+        hs_rt_emit_pond(rt, i, now_ms);
+        p->pub_t_ms = p->view.t_ms;
+        p->pub_quality = (int)p->view.quality;
+        p->pub_depth_quality = (int)p->view.depth_quality;
+        p->pub_have = p->view.have_state;
+        p->pub_mono_ms = mono_ms;
+        rt->states_published++;
+    }
     p->dirty = 0;
 }
 
@@ -297,7 +322,7 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
     int periodic = mono >= rt->next_eval_ms, evaluated = 0;
     for (size_t i = 0; i < rt->site.n_ponds; i++)
         if (rt->ponds[i].dirty || periodic) {
-            evaluate_pond(rt, i, now);
+            evaluate_pond(rt, i, now, mono);
             evaluated = 1;
         }
     if (periodic) {

@@ -57,8 +57,13 @@ struct hs_rt_pond {
     hc_calibration calibration;   /* the pond's fit when calib_ok */
     int calib_ok;
     size_t calib_rows, calib_skipped; /* readings behind the fit, to notice new ones */
-    int dirty;                    /* new samples since the last evaluation */
-    int64_t last_state_ms;        /* wall time of the last stored state */
+    int dirty;                    /* new samples (or a quality change) since the last evaluation */
+    int64_t last_state_ms;        /* input time of the last stored state; 0 none */
+    int last_state_quality;       /* its quality; -1 none */
+    /* what was last published (MQTT, emit): input time, qualities, and when
+     * (monotonic), for the heartbeat of the retained state */
+    int64_t pub_t_ms, pub_mono_ms;
+    int pub_quality, pub_depth_quality, pub_have;
     struct hs_hydro hydro;
     int hydro_ok;
     struct hs_hydro_report report;
@@ -110,7 +115,9 @@ struct hs_runtime {
     int64_t next_maintain_ms;
     int64_t next_calib_ms;        /* monotonic; 0: re-read the readings now */
     int64_t next_command_ms;
+    int64_t state_heartbeat_ms;   /* republish an unchanged retained state this often; 0 never */
     uint64_t samples_in, cycles;
+    uint64_t states_stored, states_published;
     int64_t started_ms;
 };
 
