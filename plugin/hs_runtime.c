@@ -197,6 +197,8 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
     rt->next_eval_ms = mono;
     rt->next_maintain_ms = mono + HS_RT_MAINTAIN_MS;
     rt->next_command_ms = mono;
+    rt->next_schedule_ms = mono;
+    rt->schedule_day = -1;
     if (rt->site.web != NULL && hs_web_start(config_path, &rt->web) != 0) {
         hs_log(HSP_LOG_ERR, "%s:%d: [web] could not start", config_path, rt->site.web->line);
         hs_runtime_close(rt);
@@ -344,6 +346,7 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
         hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
     if (evaluated)
         hs_web_notify(rt->web); /* after the flush: the page reads committed rows */
+    hs_rt_schedule_tick(rt, mono, now);
     hs_rt_mqtt_pump(rt, 0);
     if (mono >= rt->next_maintain_ms) {
         if (hs_store_maintain(rt->store, now) != 0)
@@ -400,6 +403,7 @@ int hs_runtime_reload(hs_runtime *rt, const char *config_path)
         hs_log(HSP_LOG_WARNING, "%s: [mqtt] changed: that takes a restart; the running link "
                "stays as it was", config_path);
     rt->warm = 0;
+    rt->schedule_day = -1; /* a new site: a new schedule */
     int ok = site_parts_open(rt, models) == 0 && alarms_open(rt) == 0 &&
              hs_rt_scada_open(rt) == 0;
     for (size_t i = 0; ok && old_names != NULL && i < rt->site.n_transfers; i++)

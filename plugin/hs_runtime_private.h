@@ -115,6 +115,8 @@ struct hs_runtime {
     int64_t next_maintain_ms;
     int64_t next_calib_ms;        /* monotonic; 0: re-read the readings now */
     int64_t next_command_ms;
+    int64_t next_schedule_ms;     /* monotonic: when to look at the schedule again */
+    int64_t schedule_day;         /* UTC day of the last published schedule; -1 none */
     int64_t state_heartbeat_ms;   /* republish an unchanged retained state this often; 0 never */
     uint64_t samples_in, cycles;
     uint64_t states_stored, states_published;
@@ -135,6 +137,9 @@ void hs_rt_age_readings(hs_runtime *rt, int64_t now_ms);
 /* Writes one register or coil through the bus's worker. 0 / -1. */
 int hs_rt_write(hs_runtime *rt, int bus, uint8_t unit_id, int coil, uint16_t address,
                 uint16_t value);
+
+/* hs_runtime_schedule.c: the chain schedule, daily, retained on MQTT */
+void hs_rt_schedule_tick(hs_runtime *rt, int64_t mono_ms, int64_t now_ms);
 
 /* hs_runtime_transfer.c */
 int hs_rt_transfers_init(hs_runtime *rt);
