@@ -162,4 +162,20 @@ check "calc: conductivity near halite warns and prefers density" test "$(field "
 "$HS" calc --conductivity 53.07 --temperature 25 --json >"$out"
 check "calc: seawater keeps PSS-78 and gains its next stage" test "$(field "$out" \
     'd["method"] + " " + d["stage"] + " " + d["next_stage"]')" = "pss78 seawater carbonate"
+# Br and Sr in a feed analysis count as Cl and Ca mole for mole (the lumping of
+# the Na-K-Mg-Ca-Cl-SO4 model): the same feed with them folded in by hand (molar
+# masses 79.904 Br, 35.453 Cl, 87.62 Sr, 40.078 Ca; IUPAC) gives the same moles
+# per kg of solution.
+"$HS" path --json --feed-analysis Na=10.78,Cl=19.35,Mg=1.284,SO4=2.712,Ca=0.412,K=0.399,Br=0.0673,Sr=0.0079 \
+    >"$HS_TMP/brsr.json" 2>&1
+check "path --feed-analysis accepts Br and Sr" test $? -eq 0
+"$HS" path --json --feed-analysis Na=10.78,Cl=19.379860669,Mg=1.284,SO4=2.712,Ca=0.415613515,K=0.399 \
+    >"$HS_TMP/folded.json" 2>&1
+check "Br and Sr are lumped into Cl and Ca mole for mole" /usr/bin/python3 -c '
+import json, sys
+fa, fb = json.load(open(sys.argv[1]))["feed"], json.load(open(sys.argv[2]))["feed"]
+# per kg of solution: the two analyses differ in solute mass, so in water
+a = {k: v * fa["water_mass_fraction"] for k, v in fa["molality"].items()}
+b = {k: v * fb["water_mass_fraction"] for k, v in fb["molality"].items()}
+sys.exit(0 if all(abs(a[k] - b[k]) <= 1e-6 * b[k] for k in b) else 1)' "$HS_TMP/brsr.json" "$HS_TMP/folded.json"
 hs_finish
