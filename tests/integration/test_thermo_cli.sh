@@ -88,6 +88,27 @@ refuse 1 'outside -8..0' brine --molality Na=1,Cl=1 --pco2-log 2
 # --- path ----------------------------------------------------------------
 "$HS" path --json >"$out"
 check "path --json exits 0" test $? -eq 0
+# The README's figure: at SG 1.25 (15/15 degC) on the 25 degC fractional path
+# the model has evaporated 96.6 % of the water and deposited 74.6 % of the
+# sodium as halite [C] (Usiglio's seawater: 96.5 % and 77 % [S], as quoted
+# there); conservation: deposited Na <= the feed's.
+"$HS" path --all-steps --json >"$HS_TMP/all.json"
+$PY - "$HS_TMP/all.json" <<'PY'
+import json, sys
+d = json.load(open(sys.argv[1]))
+steps, feed = d["steps"], d["feed"]
+k = next(i for i, s in enumerate(steps) if s["specific_gravity"] >= 1.25)
+a, b = steps[k - 1], steps[k]
+x = (1.25 - a["specific_gravity"]) / (b["specific_gravity"] - a["specific_gravity"])
+def at(get):
+    return get(a) + x * (get(b) - get(a))
+evaporated = 100 * at(lambda s: s["water_removed_fraction"])
+na_feed = feed["molality"]["Na"] * feed["water_mass_fraction"]  # mol per kg feed
+deposited = 100 * at(lambda s: s["precipitated_mol_per_kg_feed"]["halite"]) / na_feed
+sys.exit(0 if abs(evaporated - 96.6) < 0.05 and abs(deposited - 74.6) < 0.1
+         and d["reference_temperature_c"] == 15 and d["temperature_c"] == 25 else 1)
+PY
+check "README: at SG 1.25, 96.6 % evaporated and 74.6 % of the NaCl deposited" test $? -eq 0
 check "path reaches bischofite" test "$(field "$out" 'd["complete"]')" = True
 # Stage sequence from carbonate (aragonite, field onset CF 1.5-2, DOMAIN 7
 # [S]) and gypsum through halite into the magnesium and potash salts to
