@@ -107,6 +107,8 @@ static void migrates_an_older_file(void **unused)
                                       "ALTER TABLE pond_state DROP COLUMN baume_uncertainty;"
                                       "ALTER TABLE pond_state DROP COLUMN cf_uncertainty;"
                                       "DROP TABLE command_seen;"
+                                      "ALTER TABLE sample DROP COLUMN rolled;"
+                                      "ALTER TABLE sample DROP COLUMN thin;"
                                       "PRAGMA user_version = 1;", NULL, NULL, NULL), SQLITE_OK);
     sqlite3_close(db);
     char err[256];
@@ -120,6 +122,8 @@ static void migrates_an_older_file(void **unused)
     assert_int_equal(scalar("SELECT count(*) FROM pragma_table_info('pond_state')"
                             " WHERE name LIKE '%uncertainty%'"), 4);
     assert_int_equal(scalar("SELECT count(*) FROM sqlite_master WHERE name = 'command_seen'"), 1);
+    assert_int_equal(scalar("SELECT count(*) FROM pragma_table_info('sample')"
+                            " WHERE name IN ('rolled', 'thin')"), 2);
 }
 
 static void wal_and_strict(void **unused)
