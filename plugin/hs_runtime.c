@@ -4,6 +4,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 
 #include "hc_level.h"
 #include "hs_alarm_site.h"
@@ -152,6 +153,12 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
         return HSP_ERR_RUNTIME;
     }
     rt->started_ms = hs_rt_wall_ms();
+    /* who holds the site and since when, for `status` once we are gone */
+    if (hs_store_meta_set(rt->store, "daemon_pid", (int64_t)getpid()) != 0 ||
+        hs_store_meta_set(rt->store, "daemon_started_ms", rt->started_ms) != 0 ||
+        hs_store_meta_set(rt->store, "daemon_seen_ms", rt->started_ms) != 0 ||
+        hs_store_meta_set(rt->store, "daemon_stopped_ms", 0) != 0)
+        hs_log(HSP_LOG_WARNING, "store: %s", hs_store_error(rt->store));
     int64_t mono = hs_rt_mono_ms();
     rt->next_eval_ms = mono;
     rt->next_maintain_ms = mono + HS_RT_MAINTAIN_MS;
@@ -299,6 +306,8 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
     if (mono >= rt->next_maintain_ms) {
         if (hs_store_maintain(rt->store, now) != 0)
             hs_log(HSP_LOG_WARNING, "store maintenance: %s", hs_store_error(rt->store));
+        if (hs_store_meta_set(rt->store, "daemon_seen_ms", now) != 0)
+            hs_log(HSP_LOG_WARNING, "store: %s", hs_store_error(rt->store));
         rt->next_maintain_ms = mono + HS_RT_MAINTAIN_MS;
     }
     *next_ms = HS_RT_TICK_MS;
@@ -414,6 +423,8 @@ void hs_runtime_close(hs_runtime *rt)
     site_parts_free(rt);
     hs_alarm_free(rt->alarms);
     if (rt->store != NULL) {
+        if (hs_store_meta_set(rt->store, "daemon_stopped_ms", hs_rt_wall_ms()) != 0)
+            hs_log(HSP_LOG_WARNING, "store: %s", hs_store_error(rt->store));
         hs_store_checkpoint(rt->store, 1);
         hs_store_close(rt->store);
     }

@@ -47,6 +47,7 @@ struct hs_rt_transfer {
     unsigned rain_n, rain_head;
     double predicted_mix_kg_m3;   /* last mixing prediction, NaN unknown */
     int64_t flow_ms;              /* wall time up to which pumping is in the balances */
+    int feedback_seen;            /* this run's feedback has confirmed the pump (logged) */
 };
 
 /* Per-pond memory between cycles. */
