@@ -152,8 +152,9 @@ static int parse(int argc, char **argv, struct request *rq)
             fprintf(stderr, "halostage " CMD ": unknown option '%s' (see --help)\n", a);
             return 2;
         }
-        if (hs_cli_number(CMD, a, v, num) != 0)
-            return 2;
+        int nrc = hs_cli_number(CMD, a, v, num);
+        if (nrc != 0)
+            return HS_CLI_EXIT(nrc);
         if (num == &days) {
             if (days < 1 || days > HS_CHAIN_MAX_DAYS || days != floor(days)) {
                 fprintf(stderr, "halostage " CMD ": --days must be a whole number 1..%d\n",
