@@ -2,6 +2,7 @@
 #include <stdio.h>
 
 #include "hs_commission.h"
+#include "hs_conf_transfer.h"
 #include "hs_config.h"
 
 int hs_check_run(const char *config_path)
@@ -15,6 +16,13 @@ int hs_check_run(const char *config_path)
             fprintf(stderr, "%s: %u more errors not shown\n", config_path, diag.dropped);
         return HS_EXIT_CONFIG;
     }
+    /* advice, not refusal: a site may have no manual signal wired */
+    for (size_t i = 0; i < site.n_transfers; i++)
+        if (site.transfers[i].actuate && site.transfers[i].manual_index < 0)
+            fprintf(stderr, "%s:%d: warning: [transfer %s]: actuate = yes without a manual "
+                    "signal: halostaged cannot tell when an operator runs the pump locally; "
+                    "wire the panel's local/remote switch and name it in manual\n",
+                    config_path, site.transfers[i].line, site.transfers[i].name);
     printf("%s: ok: site %s, %zu buses, %zu ponds, %zu signals, %zu feeds\n", config_path,
            site.site.name, site.n_buses, site.n_ponds, site.n_signals, site.n_feeds);
     hs_site_free(&site);

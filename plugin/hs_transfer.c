@@ -209,9 +209,11 @@ static unsigned interlocks(const struct hs_transfer_rule *rule, struct hs_transf
 /* Run-feedback supervision, only where we command the pump. */
 static unsigned supervise_feedback(const struct hs_transfer_rule *rule,
                                    struct hs_transfer_state *state,
-                                   const struct hs_transfer_inputs *in, int *alarm,
-                                   int *lockout_alarm)
+                                   const struct hs_transfer_inputs *in, unsigned reasons,
+                                   int *alarm, int *lockout_alarm)
 {
+    if (reasons & (HS_XR_MANUAL_OVERRIDE | HS_XR_MANUAL_UNKNOWN))
+        return 0; /* an operator drives the pump (or we cannot tell): nothing to supervise */
     if (!rule->actuate || !rule->has_feedback || in->run_feedback.quality != HS_XQ_GOOD ||
         !isfinite(in->run_feedback.value))
         return 0;
@@ -258,7 +260,8 @@ void hs_transfer_decide(const struct hs_transfer_rule *rule, struct hs_transfer_
 
     int density_ok;
     unsigned reasons = interlocks(rule, state, in, &density_ok);
-    reasons |= supervise_feedback(rule, state, in, &out->feedback_alarm, &out->lockout_alarm);
+    reasons |= supervise_feedback(rule, state, in, reasons, &out->feedback_alarm,
+                                  &out->lockout_alarm);
     if (in->output_dropped && state->running) {
         int64_t rest = rule->min_off_ms > 0 ? rule->min_off_ms : rule->feedback_timeout_ms;
         latch(state, HS_XR_OUTPUT_DROPPED, now + rest);
