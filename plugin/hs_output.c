@@ -139,6 +139,11 @@ hs_out_action hs_output_step(struct hs_output *o, const struct hs_out_timing *t,
         o->state = HS_OUT_UNKNOWN; /* back in our hands: read back first */
         o->seq = 0;
     }
+    if (o->hold_run) {
+        if (want != 0)
+            return HS_OUT_NONE; /* a RUN the PLC or a panel undid is not ours to repeat */
+        o->hold_run = 0;
+    }
     if (want != o->want && want >= 0) {
         int keep_failed = o->state == HS_OUT_FAILED;
         new_decision(o, want, now_ms);
@@ -208,6 +213,7 @@ hs_out_action hs_output_step(struct hs_output *o, const struct hs_out_timing *t,
                 ev->dropped = 1; /* the PLC or a panel stopped it: not ours to undo */
                 o->state = HS_OUT_UNKNOWN;
                 o->want = -1;
+                o->hold_run = 1;
                 return HS_OUT_NONE;
             }
             ev->overridden = 1;

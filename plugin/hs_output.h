@@ -25,7 +25,8 @@
  *  - Re-assert means "check", not "write again": a confirmed output is read
  *    back every verify_ms. If the device shows STOP while we decided RUN, the
  *    PLC or a panel stopped the pump: we never overwrite that (DROPPED is
- *    reported; the engine latches the transfer off for its minimum off time).
+ *    reported; no RUN is sent until the engine has decided STOP, and the
+ *    engine latches the transfer off and counts a failed start).
  *    If the device shows RUN while we decided STOP, STOP is sent again (the
  *    safe direction), unless the pump is in manual.
  *  - Hands off (manual, or manual unknown): nothing is written, ever; the
@@ -86,6 +87,7 @@ struct hs_output {
     int64_t next_ms;        /* BACKOFF/FAILED: next send; CONFIRMED/HANDS_OFF: next read */
     unsigned attempts;      /* sends since decided_ms */
     int64_t confirmed_after_ms; /* last confirmation: decided to confirmed [ms] */
+    int hold_run;           /* after DROPPED: no RUN until a STOP decision came */
 };
 
 /* What one step reports besides the action. */

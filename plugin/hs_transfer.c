@@ -263,8 +263,17 @@ void hs_transfer_decide(const struct hs_transfer_rule *rule, struct hs_transfer_
     reasons |= supervise_feedback(rule, state, in, reasons, &out->feedback_alarm,
                                   &out->lockout_alarm);
     if (in->output_dropped && state->running) {
+        /* the PLC or a panel stopped our pump: not ours to undo, and it
+         * counts as a failed start, so a pump stopped again and again locks
+         * out instead of being restarted after every minimum off time */
         int64_t rest = rule->min_off_ms > 0 ? rule->min_off_ms : rule->feedback_timeout_ms;
         latch(state, HS_XR_OUTPUT_DROPPED, now + rest);
+        state->failed_starts++;
+        if (rule->lockout_after > 0 && state->failed_starts >= rule->lockout_after &&
+            !state->locked_out) {
+            state->locked_out = 1;
+            out->lockout_alarm = 1;
+        }
     }
     if (state->locked_out)
         reasons |= HS_XR_LOCKOUT;
