@@ -72,6 +72,29 @@ static const char *text_of(json_t *v, size_t max, const char **why)
     return s;
 }
 
+/* Why a shelve was refused, naming the limit (the engine only says no). */
+static void shelve_refusal(const hs_alarm_engine *eng, const char *pond, const char *rule,
+                           long long duration_s, char *msg, size_t len)
+{
+    hs_alarm_info info;
+    for (size_t i = 0; hs_alarm_get(eng, i, &info) == 0; i++) {
+        if (strcmp(info.pond, pond) != 0 || strcmp(info.rule, rule) != 0)
+            continue;
+        if (duration_s * 1000 > info.max_shelve_ms) {
+            snprintf(msg, len, "shelving %s/%s for %llds is longer than its max_shelve of %llds "
+                     "(%.4g h); ask for at most that, or raise max_shelve of the rule's [alarm] section",
+                     pond, rule, duration_s, (long long)(info.max_shelve_ms / 1000),
+                     (double)info.max_shelve_ms / 3.6e6);
+            return;
+        }
+        snprintf(msg, len, "%s/%s is %s: it cannot be shelved in that state", pond, rule,
+                 hs_alarm_state_name(info.state));
+        return;
+    }
+    snprintf(msg, len, "%s", hs_alarm_result_text(HS_ALARM_REFUSED));
+}
+
+
 json_t *hs_command_apply(hs_commands *c, const char *verb, const void *payload, size_t len,
                          int oversize, int *ok)
 {
@@ -217,6 +240,8 @@ json_t *hs_command_apply(hs_commands *c, const char *verb, const void *payload, 
                      rule ? rule : "");
         else if (r == HS_ALARM_UNKNOWN_EVENT)
             snprintf(msg, sizeof msg, "unknown event_id %lld", (long long)event_id);
+        else if (r == HS_ALARM_REFUSED && v == 1)
+            shelve_refusal(c->engine, pond, rule, duration_s, msg, sizeof msg);
         else
             snprintf(msg, sizeof msg, "%s", hs_alarm_result_text(r));
         json_decref(in);

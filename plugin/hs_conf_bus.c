@@ -55,6 +55,8 @@ static const hs_key bus_keys[] = {
              "registers per read (some devices take fewer than the protocol's 125)"),
     KEY_DUR("poll_interval", B, poll_interval_ms, 100, 86400 * SEC_MS, "10s", HS_KEY_RELOADABLE,
             "default poll interval of this bus's signals"),
+    KEY_DUR("probe_interval", B, conf.probe_interval_ms, 1 * SEC_MS, 3600 * SEC_MS, "30s", 0,
+            "a device (unit id) that stopped answering is asked only this often"),
     KEY_DUR("stale_after", B, conf.stale_after_ms, 1 * SEC_MS, 86400 * SEC_MS, HS_NO_DEFAULT,
             HS_KEY_RELOADABLE, "overrides [site] stale_after for this bus"),
     {NULL},

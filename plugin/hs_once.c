@@ -82,6 +82,8 @@ static const char *failure_text(const hp_sample *s, char *buf, size_t len)
     if (s->exception)
         snprintf(buf, len, "exception %d (%s)", s->exception,
                  modbus_strerror(MODBUS_ENOBASE + s->exception));
+    else if (s->sys_errno == EHOSTDOWN)
+        snprintf(buf, len, "not asked: its device (unit id) did not answer");
     else if (s->sys_errno)
         snprintf(buf, len, "%s", modbus_strerror(s->sys_errno));
     else
@@ -129,6 +131,8 @@ static json_t *signal_json(const hs_signal *g, const latest *l)
     json_object_set_new(o, "quality", json_string(l->seen ? hp_quality_name(s->quality) : "not-read"));
     if (l->seen && (s->exception || s->sys_errno))
         json_object_set_new(o, "error", json_string(failure_text(s, why, sizeof why)));
+    if (l->seen && s->quality != HP_Q_GOOD)
+        json_object_set_new(o, "reason", json_string(hp_sample_reason(s)));
     if (l->seen && s->exception)
         json_object_set_new(o, "exception", json_integer(s->exception));
     json_object_set_new(o, "time_ms", json_integer(l->seen ? s->time_ms : 0));

@@ -222,6 +222,36 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
 
 /* ---- the cycle ---- */
 
+/* Alarm rules of pond i whose limit the state crosses only within k u:
+ * logged once when the set changes (`uncertain-source`), so an operator
+ * sees why a rule that looks crossed has not raised. */
+static void note_uncertain_alarms(hs_runtime *rt, size_t i)
+{
+    char now[sizeof rt->ponds[i].uncertain] = "";
+    size_t used = 0;
+    hs_alarm_info info;
+    for (size_t k = 0; hs_alarm_get(rt->alarms, k, &info) == 0; k++) {
+        if (!info.uncertain || strcmp(info.pond, rt->site.ponds[i].name) != 0)
+            continue;
+        int n = snprintf(now + used, sizeof now - used, "%s%s", used ? "," : "", info.rule);
+        if (n < 0 || (size_t)n >= sizeof now - used)
+            break;
+        used += (size_t)n;
+    }
+    struct hs_rt_pond *p = &rt->ponds[i];
+    if (strcmp(now, p->uncertain) == 0)
+        return;
+    if (now[0])
+        hs_log(HSP_LOG_NOTICE, "pond %s: uncertain-source: %s past a limit by less than %.0f "
+               "standard uncertainties of the state (+-%.1f kg/m3); not raised",
+               rt->site.ponds[i].name, now, HS_DECISION_K,
+               p->view.state.density_uncertainty_kg_m3);
+    else
+        hs_log(HSP_LOG_INFO, "pond %s: no alarm held back by uncertainty any more",
+               rt->site.ponds[i].name);
+    snprintf(p->uncertain, sizeof p->uncertain, "%s", now);
+}
+
 static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms)
 {
     struct hs_rt_pond *p = &rt->ponds[i];
@@ -247,6 +277,7 @@ static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms)
     hs_alarm_input in;
     hs_alarm_input_clear(&in);
     in.state = p->view.have_state ? &p->view.state : NULL;
+    in.state_t_ms = p->view.t_ms;
     in.depth_m = p->view.depth_m;
     in.sample_age_s = p->view.oldest_input_age_s;
     in.bus_down = 0;
@@ -255,6 +286,7 @@ static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms)
             rt->bus_down[rt->site.signals[s].bus_index])
             in.bus_down = 1;
     hs_alarm_update(rt->alarms, rt->site.ponds[i].name, &in, now_ms, alarm_emit, rt);
+    note_uncertain_alarms(rt, i);
     hs_rt_enqueue_state(rt, i, now_ms);
     hs_rt_emit_pond(rt, i, now_ms);
     p->dirty = 0;

@@ -22,6 +22,7 @@
 #include "hs_publish.h"
 #include "hs_runtime.h"
 #include "hs_site.h"
+#include "hs_sparkplug.h"
 #include "hs_stage_table.h"
 #include "hs_store.h"
 #include "hs_transfer.h"
@@ -84,6 +85,8 @@ struct hs_rt_pond {
     struct hs_stage_table table;  /* stage-storage table when the pond has one */
     int table_loaded;
     double rain_last_m;           /* last rain-gauge total fed to the balance, NaN none */
+    char uncertain[256];          /* alarm rules of the pond the uncertainty holds back
+                                     ("band,fall"), as last logged */
 };
 
 struct hs_runtime {
@@ -114,6 +117,8 @@ struct hs_runtime {
     hs_commands commands;
     hs_mb_image *mb_image;        /* [modbus_server]: the map; NULL off */
     hp_mbserver *mb_server;       /* its thread; reads mb_image only */
+    hs_sparkplug *spb;            /* [sparkplug]: the edge node's thread; NULL off */
+    uint64_t spb_bd_seq;          /* the next session's bdSeq, kept across reloads */
 
     int64_t next_eval_ms;         /* monotonic */
     int64_t next_maintain_ms;

@@ -13,8 +13,19 @@
 #include "hp_plan.h"
 #include "hp_time.h"
 
-#define TIMEOUTS_BEFORE_RECONNECT 3
+#define TIMEOUTS_BEFORE_DOWN 3 /* timed-out attempts in a row that make a device down */
+#define PROBE_INTERVAL_DEFAULT_MS 30000
+#define UNITS 256
 #define STALE_CHECK_MS 1000
+
+/* Health of one device (unit id) of the bus; see the policy in hp_bus.h. */
+typedef struct {
+    bool present;        /* has points on this bus */
+    bool down;
+    bool silent;         /* timed out in this cycle: its other reads stay unsent */
+    unsigned timeouts;   /* timed-out attempts in a row */
+    int64_t probe_at;    /* monotonic: when a down device is asked next */
+} device_health;
 
 struct hp_bus {
     hp_bus_conf conf;
@@ -34,8 +45,10 @@ struct hp_bus {
     bool connected;
     unsigned backoff_step;
     int64_t reconnect_at;
-    unsigned consecutive_timeouts;
     unsigned seed;
+    device_health dev[UNITS];    /* by unit id */
+    unsigned n_present;          /* devices with points */
+    int64_t probe_interval_ms;
     int64_t *next_due;           /* per point, monotonic ms */
     int64_t *last_good;          /* per point, monotonic ms, 0 = never */
     double *last_value;
@@ -109,9 +122,47 @@ static int connect_bus(hp_bus *b)
     if (b->conf.kind == HP_BUS_RTU && b->conf.rs485)
         (void)modbus_rtu_set_serial_mode(b->ctx, MODBUS_RTU_RS485); /* ENOTTY is harmless */
     b->connected = true;
-    b->consecutive_timeouts = 0;
     b->backoff_step = 0;
+    /* A fresh link: devices that are down get their probe now (when every
+     * device is down, the reconnect delay paces these probes). */
+    int64_t now = hp_mono_ms();
+    for (unsigned u = 0; u < UNITS; u++)
+        if (b->dev[u].down)
+            b->dev[u].probe_at = now;
     return 0;
+}
+
+static void set_down(hp_bus *b, uint8_t unit, bool down)
+{
+    device_health *d = &b->dev[unit];
+    d->down = down;
+    d->probe_at = hp_mono_ms() + b->probe_interval_ms;
+    pthread_mutex_lock(&b->mu);
+    uint64_t bit = (uint64_t)1 << (unit & 63);
+    if (down) {
+        b->stats.down_units[unit >> 6] |= bit;
+        b->stats.devices_down++;
+    } else {
+        b->stats.down_units[unit >> 6] &= ~bit;
+        b->stats.devices_down--;
+    }
+    pthread_mutex_unlock(&b->mu);
+}
+
+/* The device answered (data or an exception). */
+static void device_answered(hp_bus *b, uint8_t unit)
+{
+    b->dev[unit].timeouts = 0;
+    if (b->dev[unit].down)
+        set_down(b, unit, false);
+}
+
+static bool all_down(const hp_bus *b)
+{
+    unsigned down = 0;
+    for (unsigned u = 0; u < UNITS; u++)
+        down += b->dev[u].present && b->dev[u].down;
+    return b->n_present > 0 && down == b->n_present;
 }
 
 static void schedule_reconnect(hp_bus *b)
@@ -140,11 +191,17 @@ static bool link_error(int e)
            e == ENOTCONN || e == ECONNABORTED || e == EIO;
 }
 
-static read_result do_read(hp_bus *b, const hp_read *rd)
+/* One read of a block: 1 + retries attempts, or a single one for a probe of
+ * a device that is down. */
+static read_result do_read(hp_bus *b, const hp_read *rd, bool probe)
 {
     uint16_t regs[HP_MAX_READ_REGISTERS];
+    device_health *d = &b->dev[rd->unit_id];
+    unsigned tries = probe ? 1 : 1 + b->conf.retries;
     int err = 0;
-    for (unsigned attempt = 0; attempt <= b->conf.retries; attempt++) {
+    if (probe)
+        stat_add(b, &b->stats.probes, 1, 0);
+    for (unsigned attempt = 0; attempt < tries; attempt++) {
         if (stopping(b))
             break;
         modbus_set_slave(b->ctx, rd->unit_id);
@@ -154,7 +211,7 @@ static read_result do_read(hp_bus *b, const hp_read *rd)
         err = errno;
         stat_add(b, &b->stats.transactions, 1, 0);
         if (rc == rd->count) {
-            b->consecutive_timeouts = 0;
+            device_answered(b, rd->unit_id);
             int64_t now = hp_mono_ms(), wall = hp_wall_ms();
             for (uint32_t k = rd->first; k < rd->first + rd->n_points; k++) {
                 uint32_t p = b->order[k];
@@ -173,7 +230,7 @@ static read_result do_read(hp_bus *b, const hp_read *rd)
         if (rc >= 0)
             err = EMBBADDATA; /* a reply of the wrong length */
         if (err > MODBUS_ENOBASE && err <= MODBUS_ENOBASE + MODBUS_EXCEPTION_GATEWAY_TARGET) {
-            b->consecutive_timeouts = 0;
+            device_answered(b, rd->unit_id);
             stat_add(b, &b->stats.exceptions, 1, err);
             for (uint32_t k = rd->first; k < rd->first + rd->n_points; k++)
                 emit_failure(b, b->order[k], 0, err - MODBUS_ENOBASE);
@@ -182,7 +239,7 @@ static read_result do_read(hp_bus *b, const hp_read *rd)
         if (link_error(err))
             break;
         if (err == ETIMEDOUT)
-            b->consecutive_timeouts++;
+            d->timeouts++;
         /* Drop whatever half-reply or late answer is still on the line, so
          * the next request does not read it (RTU framing, stale TCP ids). */
         modbus_flush(b->ctx);
@@ -190,9 +247,25 @@ static read_result do_read(hp_bus *b, const hp_read *rd)
     stat_add(b, &b->stats.failures, 1, err);
     for (uint32_t k = rd->first; k < rd->first + rd->n_points; k++)
         emit_failure(b, b->order[k], err, 0);
-    if (link_error(err) || b->consecutive_timeouts >= TIMEOUTS_BEFORE_RECONNECT)
+    if (link_error(err))
         return READ_LINK_LOST;
+    if (err == ETIMEDOUT) {
+        d->silent = true;
+        if (d->down)
+            d->probe_at = hp_mono_ms() + b->probe_interval_ms;
+        else if (d->timeouts >= TIMEOUTS_BEFORE_DOWN)
+            set_down(b, rd->unit_id, true);
+        if (all_down(b))
+            return READ_LINK_LOST;
+    }
     return READ_FAILED;
+}
+
+/* Points of a read not sent because its device is silent or down. */
+static void not_asked(hp_bus *b, const hp_read *rd, int err)
+{
+    for (uint32_t k = rd->first; k < rd->first + rd->n_points; k++)
+        emit_failure(b, b->order[k], err, 0);
 }
 
 static void fail_points(hp_bus *b, const uint32_t *which, size_t n, int err)
@@ -211,22 +284,44 @@ static void run_cycle(hp_bus *b, size_t n_due, int64_t started)
         fail_points(b, b->which, n_due, EINVAL);
         return;
     }
+    for (unsigned u = 0; u < UNITS; u++)
+        b->dev[u].silent = false;
+    bool timed_out = false;
     for (long r = 0; r < nr; r++) {
+        const hp_read *rd = &b->reads[r];
         do_writes(b); /* output commands go ahead of every queued read */
-        int lost_here = !b->connected; /* a command found the link broken */
-        if (lost_here || do_read(b, &b->reads[r]) == READ_LINK_LOST) {
+        if (!b->connected) {
+            /* a command found the link broken: this read and the rest fail
+             * now (the reconnect is already scheduled) */
+            for (long q = r; q < nr; q++)
+                not_asked(b, &b->reads[q], ECONNRESET);
+            break;
+        }
+        device_health *d = &b->dev[rd->unit_id];
+        bool probe = d->down;
+        if (d->silent || (d->down && hp_mono_ms() < d->probe_at)) {
+            /* A down device between probes is simply not asked: its points
+             * already failed. A once-read owes every point a sample. */
+            if (d->silent || b->once)
+                not_asked(b, rd, EHOSTDOWN);
+            continue;
+        }
+        read_result res = do_read(b, rd, probe);
+        timed_out = timed_out || d->silent;
+        if (res == READ_LINK_LOST) {
             /* Everything after the lost read fails now instead of timing out
              * one block after another. */
-            for (long q = lost_here ? r : r + 1; q < nr; q++)
-                for (uint32_t k = b->reads[q].first; k < b->reads[q].first + b->reads[q].n_points; k++)
-                    emit_failure(b, b->order[k], ECONNRESET, 0);
-            if (!lost_here)
-                schedule_reconnect(b);
+            int why = all_down(b) ? EHOSTDOWN : ECONNRESET;
+            for (long q = r + 1; q < nr; q++)
+                not_asked(b, &b->reads[q], why);
+            schedule_reconnect(b);
             break;
         }
     }
     int64_t took = hp_mono_ms() - started;
     pthread_mutex_lock(&b->mu);
+    if (!timed_out && took > b->stats.min_interval_ms)
+        b->stats.slow_cycles++;
     b->stats.cycles++;
     b->stats.last_cycle_ms = took;
     b->stats.total_cycle_ms += took;
@@ -445,6 +540,18 @@ hp_bus *hp_bus_start(const hp_bus_conf *conf, const hp_point *points, size_t n,
     }
     if (n)
         memcpy(b->points, points, n * sizeof *points);
+    b->probe_interval_ms = conf->probe_interval_ms > 0 ? conf->probe_interval_ms
+                                                       : PROBE_INTERVAL_DEFAULT_MS;
+    b->stats.min_interval_ms = INT64_MAX;
+    for (size_t i = 0; i < n; i++) {
+        if (!b->dev[points[i].unit_id].present)
+            b->n_present++;
+        b->dev[points[i].unit_id].present = true;
+        if (points[i].interval_ms < b->stats.min_interval_ms)
+            b->stats.min_interval_ms = points[i].interval_ms;
+    }
+    if (n == 0)
+        b->stats.min_interval_ms = 0;
     int rc = pthread_create(&b->thread, NULL, worker, b);
     if (rc != 0) {
         free_bus(b);

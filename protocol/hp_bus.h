@@ -3,14 +3,32 @@
  * (hp_plan.h), into the sample queue. A dead or hung device costs only its
  * own bus time: buses never wait for each other.
  *
- * Failure handling (libmodbus 3.1.6, see protocol/README.md): error recovery stays
- * NONE; a read is tried 1 + retries times; after a timeout the line is
- * flushed; a broken link (reset, refused, bad descriptor) or repeated
- * timeouts close the context, and reconnects back off exponentially from
- * backoff_min to backoff_max with jitter. A Modbus exception is not retried
- * (the device answered): its points get comm-fail with the exception code.
- * Points not read good for stale_after get one stale sample carrying the
- * last good value. The protocol layer never prints: codes travel in samples.
+ * Failure handling (libmodbus 3.1.6, see protocol/README.md): error
+ * recovery stays NONE; a read is tried 1 + retries times; after a timeout
+ * the line is flushed. A Modbus exception is not retried (the device
+ * answered): its points get comm-fail with the exception code. Points not read good for stale_after get one
+ * stale sample carrying the last good value. The protocol layer never
+ * prints: codes travel in samples, device health in the stats.
+ *
+ * Health is kept per device (unit id), since an RS-485 line or a TCP serial
+ * gateway carries several:
+ * - a read that times out (after its retries) leaves its device's other
+ *   reads of the cycle unsent: their points get comm-fail with errno
+ *   EHOSTDOWN ("not asked"); the other devices are read as usual;
+ * - after 3 timed-out attempts in a row a device is down: it is no longer
+ *   asked every cycle, only probed (one attempt, its first read) every
+ *   probe_interval; a probe that answers brings it up and its points are
+ *   read in that same cycle. A silent device thus costs the line at most
+ *   (1 + retries) response timeouts per cycle until it is down, then one
+ *   response timeout per probe_interval;
+ * - the link itself is a bus matter: a broken connection (reset, refused,
+ *   bad descriptor, EIO), or every device of the bus down at once (a dead
+ *   serial adapter or a half-open TCP connection looks so), closes the
+ *   context, and reconnects back off exponentially from backoff_min to
+ *   backoff_max with jitter. The devices keep their state across it.
+ * - a TCP reply whose unit id is not the one asked is refused (EMBBADSLAVE)
+ *   like a reply of the wrong length (libmodbus checks RTU addresses only).
+ * hp_bus_stats says which devices are down (hp_bus_unit_down).
  *
  * Error convention: hp_bus_start returns NULL on failure with errno set. */
 #ifndef HP_BUS_H
@@ -39,7 +57,19 @@ typedef struct {
     int last_errno;           /* errno of the last failure, 0 if none */
     uint64_t writes;          /* output writes carried out */
     uint64_t write_failures;  /* output writes the device refused or never answered */
+    uint64_t probes;          /* reads sent to a device that was down */
+    uint64_t devices_down;    /* devices (unit ids) down now */
+    uint64_t down_units[4];   /* bit u set: unit id u is down */
+    uint64_t slow_cycles;     /* cycles without a timeout that took longer than the
+                               * bus's shortest poll interval: the line cannot keep it */
+    int64_t min_interval_ms;  /* the bus's shortest point interval */
 } hp_bus_stats;
+
+/* True when unit id `unit` is down (see the failure policy above). */
+static inline bool hp_bus_unit_down(const hp_bus_stats *st, uint8_t unit)
+{
+    return (st->down_units[unit >> 6] >> (unit & 63)) & 1u;
+}
 
 /* Starts the worker. points (n, copied) are read into queue (borrowed; it
  * must outlive the bus); each sample carries bus_id. once: read every point

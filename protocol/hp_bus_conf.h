@@ -34,6 +34,8 @@ typedef struct {
     unsigned max_gap;             /* unused registers one read may span */
     unsigned max_registers;       /* per read, at most HP_MAX_READ_REGISTERS */
     int64_t stale_after_ms;       /* a point not read good for this long is stale */
+    int64_t probe_interval_ms;    /* a device (unit id) that is down is asked this
+                                   * often, not every cycle; 0 = 30 s */
 } hp_bus_conf;
 
 /* True for the baud rates we accept (libmodbus 3.1.6 silently falls back to

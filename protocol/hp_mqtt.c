@@ -27,6 +27,7 @@ struct hp_mqtt {
     MQTTAsync client;
     hp_mqtt_options opt;  /* strings point into the copies below */
     char *copies[12];
+    void *will_copy;      /* will_len bytes */
     int tls;
     pthread_mutex_t lock;
     pthread_cond_t ready;
@@ -201,10 +202,20 @@ hp_mqtt *hp_mqtt_new(const hp_mqtt_options *o, char *err, size_t errlen)
     m->opt.will_topic = keep(m, 7, o->will_topic);
     m->opt.will_payload = keep(m, 8, o->will_payload);
     m->opt.subscribe = keep(m, 9, o->subscribe);
-    const char *given[10] = {o->uri, o->client_id, o->username, o->password, o->ca_file,
+    m->opt.subscribe_extra[0] = keep(m, 10, o->subscribe_extra[0]);
+    m->opt.subscribe_extra[1] = keep(m, 11, o->subscribe_extra[1]);
+    const char *given[12] = {o->uri, o->client_id, o->username, o->password, o->ca_file,
                              o->cert_file, o->key_file, o->will_topic, o->will_payload,
-                             o->subscribe};
-    for (int i = 0; i < 10; i++)
+                             o->subscribe, o->subscribe_extra[0], o->subscribe_extra[1]};
+    if (o->will_payload != NULL && o->will_len > 0) {
+        /* a binary will (a Sparkplug NDEATH) may hold NUL bytes */
+        m->will_copy = malloc(o->will_len);
+        if (m->will_copy != NULL)
+            memcpy(m->will_copy, o->will_payload, o->will_len);
+        else
+            given[8] = "", m->copies[8] = NULL;
+    }
+    for (int i = 0; i < 12; i++)
         if (given[i] != NULL && m->copies[i] == NULL) {
             fail(err, errlen, "mqtt: out of memory");
             hp_mqtt_free(m, 0);
@@ -248,7 +259,7 @@ int hp_mqtt_start(hp_mqtt *m, char *err, size_t errlen)
     co.cleansession = 1;
     co.MQTTVersion = MQTTVERSION_3_1_1;
     co.maxInflight = m->opt.max_inflight;
-    co.automaticReconnect = 1;
+    co.automaticReconnect = m->opt.no_reconnect ? 0 : 1;
     co.minRetryInterval = m->opt.min_retry_s;
     co.maxRetryInterval = m->opt.max_retry_s;
     co.connectTimeout = 10;
@@ -259,6 +270,11 @@ int hp_mqtt_start(hp_mqtt *m, char *err, size_t errlen)
     if (m->opt.will_topic) {
         will.topicName = m->opt.will_topic;
         will.message = m->opt.will_payload ? m->opt.will_payload : "";
+        if (m->will_copy != NULL) {
+            will.message = NULL; /* paho sends payload.data when message is NULL */
+            will.payload.data = m->will_copy;
+            will.payload.len = (int)m->opt.will_len;
+        }
         will.retained = m->opt.will_retained;
         will.qos = 1;
         co.will = &will;
@@ -350,6 +366,9 @@ int hp_mqtt_poll(hp_mqtt *m, int timeout_ms, void (*fn)(void *ctx, const hp_mqtt
              * thread rather than paho's callback. */
             MQTTAsync_subscribe(m->client, m->opt.subscribe, 1, NULL);
         }
+        for (int i = 0; list->ev.type == HP_MQTT_CONNECTED && i < 2; i++)
+            if (m->opt.subscribe_extra[i])
+                MQTTAsync_subscribe(m->client, m->opt.subscribe_extra[i], 1, NULL);
         if (fn)
             fn(ctx, &list->ev);
         free(list->topic);
@@ -395,6 +414,7 @@ void hp_mqtt_free(hp_mqtt *m, int timeout_ms)
         explicit_bzero(m->copies[3], strlen(m->copies[3]));
     for (size_t i = 0; i < sizeof m->copies / sizeof m->copies[0]; i++)
         free(m->copies[i]);
+    free(m->will_copy);
     pthread_mutex_destroy(&m->lock);
     pthread_cond_destroy(&m->ready);
     free(m);

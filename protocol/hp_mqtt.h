@@ -29,12 +29,16 @@ typedef struct {
     const char *key_file;   /* its key (PEM) */
     const char *will_topic; /* NULL: no last will */
     const char *will_payload;
+    size_t will_len;        /* bytes of will_payload; 0: strlen (text) */
     int will_retained;
     int keepalive_s;        /* default 30 */
     int max_inflight;       /* QoS 1 messages in flight; default 64 */
     int min_retry_s;        /* reconnect backoff; default 1 */
     int max_retry_s;        /* default 60 */
     const char *subscribe;  /* topic filter subscribed at every connect; NULL: none */
+    const char *subscribe_extra[2]; /* more filters, the same way; NULL: none */
+    int no_reconnect;       /* 1: a lost connection stays lost (the owner makes a new
+                               client, e.g. to change the will); 0: paho reconnects */
     size_t max_inbound;     /* larger inbound payloads are reported, not copied; default 4096 */
 } hp_mqtt_options;
 

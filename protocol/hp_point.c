@@ -1,5 +1,7 @@
 /* Point decoding and quality names; see hp_point.h. */
+#include <errno.h>
 #include <math.h>
+#include <modbus.h>
 #include <string.h>
 
 #include "hp_point.h"
@@ -10,6 +12,37 @@ const char *hp_quality_name(hp_quality quality)
         "good", "stale", "comm-fail", "out-of-range", "sentinel", "decode-error",
     };
     return (unsigned)quality < HP_Q_COUNT ? names[quality] : "?";
+}
+
+const char *hp_sample_reason(const hp_sample *s)
+{
+    switch (s->quality) {
+    case HP_Q_GOOD: return "";
+    case HP_Q_STALE: return "stale";
+    case HP_Q_OUT_OF_RANGE: return "out-of-range";
+    case HP_Q_SENTINEL: return "sentinel";
+    case HP_Q_DECODE_ERROR: return "decode-error";
+    case HP_Q_COMM_FAIL: break;
+    default: return "?";
+    }
+    if (s->exception)
+        return "exception";
+    switch (s->sys_errno) {
+    case ETIMEDOUT: return "timeout";
+    case EHOSTDOWN: return "device-down";
+    case ECONNRESET: case EPIPE: case EBADF: case ECONNREFUSED: case ENOTCONN:
+    case ECONNABORTED: case EIO: return "link";
+    case EMBBADDATA: case EMBBADCRC: case EMBBADSLAVE: case EMBMDATA: case EMBBADEXC:
+        return "bad-reply";
+    default: return "error";
+    }
+}
+
+int hp_sample_code(const hp_sample *s)
+{
+    if (s->quality != HP_Q_COMM_FAIL)
+        return 0;
+    return s->exception ? s->exception : s->sys_errno;
 }
 
 const char *hp_table_name(hp_table table)

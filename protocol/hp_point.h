@@ -53,7 +53,8 @@ typedef struct {
     uint32_t bus;       /* index of the bus (set by the owner of the bus) */
     hp_quality quality;
     int exception;      /* Modbus exception code (1..11) or 0 */
-    int sys_errno;      /* errno of a communication failure, or 0 */
+    int sys_errno;      /* errno of a communication failure, or 0; EHOSTDOWN:
+                         * not asked, its device did not answer (hp_bus.h) */
     double raw;         /* decoded register value before scale/offset; NaN if none */
     double value;       /* engineering value; NaN unless quality is good or
                          * out-of-range */
@@ -64,6 +65,14 @@ typedef struct {
 
 /* "good", "stale", "comm-fail", ...; "?" for an invalid value. */
 const char *hp_quality_name(hp_quality quality);
+/* Why a sample is not good, one short name: "timeout", "exception" (code in
+ * sample->exception), "link" (a broken connection), "device-down" (not
+ * asked), "bad-reply" (wrong length, CRC, unit id or transaction), "error"
+ * (another errno), "out-of-range", "sentinel", "decode-error", "stale";
+ * "" for a good sample. The number that goes with it: hp_sample_code. */
+const char *hp_sample_reason(const hp_sample *sample);
+/* The Modbus exception code or the errno behind a comm-fail, else 0. */
+int hp_sample_code(const hp_sample *sample);
 const char *hp_table_name(hp_table table);
 
 /* Turns the registers of one point into a sample's raw, value and quality

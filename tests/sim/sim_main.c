@@ -2,7 +2,8 @@
  *               [--fault BUS[:UNIT]=KIND[:MS]]...
  *               [--truth FILE] [--faults FILE]
  * KIND: timeout, exception, drop, nan, sentinel, latency:MS. BUS * is every bus.
- * Stops on SIGTERM or SIGINT. */
+ * Stops on SIGTERM or SIGINT. SIGHUP reads the faults again (--fault and
+ * --faults FILE), so a test can silence a device and bring it back. */
 #include <getopt.h>
 #include <signal.h>
 #include <stdio.h>
@@ -13,12 +14,14 @@
 #include "hs_config.h"
 #include "sim.h"
 
-static volatile sig_atomic_t stop_flag;
+static volatile sig_atomic_t stop_flag, reload_flag;
 
 static void on_signal(int sig)
 {
-    (void)sig;
-    stop_flag = 1;
+    if (sig == SIGHUP)
+        reload_flag = 1;
+    else
+        stop_flag = 1;
 }
 
 static void usage(FILE *to)
@@ -27,7 +30,8 @@ static void usage(FILE *to)
                 "                     [--fault BUS[:UNIT]=KIND]... [--truth FILE]\n"
                 "  KIND: timeout, exception, drop, nan, sentinel, latency:MS; BUS * = all\n"
                 "  --truth FILE: keep the model's true pond values in FILE (JSON)\n"
-                "  --faults FILE: faults from a file, one BUS[:UNIT]=KIND a line, # comments\n");
+                "  --faults FILE: faults from a file, one BUS[:UNIT]=KIND a line, # comments\n"
+                "  SIGHUP reads the faults again\n");
 }
 
 static int parse_fault(sim *s, const char *text)
@@ -178,6 +182,7 @@ int main(int argc, char **argv)
     sa.sa_handler = on_signal;
     sigaction(SIGTERM, &sa, NULL);
     sigaction(SIGINT, &sa, NULL);
+    sigaction(SIGHUP, &sa, NULL);
     signal(SIGPIPE, SIG_IGN);
     if (sim_servers_start(&s) != 0) {
         stop_flag = 1;
@@ -189,6 +194,21 @@ int main(int argc, char **argv)
     while (!stop_flag) {
         struct timespec ts = {0, 100000000L};
         nanosleep(&ts, NULL);
+        if (reload_flag) {
+            reload_flag = 0;
+            pthread_mutex_lock(&s.lock);
+            s.n_faults = 0;
+            int bad = 0;
+            for (int i = 0; i < n_faults; i++)
+                bad |= parse_fault(&s, faults[i]) != 0;
+            if (fault_file)
+                bad |= read_fault_file(&s, fault_file) != 0;
+            size_t now_faults = s.n_faults;
+            pthread_mutex_unlock(&s.lock);
+            printf("halostage-sim: faults read again: %zu%s\n", now_faults,
+                   bad ? " (some refused, see above)" : "");
+            fflush(stdout);
+        }
         sim_model_step(&s, 0.1 * s.speed);
         if (truth && sim_truth_write(&s, truth) != 0)
             fprintf(stderr, "halostage-sim: cannot write %s\n", truth);

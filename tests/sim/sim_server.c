@@ -49,14 +49,19 @@ static bool loopback(const char *host)
 static int answer(sim *s, int bus, modbus_t *ctx, uint8_t *req, int len, int unit_offset)
 {
     uint8_t unit = req[unit_offset];
-    const sim_fault *f = sim_fault_for(s, bus, unit);
-    if (f && f->kind == SIM_FAULT_TIMEOUT)
+    /* A copy taken under the lock: SIGHUP may change the faults. */
+    pthread_mutex_lock(&s->lock);
+    const sim_fault *found = sim_fault_for(s, bus, unit);
+    sim_fault copy = found ? *found : (sim_fault){.kind = SIM_FAULT_NONE};
+    pthread_mutex_unlock(&s->lock);
+    const sim_fault *f = &copy;
+    if (f->kind == SIM_FAULT_TIMEOUT)
         return 0;
-    if (f && f->kind == SIM_FAULT_DROP)
+    if (f->kind == SIM_FAULT_DROP)
         return -1;
-    if (f && f->kind == SIM_FAULT_LATENCY)
+    if (f->kind == SIM_FAULT_LATENCY)
         sleep_ms(f->latency_ms);
-    if (f && f->kind == SIM_FAULT_EXCEPTION)
+    if (f->kind == SIM_FAULT_EXCEPTION)
         return modbus_reply_exception(ctx, req, MODBUS_EXCEPTION_SLAVE_OR_SERVER_FAILURE) < 0 ? -1 : 0;
     pthread_mutex_lock(&s->lock);
     sim_device *d = sim_device_find(s, bus, unit);
