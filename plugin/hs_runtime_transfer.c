@@ -267,7 +267,6 @@ void hs_rt_transfers_run(hs_runtime *rt, int64_t mono_ms, int64_t now_ms)
         in.manual = from_reading(rt, t->manual_index);
         in.run_feedback = from_reading(rt, t->feedback_index);
         in.bus_up = buses_up(rt, t);
-        const hs_pond_view *sv = &rt->ponds[t->source_index].view;
         in.source_method = sv->have_state ? (int)sv->state.method : -1;
         in.output_unconfirmed = x->out_failed;
         in.output_dropped = x->out_dropped;
