@@ -4,6 +4,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 
 #include "hc_level.h"
 #include "hs_conf_alarm.h"
@@ -135,6 +136,8 @@ static int site_parts_open(hs_runtime *rt, hs_brine_models *models)
     for (size_t i = 0; i < site->n_ponds; i++) {
         hs_pond_aids_clear(&rt->ponds[i].aids);
         hc_state_clear(&rt->ponds[i].view.state);
+        rt->ponds[i].last_state_quality = -1;
+        rt->ponds[i].dirty = 1; /* the first cycle publishes what is known, even nothing */
         rt->ponds[i].view.depth_m = NAN;
         rt->ponds[i].view.quality = HS_QUALITY_BAD;
     }
@@ -207,10 +210,18 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
         return HSP_ERR_RUNTIME;
     }
     rt->started_ms = hs_rt_wall_ms();
+    /* who holds the site and since when, for `status` once we are gone */
+    if (hs_store_meta_set(rt->store, "daemon_pid", (int64_t)getpid()) != 0 ||
+        hs_store_meta_set(rt->store, "daemon_started_ms", rt->started_ms) != 0 ||
+        hs_store_meta_set(rt->store, "daemon_seen_ms", rt->started_ms) != 0 ||
+        hs_store_meta_set(rt->store, "daemon_stopped_ms", 0) != 0)
+        hs_log(HSP_LOG_WARNING, "store: %s", hs_store_error(rt->store));
     int64_t mono = hs_rt_mono_ms();
     rt->next_eval_ms = mono;
     rt->next_maintain_ms = mono + HS_RT_MAINTAIN_MS;
     rt->next_command_ms = mono;
+    rt->next_schedule_ms = mono;
+    rt->schedule_day = -1;
     hs_rt_emit_gateway(rt, 1, rt->started_ms);
     hs_log(HSP_LOG_NOTICE, "site %s: %zu ponds, %zu signals on %zu buses, %zu transfers; "
            "history in %s; MQTT %s", rt->site.site.name, rt->site.n_ponds, rt->site.n_signals,
@@ -252,14 +263,21 @@ static void note_uncertain_alarms(hs_runtime *rt, size_t i)
     snprintf(p->uncertain, sizeof p->uncertain, "%s", now);
 }
 
-static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms)
+/* A pond is evaluated every cycle (its alarms watch the age of its
+ * inputs), but its state is fed to the hydrology, stored and published
+ * only when a new input arrived or an input's quality changed; an
+ * unchanged retained state goes out again every state_heartbeat_ms. */
+static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms, int64_t mono_ms)
 {
     struct hs_rt_pond *p = &rt->ponds[i];
+    int fresh = p->dirty;
     p->aids.calibration = p->calib_ok ? &p->calibration : NULL; /* rt->ponds may have moved */
     hs_pond_evaluate(&rt->site, i, rt->readings, rt->models, &p->aids, rt->gravity_m_s2, now_ms,
                      &p->view);
-    hs_rt_hydro_update(rt, i, now_ms);
-    if (p->view.have_state) {
+    if (fresh)
+        hs_rt_hydro_update(rt, i, now_ms);
+    if (fresh && p->view.have_state &&
+        (p->view.t_ms != p->last_state_ms || (int)p->view.quality != p->last_state_quality)) {
         hs_pond_extra extra;
         hs_pond_extra_clear(&extra);
         extra.depth_m = p->view.depth_m;
@@ -273,6 +291,9 @@ static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms)
         if (hs_store_add_state(rt->store, rt->site.ponds[i].name, p->view.t_ms, &p->view.state,
                                &extra, p->view.quality) != 0)
             hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
+        p->last_state_ms = p->view.t_ms;
+        p->last_state_quality = (int)p->view.quality;
+        rt->states_stored++;
     }
     hs_alarm_input in;
     hs_alarm_input_clear(&in);
@@ -287,8 +308,21 @@ static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms)
             in.bus_down = 1;
     hs_alarm_update(rt->alarms, rt->site.ponds[i].name, &in, now_ms, alarm_emit, rt);
     note_uncertain_alarms(rt, i);
-    hs_rt_enqueue_state(rt, i, now_ms);
-    hs_rt_emit_pond(rt, i, now_ms);
+    int changed = p->pub_mono_ms == 0 || p->view.t_ms != p->pub_t_ms ||
+                  (int)p->view.quality != p->pub_quality ||
+                  (int)p->view.depth_quality != p->pub_depth_quality ||
+                  p->view.have_state != p->pub_have;
+    int heartbeat = rt->state_heartbeat_ms > 0 && mono_ms - p->pub_mono_ms >= rt->state_heartbeat_ms;
+    if ((fresh && changed) || heartbeat) {
+        hs_rt_enqueue_state(rt, i, now_ms);
+        hs_rt_emit_pond(rt, i, now_ms);
+        p->pub_t_ms = p->view.t_ms;
+        p->pub_quality = (int)p->view.quality;
+        p->pub_depth_quality = (int)p->view.depth_quality;
+        p->pub_have = p->view.have_state;
+        p->pub_mono_ms = mono_ms;
+        rt->states_published++;
+    }
     p->dirty = 0;
 }
 
@@ -312,7 +346,7 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
             for (size_t k = 0; k < rt->site.n_transfers && rt->ponds[i].dirty; k++)
                 fresh_input |= rt->site.transfers[k].source_index == (int)i ||
                                rt->site.transfers[k].dest_index == (int)i;
-            evaluate_pond(rt, i, now);
+            evaluate_pond(rt, i, now, mono);
         }
     /* no transfer decides on a site that has not been read yet */
     if (rt->warm && (periodic || fresh_input))
@@ -330,10 +364,13 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
     }
     if (hs_store_flush(rt->store) != 0)
         hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
+    hs_rt_schedule_tick(rt, mono, now);
     hs_rt_mqtt_pump(rt, 0);
     if (mono >= rt->next_maintain_ms) {
         if (hs_store_maintain(rt->store, now) != 0)
             hs_log(HSP_LOG_WARNING, "store maintenance: %s", hs_store_error(rt->store));
+        if (hs_store_meta_set(rt->store, "daemon_seen_ms", now) != 0)
+            hs_log(HSP_LOG_WARNING, "store: %s", hs_store_error(rt->store));
         rt->next_maintain_ms = mono + HS_RT_MAINTAIN_MS;
     }
     *next_ms = HS_RT_TICK_MS;
@@ -390,6 +427,7 @@ int hs_runtime_reload(hs_runtime *rt, const char *config_path)
         hs_log(HSP_LOG_WARNING, "%s: [mqtt] changed: that takes a restart; the running link "
                "stays as it was", config_path);
     rt->warm = 0;
+    rt->schedule_day = -1; /* a new site: a new schedule */
     int ok = site_parts_open(rt, models) == 0 && alarms_open(rt) == 0 &&
              hs_rt_scada_open(rt) == 0;
     for (size_t i = 0; ok && old_names != NULL && i < rt->site.n_transfers; i++)
@@ -455,6 +493,8 @@ void hs_runtime_close(hs_runtime *rt)
     site_parts_free(rt);
     hs_alarm_free(rt->alarms);
     if (rt->store != NULL) {
+        if (hs_store_meta_set(rt->store, "daemon_stopped_ms", hs_rt_wall_ms()) != 0)
+            hs_log(HSP_LOG_WARNING, "store: %s", hs_store_error(rt->store));
         hs_store_checkpoint(rt->store, 1);
         hs_store_close(rt->store);
     }

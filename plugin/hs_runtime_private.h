@@ -64,6 +64,7 @@ struct hs_rt_transfer {
     unsigned rain_n, rain_head;
     double predicted_mix_kg_m3;   /* last mixing prediction, NaN unknown */
     int64_t flow_ms;              /* wall time up to which pumping is in the balances */
+    int feedback_seen;            /* this run's feedback has confirmed the pump (logged) */
 };
 
 /* Per-pond memory between cycles. */
@@ -73,8 +74,13 @@ struct hs_rt_pond {
     hc_calibration calibration;   /* the pond's fit when calib_ok */
     int calib_ok;
     size_t calib_rows, calib_skipped; /* readings behind the fit, to notice new ones */
-    int dirty;                    /* new samples since the last evaluation */
-    int64_t last_state_ms;        /* wall time of the last stored state */
+    int dirty;                    /* new samples (or a quality change) since the last evaluation */
+    int64_t last_state_ms;        /* input time of the last stored state; 0 none */
+    int last_state_quality;       /* its quality; -1 none */
+    /* what was last published (MQTT, emit): input time, qualities, and when
+     * (monotonic), for the heartbeat of the retained state */
+    int64_t pub_t_ms, pub_mono_ms;
+    int pub_quality, pub_depth_quality, pub_have;
     struct hs_hydro hydro;
     int hydro_ok;
     struct hs_hydro_report report;
@@ -124,7 +130,11 @@ struct hs_runtime {
     int64_t next_maintain_ms;
     int64_t next_calib_ms;        /* monotonic; 0: re-read the readings now */
     int64_t next_command_ms;
+    int64_t next_schedule_ms;     /* monotonic: when to look at the schedule again */
+    int64_t schedule_day;         /* UTC day of the last published schedule; -1 none */
+    int64_t state_heartbeat_ms;   /* republish an unchanged retained state this often; 0 never */
     uint64_t samples_in, cycles;
+    uint64_t states_stored, states_published;
     int64_t started_ms;
 };
 
@@ -142,6 +152,9 @@ void hs_rt_age_readings(hs_runtime *rt, int64_t now_ms);
 /* Writes one register or coil through the bus's worker. 0 / -1. */
 int hs_rt_write(hs_runtime *rt, int bus, uint8_t unit_id, int coil, uint16_t address,
                 uint16_t value);
+
+/* hs_runtime_schedule.c: the chain schedule, daily, retained on MQTT */
+void hs_rt_schedule_tick(hs_runtime *rt, int64_t mono_ms, int64_t now_ms);
 
 /* hs_runtime_transfer.c */
 int hs_rt_transfers_init(hs_runtime *rt);

@@ -303,6 +303,16 @@ void hs_rt_transfers_run(hs_runtime *rt, int64_t mono_ms, int64_t now_ms)
                    hs_transfer_reason_text(HS_XR_NO_RUN_FEEDBACK), x->state.failed_starts,
                    x->state.failed_starts == 1 ? "" : "s");
         }
+        /* say once per run that the pump confirmed: the operator's proof
+         * that the command reached the plant */
+        if (!d.pump_on) {
+            x->feedback_seen = 0;
+        } else if (!x->feedback_seen && in.run_feedback.quality == HS_XQ_GOOD &&
+                   in.run_feedback.value != 0.0) {
+            x->feedback_seen = 1;
+            hs_log(HSP_LOG_NOTICE, "[transfer %s]: run feedback confirms the pump is running",
+                   t->name);
+        }
         if (d.lockout_alarm)
             hs_log(HSP_LOG_ERR, "[transfer %s]: %s after %d failed starts; acknowledge its "
                    "feedback-lockout alarm to reset", t->name,
