@@ -1,9 +1,11 @@
 /* halostaged --check; see hs_commission.h. */
 #include <stdio.h>
+#include <string.h>
 
 #include "hs_commission.h"
 #include "hs_conf_transfer.h"
 #include "hs_config.h"
+#include "hs_mqtt_secret.h"
 
 int hs_check_run(const char *config_path)
 {
@@ -16,6 +18,19 @@ int hs_check_run(const char *config_path)
             fprintf(stderr, "%s: %u more errors not shown\n", config_path, diag.dropped);
         return HS_EXIT_CONFIG;
     }
+    /* The start-up's own secret checks, so that --check never passes a
+     * file the daemon would then refuse (a restart loop under systemd). */
+    const hs_mqtt_conf *m = site.mqtt;
+    char password[256], err[2048];
+    if (m != NULL && m->enabled &&
+        hs_mqtt_password(m, config_path, password, sizeof password, err, sizeof err) != 0) {
+        fprintf(stderr, "%s\n", err);
+        hs_site_free(&site);
+        return HS_EXIT_CONFIG;
+    }
+    explicit_bzero(password, sizeof password);
+    if (hs_mqtt_password_in_clear(m, config_path, err, sizeof err))
+        fprintf(stderr, "warning: %s\n", err);
     /* advice, not refusal: a site may have no manual signal wired */
     for (size_t i = 0; i < site.n_transfers; i++)
         if (site.transfers[i].actuate && site.transfers[i].manual_index < 0)
