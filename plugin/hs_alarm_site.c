@@ -4,8 +4,8 @@
 #include <math.h>
 #include <stdio.h>
 
-static void add_rule(hs_alarm_engine *eng, const char *pond, hs_rule_kind kind, const char *name,
-                     double low, double high)
+void hs_alarm_site_add_rule(hs_alarm_engine *eng, const char *pond, hs_rule_kind kind,
+                            const char *name, double low, double high)
 {
     hs_alarm_rule r;
     hs_alarm_rule_default(&r, kind);
@@ -17,6 +17,12 @@ static void add_rule(hs_alarm_engine *eng, const char *pond, hs_rule_kind kind, 
     if (hs_alarm_rule_check(&r) != NULL)
         return; /* a limit the pond does not have */
     hs_alarm_add(eng, &r, pond);
+}
+
+static void add_rule(hs_alarm_engine *eng, const char *pond, hs_rule_kind kind,
+                     const char *name, double low, double high)
+{
+    hs_alarm_site_add_rule(eng, pond, kind, name, low, high);
 }
 
 void hs_alarm_site_rules(const hs_site *site, hs_alarm_engine *eng)

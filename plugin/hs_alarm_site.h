@@ -11,4 +11,10 @@
 
 void hs_alarm_site_rules(const hs_site *site, hs_alarm_engine *eng);
 
+/* One built-in rule of `kind` named `name` for `pond`, with the limits
+ * given (NaN: the kind's default); skipped when the rule is incomplete
+ * (a limit the pond does not have). */
+void hs_alarm_site_add_rule(hs_alarm_engine *eng, const char *pond, hs_rule_kind kind,
+                            const char *name, double low, double high);
+
 #endif
