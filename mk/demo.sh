@@ -2,9 +2,14 @@
 # `make demo`: the whole job on the invented salt works of config/demo.ini.
 # Starts the pond-chain simulator (accelerated), a private mosquitto on a
 # free loopback port when mosquitto is installed, and halostaged; shows a
-# live status table of every pond for about a minute; then stops all it
+# live status table of every pond for about a minute and serves the
+# operators' page on loopback (its address is printed); then stops all it
 # started, by PID, and leaves the history file for `halostage history`.
 # HS_DEMO_SECONDS (default 60) and HS_DEMO_SPEED (default 600) adjust it.
+# The actuated feed from the brine store to crystalliser x1 runs one cycle in
+# that minute: it starts (its pump coil is written over Modbus), the run
+# feedback confirms, and it stops on its own rule when x1 is full; the
+# screen follows it and the end summary lists it from the daemon's log.
 set -u
 cd "$(dirname "$0")/.."
 build=${1:-build}
@@ -68,6 +73,15 @@ if command -v mosquitto >/dev/null; then
     fi
 fi
 
+# The operators' page on a free loopback port, views public, one operator
+# login with a fresh password for this run.
+webport=$(free_port)
+webpass=$(/usr/bin/python3 -c 'import secrets; print(secrets.token_urlsafe(9))')
+rm -f "$out/web-users"
+printf '\n[web]\nlisten = 127.0.0.1:%s\nusers_file = web-users\npublic_view = yes\n' "$webport" >>"$out/demo.ini"
+printf '%s\n' "$webpass" | "$build/halostage" user --config "$out/demo.ini" add demo --role operator >/dev/null
+web="http://127.0.0.1:$webport/ (log in as demo / $webpass to acknowledge)"
+
 "$build/halostage-sim" --config "$out/demo.ini" --speed "$speed" >"$out/sim.log" 2>&1 &
 pids+=($!)
 if ! wait_port "$dikes" || ! wait_port "$analysers"; then
@@ -77,6 +91,12 @@ fi
 "$build/halostaged" --config "$out/demo.ini" --log-level notice 2>"$out/halostaged.log" &
 daemon=$!
 pids+=("$daemon")
+
+# The store -> x1 cycle as the daemon logged it (start, feedback, stop).
+actuation_lines() {
+    grep -E '\[transfer store-to-x1\]: (run|idle|wait|blocked|pump output (RUN|STOP) written|run feedback)' \
+        "$out/halostaged.log" 2>/dev/null | sed -e 's/^halostaged: [a-z]*: //'
+}
 
 start=$(date +%s)
 while :; do
@@ -91,9 +111,12 @@ while :; do
     [ -t 1 ] && printf '\033[H\033[2J'
     echo "halostage demo: invented salt works, simulator at ${speed}x (1 s here = $((speed / 60)) min there)"
     echo "MQTT $mqtt; ${left}s left (Ctrl-C stops)"
+    echo "Page: $web"
     echo "TO TARGET: time until the pond reaches its density_out at the recent pace (real time)"
     echo
     "$build/halostage" status --config "$out/demo.ini" 2>&1 || true
+    echo
+    echo "actuated transfer store -> x1: $(actuation_lines | tail -1)"
     echo
     echo "latest daemon log lines:"
     tail -4 "$out/halostaged.log" | cut -c1-150
@@ -106,6 +129,8 @@ rc=$?
 stop_all
 echo
 echo "halostaged stopped (exit $rc); everything the demo started is stopped."
+echo "Actuation cycle of the store -> x1 feed (from the daemon's log):"
+actuation_lines | sed 's/^/  /'
 if [ -f "$out/mqtt.log" ]; then
     echo "MQTT messages seen by a subscriber: $(wc -l <"$out/mqtt.log")"
 fi

@@ -110,6 +110,7 @@ int hs_alarm_get(const hs_alarm_engine *eng, size_t i, hs_alarm_info *out)
         .active = a->active, .value = a->value, .priority = a->rule.priority,
         .episode_id = a->episode_id, .last_event_id = a->last_event_id,
         .shelved_until_ms = a->shelved_until_ms, .uncertain = a->uncertain,
+        .max_shelve_ms = a->rule.max_shelve_ms,
     };
     return 0;
 }

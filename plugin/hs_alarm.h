@@ -237,6 +237,7 @@ typedef struct {
     uint64_t last_event_id;
     int64_t shelved_until_ms;
     int uncertain;            /* past its limit within 2u: not acted on (uncertain-source) */
+    int64_t max_shelve_ms;    /* the rule's longest shelve */
 } hs_alarm_info;
 
 /* i-th alarm (0 <= i < count); strings live as long as the engine. */

@@ -150,9 +150,11 @@ struct link_ctx {
 static int check_pond(void *ctx, const char *name)
 {
     struct link_ctx *l = ctx;
+    char hint[160];
     if (name[0] == '\0' || hs_site_pond(l->site, name) < 0)
         hs_cfg_error(l->cfg, hs_cfg_where(l->cfg, &hs_section_alarm, l->index, "ponds"),
-                     "ponds: no [pond %s] in this file", name);
+                     "ponds: no [pond %s] in this file%s", name,
+                     hs_site_pond_hint(l->site, name, hint, sizeof hint));
     return 0;
 }
 

@@ -74,7 +74,8 @@ static int signal_add(hs_site *site, hs_cfg *cfg, const char *name)
     if (q < 0) {
         hs_cfg_error(cfg, line, "unknown quantity '%s' (use conductivity, temperature, "
                      "level-pressure, level-distance, density, pressure-upper, rain, "
-                     "pump-run, pump-manual)", dot + 1);
+                     "pump-run, pump-manual, air-temperature, humidity, wind-speed, "
+                     "solar-radiation)", dot + 1);
         return -1;
     }
     int i = hs_cfg_grow((void **)&site->signals, &site->n_signals, sizeof site->signals[0]);
@@ -113,6 +114,10 @@ static const hs_unit_kind *kind_of(hs_quantity q)
     case HS_Q_LEVEL_DISTANCE: return &hs_unit_length;
     case HS_Q_DENSITY: return &hs_unit_density;
     case HS_Q_RAIN: return &hs_unit_rain;
+    case HS_Q_AIR_TEMPERATURE: return &hs_unit_temperature;
+    case HS_Q_HUMIDITY: return &hs_unit_humidity;
+    case HS_Q_WIND_SPEED: return &hs_unit_speed;
+    case HS_Q_SOLAR_RADIATION: return &hs_unit_irradiance;
     default: return &hs_unit_state;
     }
 }
@@ -149,7 +154,7 @@ static void signal_finish(hs_site *site, hs_cfg *cfg, size_t index)
     if (g->accuracy[0]) {
         char why[160];
         if (hs_accuracy_parse(g->accuracy, g->si_factor != 0.0 ? g->si_factor : 1.0,
-                              &g->accuracy_abs_si, &g->accuracy_rel, why, sizeof why) != 0)
+                              &g->accuracy_abs_si, &g->accuracy_rel, why, sizeof why) < 0)
             hs_cfg_error(cfg, where(cfg, index, "accuracy"), "accuracy: %s", why);
         else
             g->accuracy_set = 1;
@@ -193,15 +198,16 @@ static void signal_link(hs_site *site, hs_cfg *cfg)
 {
     for (size_t i = 0; i < site->n_signals; i++) {
         G *g = &site->signals[i];
+        char hint[160];
         g->pond_index = hs_site_pond(site, g->pond);
         if (g->pond_index < 0)
-            hs_cfg_error(cfg, g->line, "[signal %s]: no [pond %s] in this file",
-                         g->name, g->pond);
+            hs_cfg_error(cfg, g->line, "[signal %s]: no [pond %s] in this file%s",
+                         g->name, g->pond, hs_site_pond_hint(site, g->pond, hint, sizeof hint));
         g->bus_index = hs_site_bus(site, g->bus);
         if (g->bus_index < 0) {
             if (g->bus[0])
-                hs_cfg_error(cfg, where(cfg, i, "bus"), "bus: no [bus %s] in this file",
-                             g->bus);
+                hs_cfg_error(cfg, where(cfg, i, "bus"), "bus: no [bus %s] in this file%s",
+                             g->bus, hs_site_bus_hint(site, g->bus, hint, sizeof hint));
             continue;
         }
         const hs_bus *b = &site->buses[g->bus_index];

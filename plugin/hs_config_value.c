@@ -20,9 +20,10 @@ static const hs_unit area_units[] = {
 static const hs_unit density_units[] = {
     {"kg/m3", 1.0, 0.0}, {"g/cm3", 1000.0, 0.0}, {"g/mL", 1000.0, 0.0},
     {"g/L", 1.0, 0.0}, {NULL, 0, 0}};
-/* Temperatures are degC on ITS-90 throughout. */
+/* Temperatures are degC on ITS-90 throughout; t_C = (t_F - 32) * 5/9. */
 static const hs_unit temperature_units[] = {
-    {"C", 1.0, 0.0}, {"degC", 1.0, 0.0}, {NULL, 0, 0}};
+    {"C", 1.0, 0.0}, {"degC", 1.0, 0.0}, {"F", 5.0 / 9.0, -160.0 / 9.0},
+    {"degF", 5.0 / 9.0, -160.0 / 9.0}, {NULL, 0, 0}};
 static const hs_unit angle_units[] = {{"deg", 1.0, 0.0}, {NULL, 0, 0}};
 /* Pressure in Pa. 1 mH2O = 9806.65 Pa is the conventional metre of water
  * (water 1000 kg/m3 under standard gravity 9.80665 m/s2, CGPM 1901). */
@@ -38,6 +39,11 @@ static const hs_unit conductivity_units[] = {
 static const hs_unit rain_units[] = {
     {"mm", 0.001, 0.0}, {"m", 1.0, 0.0}, {NULL, 0, 0}};
 static const hs_unit state_units[] = {{"state", 1.0, 0.0}, {NULL, 0, 0}};
+/* Relative humidity as a fraction; wind in m/s; irradiance in W/m2. */
+static const hs_unit humidity_units[] = {{"%", 0.01, 0.0}, {"fraction", 1.0, 0.0}, {NULL, 0, 0}};
+static const hs_unit speed_units[] = {
+    {"m/s", 1.0, 0.0}, {"km/h", 1.0 / 3.6, 0.0}, {NULL, 0, 0}};
+static const hs_unit irradiance_units[] = {{"W/m2", 1.0, 0.0}, {NULL, 0, 0}};
 
 const hs_unit_kind hs_unit_length = {"length", length_units, false};
 const hs_unit_kind hs_unit_area = {"area", area_units, false};
@@ -50,6 +56,9 @@ const hs_unit_kind hs_unit_pressure = {"pressure", pressure_units, false};
 const hs_unit_kind hs_unit_conductivity = {"conductivity", conductivity_units, false};
 const hs_unit_kind hs_unit_rain = {"rain depth", rain_units, false};
 const hs_unit_kind hs_unit_state = {"state", state_units, true};
+const hs_unit_kind hs_unit_humidity = {"relative humidity", humidity_units, false};
+const hs_unit_kind hs_unit_speed = {"speed", speed_units, false};
+const hs_unit_kind hs_unit_irradiance = {"irradiance", irradiance_units, false};
 
 const hs_unit *hs_unit_find(const hs_unit_kind *kind, const char *name)
 {

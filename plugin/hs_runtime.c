@@ -4,10 +4,12 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 
 #include "hc_level.h"
 #include "hs_conf_alarm.h"
 #include "hs_conf_mqtt.h"
+#include "hs_conf_web.h"
 #include "hs_config.h"
 #include "hs_log.h"
 #include "hs_runtime_private.h"
@@ -118,6 +120,8 @@ static int site_parts_open(hs_runtime *rt, hs_brine_models *models)
     for (size_t i = 0; i < site->n_ponds; i++) {
         hs_pond_aids_clear(&rt->ponds[i].aids);
         hc_state_clear(&rt->ponds[i].view.state);
+        rt->ponds[i].last_state_quality = -1;
+        rt->ponds[i].dirty = 1; /* the first cycle publishes what is known, even nothing */
         rt->ponds[i].view.depth_m = NAN;
         rt->ponds[i].view.quality = HS_QUALITY_BAD;
     }
@@ -190,10 +194,23 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
         return HSP_ERR_RUNTIME;
     }
     rt->started_ms = hs_rt_wall_ms();
+    /* who holds the site and since when, for `status` once we are gone */
+    if (hs_store_meta_set(rt->store, "daemon_pid", (int64_t)getpid()) != 0 ||
+        hs_store_meta_set(rt->store, "daemon_started_ms", rt->started_ms) != 0 ||
+        hs_store_meta_set(rt->store, "daemon_seen_ms", rt->started_ms) != 0 ||
+        hs_store_meta_set(rt->store, "daemon_stopped_ms", 0) != 0)
+        hs_log(HSP_LOG_WARNING, "store: %s", hs_store_error(rt->store));
     int64_t mono = hs_rt_mono_ms();
     rt->next_eval_ms = mono;
     rt->next_maintain_ms = mono + HS_RT_MAINTAIN_MS;
     rt->next_command_ms = mono;
+    rt->next_schedule_ms = mono;
+    rt->schedule_day = -1;
+    if (rt->site.web != NULL && hs_web_start(config_path, &rt->web) != 0) {
+        hs_log(HSP_LOG_ERR, "%s:%d: [web] could not start", config_path, rt->site.web->line);
+        hs_runtime_close(rt);
+        return HSP_ERR_RUNTIME;
+    }
     hs_rt_emit_gateway(rt, 1, rt->started_ms);
     hs_log(HSP_LOG_NOTICE, "site %s: %zu ponds, %zu signals on %zu buses, %zu transfers; "
            "history in %s; MQTT %s", rt->site.site.name, rt->site.n_ponds, rt->site.n_signals,
@@ -235,14 +252,21 @@ static void note_uncertain_alarms(hs_runtime *rt, size_t i)
     snprintf(p->uncertain, sizeof p->uncertain, "%s", now);
 }
 
-static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms)
+/* A pond is evaluated every cycle (its alarms watch the age of its
+ * inputs), but its state is fed to the hydrology, stored and published
+ * only when a new input arrived or an input's quality changed; an
+ * unchanged retained state goes out again every state_heartbeat_ms. */
+static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms, int64_t mono_ms)
 {
     struct hs_rt_pond *p = &rt->ponds[i];
+    int fresh = p->dirty;
     p->aids.calibration = p->calib_ok ? &p->calibration : NULL; /* rt->ponds may have moved */
     hs_pond_evaluate(&rt->site, i, rt->readings, rt->models, &p->aids, rt->gravity_m_s2, now_ms,
                      &p->view);
-    hs_rt_hydro_update(rt, i, now_ms);
-    if (p->view.have_state) {
+    if (fresh)
+        hs_rt_hydro_update(rt, i, now_ms);
+    if (fresh && p->view.have_state &&
+        (p->view.t_ms != p->last_state_ms || (int)p->view.quality != p->last_state_quality)) {
         hs_pond_extra extra;
         hs_pond_extra_clear(&extra);
         extra.depth_m = p->view.depth_m;
@@ -256,6 +280,9 @@ static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms)
         if (hs_store_add_state(rt->store, rt->site.ponds[i].name, p->view.t_ms, &p->view.state,
                                &extra, p->view.quality) != 0)
             hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
+        p->last_state_ms = p->view.t_ms;
+        p->last_state_quality = (int)p->view.quality;
+        rt->states_stored++;
     }
     hs_alarm_input in;
     hs_alarm_input_clear(&in);
@@ -270,8 +297,21 @@ static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms)
             in.bus_down = 1;
     hs_alarm_update(rt->alarms, rt->site.ponds[i].name, &in, now_ms, alarm_emit, rt);
     note_uncertain_alarms(rt, i);
-    hs_rt_enqueue_state(rt, i, now_ms);
-    hs_rt_emit_pond(rt, i, now_ms);
+    int changed = p->pub_mono_ms == 0 || p->view.t_ms != p->pub_t_ms ||
+                  (int)p->view.quality != p->pub_quality ||
+                  (int)p->view.depth_quality != p->pub_depth_quality ||
+                  p->view.have_state != p->pub_have;
+    int heartbeat = rt->state_heartbeat_ms > 0 && mono_ms - p->pub_mono_ms >= rt->state_heartbeat_ms;
+    if ((fresh && changed) || heartbeat) {
+        hs_rt_enqueue_state(rt, i, now_ms);
+        hs_rt_emit_pond(rt, i, now_ms);
+        p->pub_t_ms = p->view.t_ms;
+        p->pub_quality = (int)p->view.quality;
+        p->pub_depth_quality = (int)p->view.depth_quality;
+        p->pub_have = p->view.have_state;
+        p->pub_mono_ms = mono_ms;
+        rt->states_published++;
+    }
     p->dirty = 0;
 }
 
@@ -288,10 +328,12 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
     hs_rt_drain(rt, now);
     hs_rt_age_readings(rt, now);
     hs_rt_calib_refresh(rt, mono);
-    int periodic = mono >= rt->next_eval_ms;
+    int periodic = mono >= rt->next_eval_ms, evaluated = 0;
     for (size_t i = 0; i < rt->site.n_ponds; i++)
-        if (rt->ponds[i].dirty || periodic)
-            evaluate_pond(rt, i, now);
+        if (rt->ponds[i].dirty || periodic) {
+            evaluate_pond(rt, i, now, mono);
+            evaluated = 1;
+        }
     if (periodic) {
         hs_alarm_tick(rt->alarms, now, alarm_emit, rt);
         /* no transfer decides on a site that has not been read yet */
@@ -301,16 +343,23 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
         rt->cycles++;
         hs_rt_scada_beat(rt, now);
     }
+    if (hs_web_take_command_hint(rt->web))
+        rt->next_command_ms = mono; /* the page waits for its answer */
     if (mono >= rt->next_command_ms) {
         hs_store_command_take(rt->store, command_from_queue, rt);
         rt->next_command_ms = mono + COMMANDS_EVERY_MS;
     }
     if (hs_store_flush(rt->store) != 0)
         hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
+    if (evaluated)
+        hs_web_notify(rt->web); /* after the flush: the page reads committed rows */
+    hs_rt_schedule_tick(rt, mono, now);
     hs_rt_mqtt_pump(rt, 0);
     if (mono >= rt->next_maintain_ms) {
         if (hs_store_maintain(rt->store, now) != 0)
             hs_log(HSP_LOG_WARNING, "store maintenance: %s", hs_store_error(rt->store));
+        if (hs_store_meta_set(rt->store, "daemon_seen_ms", now) != 0)
+            hs_log(HSP_LOG_WARNING, "store: %s", hs_store_error(rt->store));
         rt->next_maintain_ms = mono + HS_RT_MAINTAIN_MS;
     }
     *next_ms = HS_RT_TICK_MS;
@@ -363,6 +412,7 @@ int hs_runtime_reload(hs_runtime *rt, const char *config_path)
         hs_log(HSP_LOG_WARNING, "%s: [mqtt] changed: that takes a restart; the running link "
                "stays as it was", config_path);
     rt->warm = 0;
+    rt->schedule_day = -1; /* a new site: a new schedule */
     int ok = site_parts_open(rt, models) == 0 && alarms_open(rt) == 0 &&
              hs_rt_scada_open(rt) == 0;
     for (size_t i = 0; ok && old_names != NULL && i < rt->site.n_transfers; i++)
@@ -374,6 +424,12 @@ int hs_runtime_reload(hs_runtime *rt, const char *config_path)
     free(old);
     free(old_names);
     rt->commands.engine = rt->alarms;
+    /* the page follows the new file: its users, ponds and [web] keys */
+    hs_web_stop(rt->web);
+    rt->web = NULL;
+    if (ok && rt->site.web != NULL && hs_web_start(config_path, &rt->web) != 0)
+        hs_log(HSP_LOG_ERR, "reload: [web] could not start; the page is off until the next "
+               "reload");
     if (!ok) {
         hs_log(HSP_LOG_ERR, "reload: the new configuration could not be started");
         return HSP_ERR_RUNTIME;
@@ -411,6 +467,8 @@ void hs_runtime_close(hs_runtime *rt)
 {
     if (rt == NULL)
         return;
+    hs_web_stop(rt->web); /* no page requests while we shut down */
+    rt->web = NULL;
     /* pumps first: nothing may run on after we stop watching */
     if (rt->queue != NULL && rt->store != NULL && rt->readings != NULL && rt->buses != NULL)
         hs_rt_drain(rt, hs_rt_wall_ms());
@@ -425,6 +483,8 @@ void hs_runtime_close(hs_runtime *rt)
     site_parts_free(rt);
     hs_alarm_free(rt->alarms);
     if (rt->store != NULL) {
+        if (hs_store_meta_set(rt->store, "daemon_stopped_ms", hs_rt_wall_ms()) != 0)
+            hs_log(HSP_LOG_WARNING, "store: %s", hs_store_error(rt->store));
         hs_store_checkpoint(rt->store, 1);
         hs_store_close(rt->store);
     }

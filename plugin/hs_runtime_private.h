@@ -25,6 +25,7 @@
 #include "hs_stage_table.h"
 #include "hs_store.h"
 #include "hs_transfer.h"
+#include "hs_web.h"
 
 #define HS_RT_QUEUE_CAPACITY 4096
 #define HS_RT_TICK_MS 100          /* how often the main loop looks at the queue */
@@ -47,6 +48,7 @@ struct hs_rt_transfer {
     unsigned rain_n, rain_head;
     double predicted_mix_kg_m3;   /* last mixing prediction, NaN unknown */
     int64_t flow_ms;              /* wall time up to which pumping is in the balances */
+    int feedback_seen;            /* this run's feedback has confirmed the pump (logged) */
 };
 
 /* Per-pond memory between cycles. */
@@ -56,8 +58,13 @@ struct hs_rt_pond {
     hc_calibration calibration;   /* the pond's fit when calib_ok */
     int calib_ok;
     size_t calib_rows, calib_skipped; /* readings behind the fit, to notice new ones */
-    int dirty;                    /* new samples since the last evaluation */
-    int64_t last_state_ms;        /* wall time of the last stored state */
+    int dirty;                    /* new samples (or a quality change) since the last evaluation */
+    int64_t last_state_ms;        /* input time of the last stored state; 0 none */
+    int last_state_quality;       /* its quality; -1 none */
+    /* what was last published (MQTT, emit): input time, qualities, and when
+     * (monotonic), for the heartbeat of the retained state */
+    int64_t pub_t_ms, pub_mono_ms;
+    int pub_quality, pub_depth_quality, pub_have;
     struct hs_hydro hydro;
     int hydro_ok;
     struct hs_hydro_report report;
@@ -99,6 +106,7 @@ struct hs_runtime {
     hp_mqtt *link;                /* NULL: MQTT off */
     hs_publisher *publisher;
     hs_commands commands;
+    hs_web *web;                  /* NULL: no [web] section */
     hs_mb_image *mb_image;        /* [modbus_server]: the map; NULL off */
     hp_mbserver *mb_server;       /* its thread; reads mb_image only */
     hs_sparkplug *spb;            /* [sparkplug]: the edge node's thread; NULL off */
@@ -108,7 +116,11 @@ struct hs_runtime {
     int64_t next_maintain_ms;
     int64_t next_calib_ms;        /* monotonic; 0: re-read the readings now */
     int64_t next_command_ms;
+    int64_t next_schedule_ms;     /* monotonic: when to look at the schedule again */
+    int64_t schedule_day;         /* UTC day of the last published schedule; -1 none */
+    int64_t state_heartbeat_ms;   /* republish an unchanged retained state this often; 0 never */
     uint64_t samples_in, cycles;
+    uint64_t states_stored, states_published;
     int64_t started_ms;
 };
 
@@ -126,6 +138,9 @@ void hs_rt_age_readings(hs_runtime *rt, int64_t now_ms);
 /* Writes one register or coil through the bus's worker. 0 / -1. */
 int hs_rt_write(hs_runtime *rt, int bus, uint8_t unit_id, int coil, uint16_t address,
                 uint16_t value);
+
+/* hs_runtime_schedule.c: the chain schedule, daily, retained on MQTT */
+void hs_rt_schedule_tick(hs_runtime *rt, int64_t mono_ms, int64_t now_ms);
 
 /* hs_runtime_transfer.c */
 int hs_rt_transfers_init(hs_runtime *rt);

@@ -99,6 +99,20 @@ static struct hs_xfer_input pond_density(const hs_runtime *rt, int pond)
     return (struct hs_xfer_input){v->state.density_ref_kg_m3, xq(v->quality)};
 }
 
+/* The stage trigger judges the source's brine at the reference temperature
+ * by its density there, as a hydrometer does: a pond that warms in the
+ * afternoon does not change stage for the trigger, and past halite no
+ * uncertain CF decides. */
+static hc_stage source_stage_ref(const hs_runtime *rt, int pond)
+{
+    const hs_pond_view *v = &rt->ponds[pond].view;
+    if (!v->have_state)
+        return HC_STAGE_NONE;
+    return hs_stage_at_density_ref(rt->models, rt->site.ponds[pond].feed_index,
+                                   v->state.density_ref_kg_m3,
+                                   rt->site.site.reference_temperature_c);
+}
+
 static struct hs_xfer_input pond_level(const hs_runtime *rt, int pond)
 {
     const hs_pond_view *v = &rt->ponds[pond].view;
@@ -188,7 +202,7 @@ void hs_rt_transfers_run(hs_runtime *rt, int64_t mono_ms, int64_t now_ms)
         in.now_ms = mono_ms;
         in.source_density = pond_density(rt, t->source_index);
         const hs_pond_view *sv = &rt->ponds[t->source_index].view;
-        in.source_stage = sv->state.stage;
+        in.source_stage = source_stage_ref(rt, t->source_index);
         in.source_density_u = sv->have_state ? hc_unc_density_ref(&sv->state) : NAN;
         if (in.source_density_u > 0.0)
             in.source_stage_low = hs_stage_at_density_ref(
@@ -221,6 +235,16 @@ void hs_rt_transfers_run(hs_runtime *rt, int64_t mono_ms, int64_t now_ms)
                    d.reasons & HS_XR_PUMP_STILL_RUNNING
                        ? hs_transfer_reason_text(HS_XR_PUMP_STILL_RUNNING)
                        : hs_transfer_reason_text(HS_XR_NO_RUN_FEEDBACK));
+        /* say once per run that the pump confirmed: the operator's proof
+         * that the command reached the plant */
+        if (!d.pump_on) {
+            x->feedback_seen = 0;
+        } else if (!x->feedback_seen && in.run_feedback.quality == HS_XQ_GOOD &&
+                   in.run_feedback.value != 0.0) {
+            x->feedback_seen = 1;
+            hs_log(HSP_LOG_NOTICE, "[transfer %s]: run feedback confirms the pump is running",
+                   t->name);
+        }
         write_output(rt, i, d.write, mono_ms);
         if (t->actuate && t->heartbeat_address >= 0 && t->bus_index >= 0)
             hs_rt_write(rt, t->bus_index, t->unit_id, 0, (uint16_t)t->heartbeat_address,

@@ -90,6 +90,12 @@ typedef enum {
     HS_Q_RAIN,             /* rain gauge, accumulated */
     HS_Q_PUMP_RUN,         /* feedback of the pond's outlet pump, 0/1 */
     HS_Q_PUMP_MANUAL,      /* the outlet pump is in local (manual) control, 0/1 */
+    /* Weather at the pond (a site's station may sit at any one pond): the
+     * open-water evaporation estimate of `halostage chain` (hc_penman.h). */
+    HS_Q_AIR_TEMPERATURE,  /* air temperature [degC] */
+    HS_Q_HUMIDITY,         /* relative humidity of the air, fraction [1] */
+    HS_Q_WIND_SPEED,       /* wind speed at 2 m [m/s] */
+    HS_Q_SOLAR_RADIATION,  /* incoming solar irradiance [W/m2] */
     HS_QUANTITY_COUNT
 } hs_quantity;
 
@@ -132,6 +138,7 @@ typedef struct {
 
 struct hs_transfer_conf;
 struct hs_mqtt_conf;
+struct hs_web_conf;
 struct hs_modbus_server_conf;
 struct hs_sparkplug_conf;
 
@@ -146,6 +153,7 @@ typedef struct hs_site {
     struct hs_transfer_conf *transfers; size_t n_transfers; /* hs_conf_transfer.h */
     struct hs_mqtt_conf *mqtt;     /* hs_conf_mqtt.h; NULL without [mqtt] */
     struct hs_alarm_conf *alarms; size_t n_alarms; /* hs_conf_alarm.h */
+    struct hs_web_conf *web;       /* hs_conf_web.h; NULL without [web] */
     struct hs_modbus_server_conf *modbus_server; /* hs_conf_scada.h; NULL: off */
     struct hs_sparkplug_conf *sparkplug;         /* hs_conf_scada.h; NULL: off */
     /* Other section types ([mqtt], [alarm NAME], [transfer NAME], ...) add
@@ -161,6 +169,13 @@ const char *hs_ion_name(hs_ion ion);
 int hs_site_bus(const hs_site *site, const char *name);
 int hs_site_pond(const hs_site *site, const char *name);
 int hs_site_feed(const hs_site *site, const char *name);
+/* For messages about a name the file does not have: " (did you mean 'x'?)"
+ * when a known name is close enough to be a slip, else " (ponds: a, b, ...)"
+ * (or " (the file has no ponds)"). Returns buf. */
+const char *hs_site_pond_hint(const hs_site *site, const char *name, char *buf, size_t len);
+const char *hs_site_bus_hint(const hs_site *site, const char *name, char *buf, size_t len);
+const char *hs_site_feed_hint(const hs_site *site, const char *name, char *buf, size_t len);
+const char *hs_site_signal_hint(const hs_site *site, const char *name, char *buf, size_t len);
 /* The signal of POND with QUANTITY, or NULL. */
 const hs_signal *hs_site_signal(const hs_site *site, int pond_index, hs_quantity quantity);
 

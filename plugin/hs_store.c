@@ -67,6 +67,11 @@ static const char *const migrations[] = {
     "ALTER TABLE pond_state ADD COLUMN sg_uncertainty REAL;"
     "ALTER TABLE pond_state ADD COLUMN baume_uncertainty REAL;"
     "ALTER TABLE pond_state ADD COLUMN cf_uncertainty REAL;",
+    /* 3 -> 4: inbound MQTT commands already answered (by request id, or by
+     * a hash of a retained one), so a repeat is answered, not applied. */
+    "CREATE TABLE command_seen(key TEXT PRIMARY KEY, t_ms INTEGER NOT NULL,"
+    " ok INTEGER NOT NULL, reply TEXT NOT NULL) STRICT, WITHOUT ROWID;"
+    "CREATE INDEX command_seen_t ON command_seen(t_ms);",
 };
 #define SCHEMA_VERSION ((int)(sizeof migrations / sizeof migrations[0]))
 

@@ -265,6 +265,13 @@ int hs_store_states(hs_store *st, const char *pond, int64_t since_ms, int64_t un
 /* Names of ponds that have states, sorted; fn called per name. */
 int hs_store_ponds(hs_store *st, void (*fn)(void *ctx, const char *pond), void *ctx);
 
+/* Named integers kept in the store (store_meta): the daemon's marks for
+ * `status` ("daemon_pid", "daemon_started_ms", "daemon_seen_ms",
+ * "daemon_stopped_ms") beside the store's own. get gives def when the key is
+ * absent. 0, or -1 with hs_store_error(). */
+int hs_store_meta_get(hs_store *st, const char *key, int64_t def, int64_t *out);
+int hs_store_meta_set(hs_store *st, const char *key, int64_t value);
+
 /* ---- commands queued by the CLI for the daemon --------------------------- */
 
 /* The CLI (another process) queues a command as JSON text; the daemon takes
@@ -278,5 +285,13 @@ int hs_store_command_take(hs_store *st, hs_command_fn fn, void *ctx);
 /* The reply of command id: 1 and a malloc'ed copy in *reply (caller frees)
  * once answered, 0 while pending, -1 on error or unknown id. */
 int hs_store_command_reply(hs_store *st, int64_t id, char **reply);
+
+/* Inbound commands already answered, by key ("id:REQUEST_ID" or
+ * "retained:HASH"): 1 and the recorded reply (malloc'ed, caller frees) and
+ * its ok flag when seen, 0 when not, -1 on error. Kept 30 days
+ * (hs_store_maintain). */
+int hs_store_command_seen(hs_store *st, const char *key, int *ok, char **reply);
+int hs_store_command_seen_add(hs_store *st, const char *key, int64_t t_ms, int ok,
+                              const char *reply);
 
 #endif

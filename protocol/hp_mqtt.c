@@ -53,11 +53,12 @@ static char *keep(hp_mqtt *m, int slot, const char *s)
 
 /* Appends an event (called from paho's threads and the owner's). */
 static void push(hp_mqtt *m, hp_mqtt_event_type type, int64_t tag, const char *topic,
-                 const void *payload, size_t len, int oversize, const char *reason)
+                 const void *payload, size_t len, int oversize, int retained, const char *reason)
 {
     struct event_node *n = calloc(1, sizeof *n);
     if (n == NULL)
         return;
+    n->ev.retained = retained;
     n->ev.type = type;
     n->ev.tag = tag;
     n->ev.payload_len = len;
@@ -99,7 +100,7 @@ static void push(hp_mqtt *m, hp_mqtt_event_type type, int64_t tag, const char *t
 
 static void on_connection_lost(void *ctx, char *cause)
 {
-    push(ctx, HP_MQTT_DISCONNECTED, 0, NULL, NULL, 0, 0, cause ? cause : "connection lost");
+    push(ctx, HP_MQTT_DISCONNECTED, 0, NULL, NULL, 0, 0, 0, cause ? cause : "connection lost");
 }
 
 static int on_message(void *ctx, char *topic, int topic_len, MQTTAsync_message *msg)
@@ -113,8 +114,9 @@ static int on_message(void *ctx, char *topic, int topic_len, MQTTAsync_message *
     name[tl] = '\0';
     size_t len = msg->payloadlen > 0 ? (size_t)msg->payloadlen : 0;
     int oversize = len > m->opt.max_inbound;
+    int retained = msg->retained != 0;
     push(m, HP_MQTT_MESSAGE, 0, name, oversize ? NULL : (msg->payload ? msg->payload : ""), len,
-         oversize, NULL);
+         oversize, retained, NULL);
     MQTTAsync_freeMessage(&msg);
     MQTTAsync_free(topic);
     return 1;
@@ -124,31 +126,33 @@ static void on_connected(void *ctx, char *cause)
 {
     hp_mqtt *m = ctx;
     (void)cause;
-    push(m, HP_MQTT_CONNECTED, 0, NULL, NULL, 0, 0, NULL);
+    push(m, HP_MQTT_CONNECTED, 0, NULL, NULL, 0, 0, 0, NULL);
 }
 
-static void on_connect_failure(void *ctx, MQTTAsync_failureData *resp)
+static void on_connect_failure(void *ctx, MQTTAsync_failureData5 *resp)
 {
-    char why[160];
-    snprintf(why, sizeof why, "connect failed (code %d)%s%s", resp ? resp->code : 0,
-             resp && resp->message ? ": " : "", resp && resp->message ? resp->message : "");
-    push(ctx, HP_MQTT_DISCONNECTED, 0, NULL, NULL, 0, 0, why);
+    char why[200];
+    snprintf(why, sizeof why, "connect failed (code %d, reason %d)%s%s", resp ? resp->code : 0,
+             resp ? (int)resp->reasonCode : 0, resp && resp->message ? ": " : "",
+             resp && resp->message ? resp->message : "");
+    push(ctx, HP_MQTT_DISCONNECTED, 0, NULL, NULL, 0, 0, 0, why);
 }
 
-static void on_publish_ok(void *ctx, MQTTAsync_successData *resp)
+static void on_publish_ok(void *ctx, MQTTAsync_successData5 *resp)
 {
     struct pub_ctx *p = ctx;
     (void)resp;
-    push(p->m, HP_MQTT_DELIVERED, p->tag, NULL, NULL, 0, 0, NULL);
+    push(p->m, HP_MQTT_DELIVERED, p->tag, NULL, NULL, 0, 0, 0, NULL);
     free(p);
 }
 
-static void on_publish_fail(void *ctx, MQTTAsync_failureData *resp)
+static void on_publish_fail(void *ctx, MQTTAsync_failureData5 *resp)
 {
     struct pub_ctx *p = ctx;
     char why[64];
-    snprintf(why, sizeof why, "publish failed (code %d)", resp ? resp->code : 0);
-    push(p->m, HP_MQTT_FAILED, p->tag, NULL, NULL, 0, 0, why);
+    snprintf(why, sizeof why, "publish failed (code %d, reason %d)", resp ? resp->code : 0,
+             resp ? (int)resp->reasonCode : 0);
+    push(p->m, HP_MQTT_FAILED, p->tag, NULL, NULL, 0, 0, 0, why);
     free(p);
 }
 
@@ -239,7 +243,7 @@ hp_mqtt *hp_mqtt_new(const hp_mqtt_options *o, char *err, size_t errlen)
     /* paho wants tcp:// and ssl:// spellings. */
     char uri[512];
     snprintf(uri, sizeof uri, "%s://%s", tls ? "ssl" : "tcp", strstr(o->uri, "://") + 3);
-    MQTTAsync_createOptions co = MQTTAsync_createOptions_initializer;
+    MQTTAsync_createOptions co = MQTTAsync_createOptions_initializer5;
     co.sendWhileDisconnected = 0; /* our outbox holds messages, not paho */
     co.maxBufferedMessages = m->opt.max_inflight + 16;
     int rc = MQTTAsync_createWithOptions(&m->client, uri, m->opt.client_id,
@@ -257,12 +261,21 @@ hp_mqtt *hp_mqtt_new(const hp_mqtt_options *o, char *err, size_t errlen)
 
 int hp_mqtt_start(hp_mqtt *m, char *err, size_t errlen)
 {
-    MQTTAsync_connectOptions co = MQTTAsync_connectOptions_initializer;
+    MQTTAsync_connectOptions co = MQTTAsync_connectOptions_initializer5;
     MQTTAsync_willOptions will = MQTTAsync_willOptions_initializer;
     MQTTAsync_SSLOptions ssl = MQTTAsync_SSLOptions_initializer;
+    /* MQTT 5: the broker is told the largest packet we take, so a huge
+     * publish is dropped at the broker instead of being read into memory
+     * here (paho reads a whole packet before it looks at it). */
+    MQTTProperties props = MQTTProperties_initializer;
+    MQTTProperty limit = {.identifier = MQTTPROPERTY_CODE_MAXIMUM_PACKET_SIZE};
+    limit.value.integer4 = (unsigned)hp_mqtt_packet_limit(&m->opt);
+    if (MQTTProperties_add(&props, &limit) != 0)
+        return fail(err, errlen, "mqtt: out of memory");
+    co.connectProperties = &props;
     co.keepAliveInterval = m->opt.keepalive_s;
-    co.cleansession = 1;
-    co.MQTTVersion = MQTTVERSION_3_1_1;
+    co.cleanstart = 1;
+    co.MQTTVersion = MQTTVERSION_5;
     co.maxInflight = m->opt.max_inflight;
     co.automaticReconnect = m->opt.no_reconnect ? 0 : 1;
     co.minRetryInterval = m->opt.min_retry_s;
@@ -270,7 +283,7 @@ int hp_mqtt_start(hp_mqtt *m, char *err, size_t errlen)
     co.connectTimeout = 10;
     co.username = m->opt.username;
     co.password = m->opt.password;
-    co.onFailure = on_connect_failure;
+    co.onFailure5 = on_connect_failure;
     co.context = m;
     if (m->opt.will_topic) {
         will.topicName = m->opt.will_topic;
@@ -293,10 +306,17 @@ int hp_mqtt_start(hp_mqtt *m, char *err, size_t errlen)
         co.ssl = &ssl;
     }
     int rc = MQTTAsync_connect(m->client, &co);
+    MQTTProperties_free(&props); /* paho keeps its own copy for reconnects */
     if (rc != MQTTASYNC_SUCCESS)
         return fail(err, errlen, "mqtt: cannot start connecting to %s (code %d)", m->opt.uri,
                     rc);
     return 0;
+}
+
+size_t hp_mqtt_packet_limit(const hp_mqtt_options *opt)
+{
+    size_t inbound = opt->max_inbound ? opt->max_inbound : 4096;
+    return inbound + HP_MQTT_PACKET_HEADROOM;
 }
 
 int hp_mqtt_connected(hp_mqtt *m)
@@ -327,8 +347,8 @@ int hp_mqtt_publish(hp_mqtt *m, const char *topic, const void *payload, size_t l
     msg.qos = qos;
     msg.retained = retained;
     MQTTAsync_responseOptions ro = MQTTAsync_responseOptions_initializer;
-    ro.onSuccess = on_publish_ok;
-    ro.onFailure = on_publish_fail;
+    ro.onSuccess5 = on_publish_ok;
+    ro.onFailure5 = on_publish_fail;
     ro.context = p;
     int rc = MQTTAsync_sendMessage(m->client, topic, &msg, &ro);
     if (rc != MQTTASYNC_SUCCESS) {
@@ -369,7 +389,11 @@ int hp_mqtt_poll(hp_mqtt *m, int timeout_ms, void (*fn)(void *ctx, const hp_mqtt
         if (list->ev.type == HP_MQTT_CONNECTED && m->opt.subscribe) {
             /* Renewed at every connect (clean sessions), from the owner's
              * thread rather than paho's callback. */
-            MQTTAsync_subscribe(m->client, m->opt.subscribe, 1, NULL);
+            MQTTAsync_responseOptions so = MQTTAsync_responseOptions_initializer;
+            /* keep the retain flag as published, so that a command published
+             * retained is seen as one even when it arrives live */
+            so.subscribeOptions.retainAsPublished = 1;
+            MQTTAsync_subscribe(m->client, m->opt.subscribe, 1, &so);
         }
         for (int i = 0; list->ev.type == HP_MQTT_CONNECTED && i < 2; i++)
             if (m->opt.subscribe_extra[i])
@@ -402,7 +426,7 @@ void hp_mqtt_free(hp_mqtt *m, int timeout_ms)
         return;
     if (m->client) {
         if (MQTTAsync_isConnected(m->client)) {
-            MQTTAsync_disconnectOptions d = MQTTAsync_disconnectOptions_initializer;
+            MQTTAsync_disconnectOptions d = MQTTAsync_disconnectOptions_initializer5;
             d.timeout = timeout_ms;
             if (MQTTAsync_disconnect(m->client, &d) == MQTTASYNC_SUCCESS) {
                 /* Wait for the disconnect to finish before destroying. */

@@ -1,4 +1,4 @@
-/* MQTT link on paho-mqtt-c's async API: connects with automatic reconnect
+/* MQTT link on paho-mqtt-c's async API (MQTT 5): connects with automatic reconnect
  * (exponential backoff between min_retry_s and max_retry_s), a last will,
  * TLS with server verification, and a username/password. It knows nothing
  * of ponds or of the outbox: it publishes what it is given and reports,
@@ -42,6 +42,13 @@ typedef struct {
     size_t max_inbound;     /* larger inbound payloads are reported, not copied; default 4096 */
 } hp_mqtt_options;
 
+/* Inbound payloads up to max_inbound + this are still read (and reported
+ * oversize, so that the sender gets an answer); the broker drops larger
+ * packets unread: the Maximum Packet Size of our CONNECT. */
+#define HP_MQTT_PACKET_HEADROOM 65536
+/* The Maximum Packet Size sent in CONNECT [bytes]. */
+size_t hp_mqtt_packet_limit(const hp_mqtt_options *opt);
+
 typedef enum {
     HP_MQTT_CONNECTED,      /* (re)connected; subscriptions are renewed */
     HP_MQTT_DISCONNECTED,   /* lost or failed to connect; reason says why */
@@ -57,6 +64,7 @@ typedef struct {
     const void *payload;    /* MESSAGE; NULL when oversize */
     size_t payload_len;     /* MESSAGE: the real length, even when oversize */
     int oversize;           /* MESSAGE: longer than max_inbound, payload dropped */
+    int retained;           /* MESSAGE: it carried the retain flag (a stored message) */
     const char *reason;     /* DISCONNECTED / FAILED: text; may be NULL */
 } hp_mqtt_event;
 

@@ -97,7 +97,8 @@ static void migrates_an_older_file(void **unused)
     hs_store *st = open_writer(NULL);
     hs_store_close(st);
     /* Make it look like a version-1 file: the rollup index that version 2
-     * drops, no uncertainty columns (version 3), and the old version number. */
+     * drops, no uncertainty columns (version 3), no command_seen (version
+     * 4), and the old version number. */
     sqlite3 *db;
     assert_int_equal(sqlite3_open(path, &db), SQLITE_OK);
     assert_int_equal(sqlite3_exec(db, "CREATE INDEX rollup_step_t ON rollup(step_s, t_ms);"
@@ -105,6 +106,7 @@ static void migrates_an_older_file(void **unused)
                                       "ALTER TABLE pond_state DROP COLUMN sg_uncertainty;"
                                       "ALTER TABLE pond_state DROP COLUMN baume_uncertainty;"
                                       "ALTER TABLE pond_state DROP COLUMN cf_uncertainty;"
+                                      "DROP TABLE command_seen;"
                                       "PRAGMA user_version = 1;", NULL, NULL, NULL), SQLITE_OK);
     sqlite3_close(db);
     char err[256];
@@ -117,6 +119,7 @@ static void migrates_an_older_file(void **unused)
                      0);
     assert_int_equal(scalar("SELECT count(*) FROM pragma_table_info('pond_state')"
                             " WHERE name LIKE '%uncertainty%'"), 4);
+    assert_int_equal(scalar("SELECT count(*) FROM sqlite_master WHERE name = 'command_seen'"), 1);
 }
 
 static void wal_and_strict(void **unused)
