@@ -226,6 +226,7 @@ static double quantity_value(struct alarm *a, const hs_alarm_input *in, int64_t 
     case HS_QTY_DENSITY_FALL: return density_fall(a, s ? s->density_ref_kg_m3 : NAN, now_ms);
     case HS_QTY_SAMPLE_AGE: return in->sample_age_s;
     case HS_QTY_BUS_DOWN: return in->bus_down < 0 ? NAN : (double)(in->bus_down != 0);
+    case HS_QTY_SENSORS_STUCK: return in->sensors_stuck;
     case HS_QTY_COUNT: break;
     }
     return NAN;

@@ -48,7 +48,8 @@ typedef enum {
     HS_RULE_LEVEL_LOW,
     HS_RULE_DENSITY_FALL,    /* rapid density fall, e.g. rain dilution */
     HS_RULE_SENSOR_STALE,    /* no good sample for too long */
-    HS_RULE_BUS_DOWN,        /* the pond's field bus is down */
+    HS_RULE_BUS_DOWN,        /* the pond's field bus, or a device it reads, is down */
+    HS_RULE_SENSOR_STUCK,    /* a signal of the pond repeats itself: stuck (flatline) */
     HS_RULE_KIND_COUNT
 } hs_rule_kind;
 
@@ -62,6 +63,7 @@ typedef enum {
     HS_QTY_DENSITY_FALL,   /* highest density in the window minus now [kg/m3] */
     HS_QTY_SAMPLE_AGE,     /* age of the pond's oldest needed sample [s] */
     HS_QTY_BUS_DOWN,       /* 1 when down, 0 when up */
+    HS_QTY_SENSORS_STUCK,  /* signals of the pond that are stuck (flatline) */
     HS_QTY_COUNT
 } hs_alarm_quantity;
 
@@ -113,6 +115,7 @@ typedef struct {
     double depth_m;
     double sample_age_s;
     int bus_down;                /* 1 down, 0 up, -1 unknown */
+    double sensors_stuck;        /* stuck signals of the pond; NaN unknown */
 } hs_alarm_input;
 
 void hs_alarm_input_clear(hs_alarm_input *in);
