@@ -10,6 +10,7 @@
 #   tests/unit/support/*.c are linked into every unit test
 #   tests/bench/bench_*.c -> build/bench/bench_*
 #   tests/tools/*.c -> build/tools/*  (helper programs for integration tests)
+#   protocol/*.proto -> build/gen/protocol/*.pb-c.[ch] (protoc-c), into libhp.a
 # `make SAN=1` builds the same into build/san with AddressSanitizer and
 # UndefinedBehaviorSanitizer.
 
@@ -36,7 +37,14 @@ CPPFLAGS += -DHS_VERSION='"$(HS_VERSION)"' -DHS_PLUGIN_DIR='"$(PLUGINDIR)"'
 CPPFLAGS += -D_GNU_SOURCE -Icalc -Iprotocol -Iplugin -Itests/unit/support $(PKG_CFLAGS)
 CFLAGS   += -std=c11 $(OPT) $(WARN) -fPIC $(SANFLAGS) -MMD -MP
 LDFLAGS  += $(SANFLAGS)
-LIBS     := $(PKG_LIBS) -lpaho-mqtt3as -ldl -lpthread -lm
+LIBS     := $(PKG_LIBS) -lpaho-mqtt3as -lprotobuf-c -ldl -lpthread -lm
+
+# Protobuf schemas: C generated at build time by protoc-c (protobuf-c-compiler).
+PROTO_SCHEMA := $(wildcard protocol/*.proto)
+GEN_DIR  := $(BUILD)/gen
+GEN_C    := $(patsubst protocol/%.proto,$(GEN_DIR)/protocol/%.pb-c.c,$(PROTO_SCHEMA))
+GEN_H    := $(GEN_C:.c=.h)
+CPPFLAGS += -I$(GEN_DIR)
 
 CALC_SRC   := $(wildcard calc/*.c)
 PROTO_SRC  := $(wildcard protocol/*.c)
@@ -84,15 +92,19 @@ libs: $(ALL_LIBS)
 tests: $(TESTS) $(TOOLS) $(TPLUGS)
 benches: $(BENCHES)
 
-$(BUILD)/obj/%.o: %.c
+$(BUILD)/obj/%.o: %.c | $(GEN_H)
 	@mkdir -p $(dir $@)
 	$(CC) $(CPPFLAGS) $(CFLAGS) -c $< -o $@
+
+$(GEN_DIR)/protocol/%.pb-c.c $(GEN_DIR)/protocol/%.pb-c.h: protocol/%.proto
+	@mkdir -p $(GEN_DIR)
+	protoc-c --c_out=$(GEN_DIR) $<
 
 # An archive may be empty while a layer has no code yet.
 $(LIBHC): $(call obj,$(CALC_SRC))
 	@mkdir -p $(dir $@)
 	rm -f $@ && ar rcs $@ $^
-$(LIBHP): $(call obj,$(PROTO_SRC))
+$(LIBHP): $(call obj,$(PROTO_SRC) $(GEN_C))
 	@mkdir -p $(dir $@)
 	rm -f $@ && ar rcs $@ $^
 $(LIBHS): $(call obj,$(PLUGIN_SRC))

@@ -229,6 +229,12 @@ hc_status hc_path_state_from_cf(const hc_path *path, double cf, double t_c, doub
     s.water_activity = p.water_activity;
     s.method = HC_METHOD_COMPOSITION;
     s.warnings = warn;
+    /* Past the halite onset density barely moves with CF (the same brine
+     * reads CF 61 at 40 degC and 131 at 15 degC through the model): the CF
+     * is reported, flagged, and decided on nowhere. */
+    if (isfinite(path->stage_cf[HC_STAGE_HALITE]) &&
+        p.concentration_factor >= path->stage_cf[HC_STAGE_HALITE])
+        s.warnings |= HC_WARN_CF_UNCERTAIN;
     if (t_c < 0.0 || t_c > 50.0)
         s.warnings |= HC_WARN_TEMPERATURE_EXTRAPOLATED;
     *out = s;

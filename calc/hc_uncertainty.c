@@ -14,6 +14,12 @@ double hc_unc_from_resolution(double resolution)
     return resolution / sqrt(12.0); /* GUM F.2.2.1: d/sqrt(12) */
 }
 
+double hc_unc_density_ref(const hc_brine_state *s)
+{
+    /* rho_ref = SG rho_w(t_ref), rho_w exact: u(rho_ref) = rho_w u(SG) [kg/m3] */
+    return s->sg_uncertainty * s->density_ref_kg_m3 / s->specific_gravity;
+}
+
 void hc_unc_outputs(const hc_brine_state *s, double *y)
 {
     y[HC_UNC_DENSITY] = s->density_kg_m3;

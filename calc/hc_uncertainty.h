@@ -64,6 +64,11 @@ void hc_unc_store(const double *u_y, hc_brine_state *state);
 /* The state's outputs in hc_unc_output order (for methods built on states). */
 void hc_unc_outputs(const hc_brine_state *state, double *y);
 
+/* Standard uncertainty of the state's density at the reference temperature
+ * [kg/m3]: u(SG) times the water density that SG is against
+ * (rho_ref / SG); NaN when not known. */
+double hc_unc_density_ref(const hc_brine_state *state);
+
 /* Relative standard uncertainty of the built-in brine conductivity model
  * (hc_brine_cond.h) as a description of a real seawater brine: 3 % (no
  * source: the model is NaCl's conductivity scaled to PSS-78 at S_P 42; real

@@ -4,6 +4,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "hc_uncertainty.h"
 #include "hs_alarm.h"
 
 #define FALL_SLOTS 16    /* density-fall window in 16 buckets of window/16 */
@@ -27,6 +28,10 @@ struct alarm {
         int64_t bucket;
         double max;
     } fall[FALL_SLOTS];
+    double filter[HS_FALL_FILTER_MAX]; /* density-fall: the last samples, a ring */
+    unsigned filter_n, filter_next;
+    int64_t filter_t_ms;      /* time of the last sample taken into the filter */
+    int uncertain;            /* nominally past its limit, but within k u */
 };
 
 struct hs_alarm_engine {
@@ -104,7 +109,8 @@ int hs_alarm_get(const hs_alarm_engine *eng, size_t i, hs_alarm_info *out)
         .pond = a->pond, .rule = a->rule.name, .kind = a->rule.kind, .state = a->state,
         .active = a->active, .value = a->value, .priority = a->rule.priority,
         .episode_id = a->episode_id, .last_event_id = a->last_event_id,
-        .shelved_until_ms = a->shelved_until_ms,
+        .shelved_until_ms = a->shelved_until_ms, .uncertain = a->uncertain,
+        .max_shelve_ms = a->rule.max_shelve_ms,
     };
     return 0;
 }
@@ -175,26 +181,81 @@ static void check_delay(hs_alarm_engine *eng, struct alarm *a, int64_t now_ms,
     }
 }
 
-/* The condition before delays, with the deadband applied on the way out. */
-static int raw_condition(struct alarm *a, double v)
+/* The condition before delays: past a limit by the margin m (k u; 0 when
+ * no uncertainty applies) to raise, back inside by max(deadband, m) to
+ * clear. Sets a->uncertain when the limit is crossed within the margin. */
+static int raw_condition(struct alarm *a, double v, double m)
 {
     const hs_alarm_rule *r = &a->rule;
-    if (!isnan(r->high) && (a->active ? v > r->high - r->deadband : v > r->high)) {
+    double band = fmax(r->deadband, m);
+    a->uncertain = 0;
+    if (!isnan(r->high) && (a->active ? v > r->high - band : v > r->high + m)) {
         a->limit = r->high;
         return 1;
     }
-    if (!isnan(r->low) && (a->active ? v < r->low + r->deadband : v < r->low)) {
+    if (!isnan(r->low) && (a->active ? v < r->low + band : v < r->low - m)) {
         a->limit = r->low;
         return 1;
     }
+    a->uncertain = !a->active && ((!isnan(r->high) && v > r->high) ||
+                                  (!isnan(r->low) && v < r->low));
     return 0;
 }
 
-/* Highest density in the look-back window minus the current one. */
-static double density_fall(struct alarm *a, double rho, int64_t now_ms)
+/* Median of n values (n <= HS_FALL_FILTER_MAX), by insertion sort of a copy. */
+static double median_of(const double *x, unsigned n)
 {
+    double s[HS_FALL_FILTER_MAX];
+    for (unsigned i = 0; i < n; i++) {
+        unsigned j = i;
+        for (; j > 0 && s[j - 1] > x[i]; j--)
+            s[j] = s[j - 1];
+        s[j] = x[i];
+    }
+    return n % 2 ? s[n / 2] : 0.5 * (s[n / 2 - 1] + s[n / 2]);
+}
+
+/* The filtered density (median of the last N samples) and the standard
+ * deviation of that median, sigma_f = 1.2533 (1.4826 MAD) / sqrt(N)
+ * (Rousseeuw & Croux 1993; Kenney & Keeping 1962); NaN until N samples. */
+static double filtered_density(struct alarm *a, double rho, int64_t t_ms, double *sigma_f)
+{
+    unsigned n = a->rule.filter_samples;
+    if (n < 1 || n > HS_FALL_FILTER_MAX)
+        n = HS_FALL_FILTER_DEFAULT;
+    /* one sample per input time: a state evaluated again on the same
+     * readings is not new evidence (and would shrink the noise estimate) */
+    if (t_ms == 0 || t_ms != a->filter_t_ms) {
+        a->filter[a->filter_next] = rho;
+        a->filter_next = (a->filter_next + 1) % n;
+        if (a->filter_n < n)
+            a->filter_n++;
+        a->filter_t_ms = t_ms;
+    }
+    *sigma_f = NAN;
+    if (a->filter_n < n)
+        return NAN;
+    double med = median_of(a->filter, n), dev[HS_FALL_FILTER_MAX];
+    for (unsigned i = 0; i < n; i++)
+        dev[i] = fabs(a->filter[i] - med);
+    *sigma_f = 1.2533 * 1.4826 * median_of(dev, n) / sqrt((double)n);
+    return med;
+}
+
+/* Highest filtered density in the look-back window minus the current one;
+ * *margin gets what the fall must exceed besides `high`: HS_FALL_NOISE_K
+ * standard deviations of the filtered density. */
+static double density_fall(struct alarm *a, double raw, int64_t t_ms, int64_t now_ms,
+                           double *margin)
+{
+    if (!isfinite(raw))
+        return NAN;
+    double sigma_f;
+    double rho = filtered_density(a, raw, t_ms, &sigma_f);
     if (!isfinite(rho))
         return NAN;
+    /* the fall must exceed max(high, K sigma_f): as a margin past `high` */
+    *margin = fmax(0.0, HS_FALL_NOISE_K * sigma_f - a->rule.high);
     int64_t width = a->rule.window_ms / FALL_SLOTS;
     int64_t bucket = now_ms / width;
     int slot = (int)(((bucket % FALL_SLOTS) + FALL_SLOTS) % FALL_SLOTS);
@@ -212,9 +273,20 @@ static double density_fall(struct alarm *a, double rho, int64_t now_ms)
     return top - rho;
 }
 
-static double quantity_value(struct alarm *a, const hs_alarm_input *in, int64_t now_ms)
+/* The value a rule compares and, in *margin, how far past a limit it must be
+ * to count (k u of the state, or the fall's noise; 0 when none applies). */
+static double quantity_value(struct alarm *a, const hs_alarm_input *in, int64_t now_ms,
+                             double *margin)
 {
     const hc_brine_state *s = in->state;
+    double u = NAN;
+    *margin = 0.0;
+    if (s != NULL && a->rule.quantity == HS_QTY_DENSITY)
+        u = hc_unc_density_ref(s);
+    else if (s != NULL && a->rule.quantity == HS_QTY_BAUME)
+        u = s->baume_uncertainty;
+    if (u > 0.0)
+        *margin = HS_DECISION_K * u;
     switch (a->rule.quantity) {
     case HS_QTY_HALITE_SI: return s ? s->saturation_index[HC_MIN_HALITE] : NAN;
     case HS_QTY_GYPSUM_SI: return s ? s->saturation_index[HC_MIN_GYPSUM] : NAN;
@@ -223,7 +295,8 @@ static double quantity_value(struct alarm *a, const hs_alarm_input *in, int64_t 
     case HS_QTY_DENSITY: return s ? s->density_ref_kg_m3 : NAN;
     case HS_QTY_BAUME: return s ? s->baume : NAN;
     case HS_QTY_DEPTH: return in->depth_m;
-    case HS_QTY_DENSITY_FALL: return density_fall(a, s ? s->density_ref_kg_m3 : NAN, now_ms);
+    case HS_QTY_DENSITY_FALL:
+        return density_fall(a, s ? s->density_ref_kg_m3 : NAN, in->state_t_ms, now_ms, margin);
     case HS_QTY_SAMPLE_AGE: return in->sample_age_s;
     case HS_QTY_BUS_DOWN: return in->bus_down < 0 ? NAN : (double)(in->bus_down != 0);
     case HS_QTY_SENSORS_STUCK: return in->sensors_stuck;
@@ -243,11 +316,12 @@ hs_alarm_result hs_alarm_update(hs_alarm_engine *eng, const char *pond, const hs
         if (strcmp(a->pond, pond) != 0)
             continue;
         seen = 1;
-        double v = quantity_value(a, in, now_ms);
+        double margin;
+        double v = quantity_value(a, in, now_ms, &margin);
         if (isnan(v)) /* unknown: the condition holds as it was */
             continue;
         a->value = v;
-        int raw = raw_condition(a, v);
+        int raw = raw_condition(a, v, margin);
         if (raw != a->raw) {
             a->raw = raw;
             a->raw_since_ms = now_ms;

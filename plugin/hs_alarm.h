@@ -14,6 +14,21 @@
  * that long before the alarm raises or clears). An unknown value (NaN) holds
  * the condition as it was; the stale-sensor rule catches missing data.
  *
+ * Uncertainty (a state's standard uncertainties, hc_uncertainty.h): a
+ * density or Baume rule raises only when the value is past its limit by
+ * HS_DECISION_K (2) standard uncertainties, and clears only when back inside
+ * by max(deadband, 2u). Where the value is past the limit but within 2u the
+ * alarm does not act and says so: hs_alarm_info.uncertain is set (the
+ * caller logs it as `uncertain-source`). Saturation-index rules carry no
+ * uncertainty yet and compare as given.
+ * density-fall works on a robust filtered density: the median of the last
+ * filter_samples samples (63 unless configured). Its fall must exceed the
+ * rule's `high` and also HS_FALL_NOISE_K (10) standard deviations of that
+ * median, estimated from the samples themselves (1.4826 MAD, GUM-free
+ * robust statistics: Rousseeuw & Croux 1993; a median of N has about
+ * 1.2533 sigma / sqrt(N), Kenney & Keeping 1962); hs_margin.h says why
+ * seven. Until the filter is full the fall is unknown.
+ *
  * Error convention: functions return an hs_alarm_result; HS_ALARM_DONE (0)
  * and HS_ALARM_ALREADY (1, nothing to do) are successes. */
 #ifndef HS_ALARM_H
@@ -23,8 +38,10 @@
 #include <stdint.h>
 
 #include "hc_state.h"
+#include "hs_margin.h"
 
 #define HS_ALARM_NAME_MAX 64 /* pond and rule names, with the terminating NUL */
+#define HS_FALL_FILTER_MAX 64 /* longest density-fall median filter [samples] */
 
 typedef enum {
     HS_ALARM_NORMAL,
@@ -85,6 +102,7 @@ typedef struct {
     int64_t off_delay_ms;   /* and be gone this long to clear */
     hs_alarm_priority priority;
     int64_t window_ms;      /* density-fall look-back */
+    unsigned filter_samples;/* density-fall: median of the last N samples (1..HS_FALL_FILTER_MAX) */
     int64_t max_shelve_ms;  /* longest shelve an operator may ask for */
 } hs_alarm_rule;
 
@@ -111,7 +129,10 @@ const char *hs_alarm_rule_check(const hs_alarm_rule *rule);
 
 /* What one evaluation of a pond knows. Unknown numbers are NaN. */
 typedef struct {
-    const hc_brine_state *state; /* may be NULL */
+    const hc_brine_state *state; /* may be NULL; its uncertainties set the margins */
+    int64_t state_t_ms;          /* time of the newest input behind state; the
+                                    density-fall filter takes a sample once per
+                                    time (0: every call is a new sample) */
     double depth_m;
     double sample_age_s;
     int bus_down;                /* 1 down, 0 up, -1 unknown */
@@ -218,6 +239,8 @@ typedef struct {
     uint64_t episode_id;
     uint64_t last_event_id;
     int64_t shelved_until_ms;
+    int uncertain;            /* past its limit within 2u: not acted on (uncertain-source) */
+    int64_t max_shelve_ms;    /* the rule's longest shelve */
 } hs_alarm_info;
 
 /* i-th alarm (0 <= i < count); strings live as long as the engine. */

@@ -95,6 +95,7 @@ void hs_alarm_rule_default(hs_alarm_rule *r, hs_rule_kind kind)
     r->off_delay_ms = 60000;
     r->priority = HS_PRIORITY_MEDIUM;
     r->window_ms = 3600000;
+    r->filter_samples = HS_FALL_FILTER_DEFAULT;
     r->max_shelve_ms = 24 * 3600000;
     switch (kind) {
     case HS_RULE_NEAR_SATURATION:
@@ -200,6 +201,8 @@ const char *hs_alarm_rule_check(const hs_alarm_rule *r)
         return "unknown priority";
     if (r->quantity == HS_QTY_DENSITY_FALL && r->window_ms < 16000)
         return "'window' must be at least 16s";
+    if (r->filter_samples < 1 || r->filter_samples > HS_FALL_FILTER_MAX)
+        return "'filter_samples' must be 1 to 64";
     if (r->max_shelve_ms <= 0)
         return "'max_shelve' must be positive";
     return NULL;
@@ -208,6 +211,7 @@ const char *hs_alarm_rule_check(const hs_alarm_rule *r)
 void hs_alarm_input_clear(hs_alarm_input *in)
 {
     in->state = NULL;
+    in->state_t_ms = 0;
     in->depth_m = NAN;
     in->sample_age_s = NAN;
     in->bus_down = -1;

@@ -16,8 +16,14 @@
 
 #define PATH_TEMPERATURE_C 25.0 /* HMW84 is a 25 degC model (Harvie, Moller & Weare 1984) */
 
+/* Stage onsets are tabled every 5 degC over the ponds' range. */
+static const double onset_temperatures_c[] = {0, 5, 10, 15, 20, 25, 30, 35, 40, 45};
+#define N_ONSET_T (sizeof onset_temperatures_c / sizeof onset_temperatures_c[0])
+
 struct model {
     hc_path *path;
+    hc_onset_table onsets;
+    int onsets_ok;
     hc_brine_curve curve;
     double *arrays; /* one block for the curve's five columns */
     int curve_ok;
@@ -74,6 +80,11 @@ static int build_one(struct model *m, const hc_feed *feed, const char *what)
         hs_log(HSP_LOG_WARNING, "evaporation path of %s stops before bischofite; states past "
                "its end are flagged beyond-path", what);
     m->curve_ok = build_curve(m) == 0;
+    m->onsets_ok = hc_onset_table_build(feed, onset_temperatures_c, N_ONSET_T,
+                                        HC_PATH_FRACTIONAL, NULL, &m->onsets) == HC_OK;
+    if (!m->onsets_ok)
+        hs_log(HSP_LOG_WARNING, "stage onsets of %s over 0 to 45 degC could not be built; "
+               "stages come from the %g degC path", what, PATH_TEMPERATURE_C);
     return 0;
 }
 
@@ -148,6 +159,12 @@ const hc_brine_curve *hs_brine_models_curve(const hs_brine_models *models, int f
 {
     const struct model *m = model_of(models, feed_index);
     return m->curve_ok ? &m->curve : NULL;
+}
+
+const hc_onset_table *hs_brine_models_onsets(const hs_brine_models *models, int feed_index)
+{
+    const struct model *m = model_of(models, feed_index);
+    return m->onsets_ok ? &m->onsets : NULL;
 }
 
 /* ---- one pond ---- */
@@ -325,6 +342,22 @@ static int manual_usable(const hs_pond_aids *a, int64_t now_ms)
     return a != NULL && isfinite(a->manual_sg) && isfinite(a->manual_t_ref_c) &&
            a->manual_max_age_ms > 0 && a->manual_t_ms <= now_ms + 60000 &&
            now_ms - a->manual_t_ms <= a->manual_max_age_ms;
+}
+
+hc_stage hs_stage_at_density_ref(const hs_brine_models *models, int feed_index,
+                                 double rho_ref_kg_m3, double t_ref_c)
+{
+    double cf;
+    if (models == NULL || !isfinite(rho_ref_kg_m3))
+        return HC_STAGE_NONE;
+    /* onsets at the reference temperature itself, judged by density */
+    const hc_onset_table *onsets = hs_brine_models_onsets(models, feed_index);
+    if (onsets != NULL)
+        return hc_onset_table_stage_ref(onsets, rho_ref_kg_m3, t_ref_c);
+    const hc_path *path = hs_brine_models_path(models, feed_index);
+    if (path == NULL || hc_path_cf_at_density(path, rho_ref_kg_m3, t_ref_c, &cf, NULL) != HC_OK)
+        return HC_STAGE_NONE;
+    return hc_path_stage_at_cf(path, cf, NULL);
 }
 
 void hs_pond_aids_clear(hs_pond_aids *aids)
@@ -570,6 +603,11 @@ void hs_pond_evaluate(const hs_site *site, size_t pond, const hs_reading *readin
     m.method = v->state.method;
     uncertainty_of(site, pond, &m, temp, dens, lower, upper, cond, &v->state);
     v->have_state = 1;
+    /* stage and next stage at the pond's own temperature */
+    const hc_onset_table *onsets = models != NULL ? hs_brine_models_onsets(models, p->feed_index)
+                                                  : NULL;
+    if (onsets != NULL)
+        hc_onset_table_restage(onsets, &v->state);
     depth_of(site, pond, readings, g_m_s2, v);
     return;
 no_state:

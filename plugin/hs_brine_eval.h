@@ -24,6 +24,7 @@
 
 #include "hc_brine_curve.h"
 #include "hc_calibration.h"
+#include "hc_onset_table.h"
 #include "hc_path.h"
 #include "hc_state.h"
 #include "hs_flatline.h"
@@ -42,13 +43,19 @@ typedef struct {
 
 typedef struct hs_brine_models hs_brine_models;
 
-/* Builds one evaporation path (fractional, 25 degC) per feed the ponds use.
- * About 30 ms per feed. */
+/* Builds one evaporation path (fractional, 25 degC) per feed the ponds use,
+ * for the brine's composition, density and CF, and the stage onsets of the
+ * same feed's paths every 5 degC from 0 to 45 degC (hc_onset_table.h), so
+ * that stages follow each pond's temperature. About 11 path builds per
+ * feed: 0.15 to 0.35 s per feed at start (13 to 31 ms a path, make bench). */
 int hs_brine_models_build(const hs_site *site, hs_brine_models **out);
 void hs_brine_models_free(hs_brine_models *models);
 /* The path and hydrology curve of feed_index (-1: built-in seawater). */
 const hc_path *hs_brine_models_path(const hs_brine_models *models, int feed_index);
 const hc_brine_curve *hs_brine_models_curve(const hs_brine_models *models, int feed_index);
+/* The stage onsets over temperature of feed_index; NULL when they could not
+ * be built (then stages come from the 25 degC path). */
+const hc_onset_table *hs_brine_models_onsets(const hs_brine_models *models, int feed_index);
 
 typedef struct {
     hc_brine_state state;
@@ -73,6 +80,13 @@ typedef struct {
 } hs_pond_aids;
 
 void hs_pond_aids_clear(hs_pond_aids *aids);
+
+/* The stage of the pond's feed brine whose density at t_ref_c is
+ * rho_ref_kg_m3, judged by density against the onset brines at t_ref_c
+ * (hc_onset_table_stage_ref; the 25 degC path when no onset table was
+ * built); HC_STAGE_NONE when not known. What the stage trigger compares. */
+hc_stage hs_stage_at_density_ref(const hs_brine_models *models, int feed_index,
+                                 double rho_ref_kg_m3, double t_ref_c);
 
 /* One pond's view. readings are indexed like site->signals. models may be
  * NULL: then only the seawater range (EOS-80, PSS-78) is known. aids may be

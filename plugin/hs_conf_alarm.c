@@ -34,6 +34,8 @@ static const hs_key alarm_keys[] = {
              "urgent, high, medium or low"),
     KEY_DUR("window", A, window_ms, 16 * SEC_MS, 7 * 24 * 3600 * SEC_MS, HS_NO_DEFAULT, 0,
             "density-fall: how far back the highest density is taken"),
+    KEY_UINT("filter_samples", A, filter_samples, 1, HS_FALL_FILTER_MAX, HS_NO_DEFAULT, 0,
+             "density-fall: median of the last N samples (63 unless set)"),
     KEY_DUR("max_shelve", A, max_shelve_ms, 60 * SEC_MS, 30 * 24 * 3600 * SEC_MS,
             HS_NO_DEFAULT, 0, "longest an operator may shelve this alarm"),
     {NULL},
@@ -97,6 +99,8 @@ static void alarm_finish(hs_site *site, hs_cfg *cfg, size_t index)
         r->priority = (hs_alarm_priority)(a->priority + 1);
     if (is_set(cfg, index, "window"))
         r->window_ms = a->window_ms;
+    if (is_set(cfg, index, "filter_samples"))
+        r->filter_samples = a->filter_samples;
     if (is_set(cfg, index, "max_shelve"))
         r->max_shelve_ms = a->max_shelve_ms;
     const char *why = hs_alarm_rule_check(r);
@@ -146,9 +150,11 @@ struct link_ctx {
 static int check_pond(void *ctx, const char *name)
 {
     struct link_ctx *l = ctx;
+    char hint[160];
     if (name[0] == '\0' || hs_site_pond(l->site, name) < 0)
         hs_cfg_error(l->cfg, hs_cfg_where(l->cfg, &hs_section_alarm, l->index, "ponds"),
-                     "ponds: no [pond %s] in this file", name);
+                     "ponds: no [pond %s] in this file%s", name,
+                     hs_site_pond_hint(l->site, name, hint, sizeof hint));
     return 0;
 }
 

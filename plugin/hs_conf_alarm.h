@@ -21,6 +21,7 @@ typedef struct hs_alarm_conf {
     int quantity;             /* hs_alarm_quantity, when set */
     double high, low, deadband;
     int64_t on_delay_ms, off_delay_ms, window_ms, max_shelve_ms;
+    unsigned filter_samples;  /* density-fall median length */
     int priority;             /* index into hs_alarm_priority_names, when set */
     hs_alarm_rule rule;       /* the complete rule, built when the file is read */
 } hs_alarm_conf;

@@ -27,6 +27,18 @@ static const hs_key mqtt_keys[] = {
     KEY_UINT("outbox_max", M, outbox_max, 100, 10000000, "100000", 0,
              "messages kept while the broker is away; when full the oldest pond states give "
              "way, alarms never"),
+    KEY_DUR("state_heartbeat", M, state_heartbeat_ms, 0, 24 * 3600 * SEC_MS, "5min", 0,
+            "an unchanged pond state is published again this often (0: only on new input)"),
+    KEY_DUR("reconnect_min", M, reconnect_min_ms, 1 * SEC_MS, 3600 * SEC_MS, "1s", 0,
+            "first wait before reconnecting to a lost broker"),
+    KEY_DUR("reconnect_max", M, reconnect_max_ms, 1 * SEC_MS, 3600 * SEC_MS, "1s", 0,
+            "the wait doubles up to this; 1s reconnects within about a second of the broker's "
+            "return"),
+    KEY_UINT("max_inbound", M, max_inbound, 256, 65536, "4096", 0,
+             "largest command payload in bytes; the broker is told the packet limit at "
+             "connect (MQTT 5), so nothing much larger is ever read"),
+    KEY_DUR("command_max_age", M, command_max_age_ms, 5 * SEC_MS, 24 * 3600 * SEC_MS, "5min",
+            0, "a command whose time is older than this (or as far ahead) is refused as stale"),
     KEY_BOOL("enabled", M, enabled, "yes", 0, "no: keep the section but publish nothing"),
     {NULL},
 };
@@ -79,6 +91,9 @@ static void mqtt_finish(hs_site *site, hs_cfg *cfg, size_t index)
                          m->topic_prefix);
             break;
         }
+    if (m->reconnect_max_ms < m->reconnect_min_ms)
+        hs_cfg_error(cfg, hs_cfg_where(cfg, &hs_section_mqtt, index, "reconnect_max"),
+                     "reconnect_max must not be shorter than reconnect_min");
     if (!m->client_id[0])
         snprintf(m->client_id, sizeof m->client_id, "halostaged-%.40s", site->site.name);
 }

@@ -21,6 +21,11 @@ typedef struct hs_mqtt_conf {
     unsigned keepalive_s;
     unsigned window;           /* QoS 1 messages in flight */
     unsigned outbox_max;       /* rows kept while the broker is away; then states give way */
+    int64_t state_heartbeat_ms; /* an unchanged retained pond state goes out again this often */
+    int64_t reconnect_min_ms;  /* reconnect back-off: first wait ... */
+    int64_t reconnect_max_ms;  /* ... doubling up to this */
+    unsigned max_inbound;      /* largest inbound command payload [bytes] */
+    int64_t command_max_age_ms; /* older commands are refused as stale */
     bool enabled;
 } hs_mqtt_conf;
 

@@ -131,17 +131,19 @@ static void pond_link(hs_site *site, hs_cfg *cfg)
         P *p = &site->ponds[i];
         if (p->next[0]) {
             p->next_index = hs_site_pond(site, p->next);
+            char hint[160];
             if (p->next_index < 0)
-                hs_cfg_error(cfg, where(cfg, i, "next"), "next: no [pond %s] in this file",
-                             p->next);
+                hs_cfg_error(cfg, where(cfg, i, "next"), "next: no [pond %s] in this file%s",
+                             p->next, hs_site_pond_hint(site, p->next, hint, sizeof hint));
             else if (p->next_index == (int)i)
                 hs_cfg_error(cfg, where(cfg, i, "next"), "next: a pond cannot feed itself");
         }
         if (p->feed[0]) {
             p->feed_index = hs_site_feed(site, p->feed);
+            char hint[160];
             if (p->feed_index < 0)
-                hs_cfg_error(cfg, where(cfg, i, "feed"), "feed: no [feed %s] in this file",
-                             p->feed);
+                hs_cfg_error(cfg, where(cfg, i, "feed"), "feed: no [feed %s] in this file%s",
+                             p->feed, hs_site_feed_hint(site, p->feed, hint, sizeof hint));
         } else {
             p->feed_index = site->site.feed_index;
         }

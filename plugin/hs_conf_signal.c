@@ -202,15 +202,16 @@ static void signal_link(hs_site *site, hs_cfg *cfg)
 {
     for (size_t i = 0; i < site->n_signals; i++) {
         G *g = &site->signals[i];
+        char hint[160];
         g->pond_index = hs_site_pond(site, g->pond);
         if (g->pond_index < 0)
-            hs_cfg_error(cfg, g->line, "[signal %s]: no [pond %s] in this file",
-                         g->name, g->pond);
+            hs_cfg_error(cfg, g->line, "[signal %s]: no [pond %s] in this file%s",
+                         g->name, g->pond, hs_site_pond_hint(site, g->pond, hint, sizeof hint));
         g->bus_index = hs_site_bus(site, g->bus);
         if (g->bus_index < 0) {
             if (g->bus[0])
-                hs_cfg_error(cfg, where(cfg, i, "bus"), "bus: no [bus %s] in this file",
-                             g->bus);
+                hs_cfg_error(cfg, where(cfg, i, "bus"), "bus: no [bus %s] in this file%s",
+                             g->bus, hs_site_bus_hint(site, g->bus, hint, sizeof hint));
             continue;
         }
         const hs_bus *b = &site->buses[g->bus_index];

@@ -81,9 +81,11 @@ static void site_link(hs_site *site, hs_cfg *cfg)
 {
     if (site->site.feed[0]) {
         site->site.feed_index = hs_site_feed(site, site->site.feed);
+        char hint[160];
         if (site->site.feed_index < 0)
             hs_cfg_error(cfg, hs_cfg_where(cfg, &hs_section_site, 0, "feed"),
-                         "feed: no [feed %s] in this file", site->site.feed);
+                         "feed: no [feed %s] in this file%s", site->site.feed,
+                         hs_site_feed_hint(site, site->site.feed, hint, sizeof hint));
     }
 }
 

@@ -135,27 +135,32 @@ static void link_signal(hs_site *site, hs_cfg *cfg, size_t index, const char *ke
     if (name[0] == '\0')
         return;
     *out = find_signal(site, name);
+    char hint[160];
     if (*out < 0)
-        hs_cfg_error(cfg, where(cfg, index, key), "%s: no [signal %s] in this file", key, name);
+        hs_cfg_error(cfg, where(cfg, index, key), "%s: no [signal %s] in this file%s", key, name,
+                     hs_site_signal_hint(site, name, hint, sizeof hint));
 }
 
 static void link_one(hs_site *site, hs_cfg *cfg, size_t i)
 {
     T *t = &site->transfers[i];
+    char hint[160];
     t->source_index = hs_site_pond(site, t->source);
     if (t->source_index < 0)
-        hs_cfg_error(cfg, where(cfg, i, "source"), "source: no [pond %s] in this file", t->source);
+        hs_cfg_error(cfg, where(cfg, i, "source"), "source: no [pond %s] in this file%s",
+                     t->source, hs_site_pond_hint(site, t->source, hint, sizeof hint));
     t->dest_index = hs_site_pond(site, t->destination);
     if (t->dest_index < 0)
-        hs_cfg_error(cfg, where(cfg, i, "destination"), "destination: no [pond %s] in this file",
-                     t->destination);
+        hs_cfg_error(cfg, where(cfg, i, "destination"), "destination: no [pond %s] in this file%s",
+                     t->destination, hs_site_pond_hint(site, t->destination, hint, sizeof hint));
     if (t->source_index >= 0 && t->source_index == t->dest_index)
         hs_cfg_error(cfg, where(cfg, i, "destination"),
                      "destination: a transfer cannot pump a pond into itself");
     if (t->bus[0]) {
         t->bus_index = hs_site_bus(site, t->bus);
         if (t->bus_index < 0)
-            hs_cfg_error(cfg, where(cfg, i, "bus"), "bus: no [bus %s] in this file", t->bus);
+            hs_cfg_error(cfg, where(cfg, i, "bus"), "bus: no [bus %s] in this file%s", t->bus,
+                         hs_site_bus_hint(site, t->bus, hint, sizeof hint));
     }
     if (t->actuate && t->bus_index < 0 && !t->bus[0])
         hs_cfg_error(cfg, where(cfg, i, "actuate"),

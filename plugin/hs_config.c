@@ -17,6 +17,7 @@
 #include <string.h>
 
 #include "hs_config.h"
+#include "hs_suggest.h"
 
 #define LINE_MAX_CHARS 190        /* inih's stack buffer is 200 with CR, LF, NUL */
 #define FILE_MAX_BYTES (4u << 20) /* a site file is a few kB; refuse a runaway */
@@ -421,8 +422,14 @@ static void begin_section(hs_cfg *cfg, char *header)
     const char *kind = header;
     const hs_section_type *type = type_named(kind);
     if (!type) {
+        hs_suggest sg;
+        char hint[96];
+        hs_suggest_init(&sg, kind);
+        for (size_t t = 0; hs_section_types[t]; t++)
+            hs_suggest_offer(&sg, hs_section_types[t]->kind);
         known_sections(known, sizeof known);
-        hs_cfg_error(cfg, cfg->line, "unknown section [%s] (known: %s)", kind, known);
+        hs_cfg_error(cfg, cfg->line, "unknown section [%s]%s (known: %s)", kind,
+                     hs_suggest_text(&sg, hint, sizeof hint), known);
         return;
     }
     if (type->named && !name) {
@@ -496,8 +503,13 @@ static int on_key(void *user, const char *section, const char *name, const char 
         if (strcmp(k->name, name) == 0)
             key = k;
     if (!key) {
-        hs_cfg_error(cfg, cfg->line, "unknown key '%s' in %s", name,
-                     section_label(o, label, sizeof label));
+        hs_suggest sg;
+        char hint[96];
+        hs_suggest_init(&sg, name);
+        for (const hs_key *k = o->type->keys; k->name; k++)
+            hs_suggest_offer(&sg, k->name);
+        hs_cfg_error(cfg, cfg->line, "unknown key '%s' in %s%s", name,
+                     section_label(o, label, sizeof label), hs_suggest_text(&sg, hint, sizeof hint));
         return 1;
     }
     for (size_t i = o->first_set; i < cfg->n_sets; i++)

@@ -20,9 +20,10 @@ static const hs_unit area_units[] = {
 static const hs_unit density_units[] = {
     {"kg/m3", 1.0, 0.0}, {"g/cm3", 1000.0, 0.0}, {"g/mL", 1000.0, 0.0},
     {"g/L", 1.0, 0.0}, {NULL, 0, 0}};
-/* Temperatures are degC on ITS-90 throughout. */
+/* Temperatures are degC on ITS-90 throughout; t_C = (t_F - 32) * 5/9. */
 static const hs_unit temperature_units[] = {
-    {"C", 1.0, 0.0}, {"degC", 1.0, 0.0}, {NULL, 0, 0}};
+    {"C", 1.0, 0.0}, {"degC", 1.0, 0.0}, {"F", 5.0 / 9.0, -160.0 / 9.0},
+    {"degF", 5.0 / 9.0, -160.0 / 9.0}, {NULL, 0, 0}};
 static const hs_unit angle_units[] = {{"deg", 1.0, 0.0}, {NULL, 0, 0}};
 /* Pressure in Pa. 1 mH2O = 9806.65 Pa is the conventional metre of water
  * (water 1000 kg/m3 under standard gravity 9.80665 m/s2, CGPM 1901). */

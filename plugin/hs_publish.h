@@ -77,12 +77,15 @@ typedef struct hs_publisher hs_publisher;
 hs_publisher *hs_publisher_new(hs_store *st, hp_mqtt *link, const hs_topics *t, int window);
 void hs_publisher_free(hs_publisher *p);
 
-/* An inbound message on the command subscription. */
+/* An inbound message on the command subscription; retained: it carried
+ * the retain flag (a stored message, not one just sent). */
 typedef void (*hs_inbound_fn)(void *ctx, const char *topic, const void *payload, size_t len,
-                              int oversize);
+                              int oversize, int retained);
 
 /* Waits up to wait_ms for link events, deletes acknowledged rows, sends the
- * next rows in order and hands inbound messages to fn. On every connect it
+ * next rows in order and hands inbound messages to fn. It logs (notice) the
+ * broker's loss, the reconnect attempts (at most a line a minute) and its
+ * return. On every connect it
  * publishes the retained gateway status (online) directly, and re-sends
  * unacknowledged rows from the oldest. 0 / -1 (store error). */
 int hs_publisher_pump(hs_publisher *p, int wait_ms, hs_inbound_fn fn, void *ctx);

@@ -5,8 +5,14 @@
  * first copy in order (alarms carry event_id to drop repeats). */
 #include <stdlib.h>
 #include <string.h>
+#include <time.h>
 
+#include "hs_log.h"
 #include "hs_publish.h"
+
+/* While the broker is away, one line says how the attempts go at most this
+ * often (the first failure is told at once). */
+#define RETRY_LOG_EVERY_MS 60000
 
 #define WINDOW_MAX 1024
 
@@ -26,7 +32,53 @@ struct hs_publisher {
     hs_inbound_fn inbound;
     void *inbound_ctx;
     int goodbye_acked;            /* the offline status was acknowledged */
+    /* the link's story for the log: when the broker went away, how many
+     * attempts since, when the next line about them may be written */
+    int ever_connected;
+    int64_t lost_mono_ms;
+    long attempts;
+    int64_t next_retry_log_ms;
 };
+
+static int64_t mono_ms(void)
+{
+    struct timespec ts;
+    clock_gettime(CLOCK_MONOTONIC, &ts);
+    return (int64_t)ts.tv_sec * 1000 + ts.tv_nsec / 1000000;
+}
+
+/* Broker loss, attempts (rate-limited) and return, at notice level. */
+static void log_link(hs_publisher *p, int connected, const char *reason)
+{
+    int64_t now = mono_ms();
+    if (connected) {
+        if (p->lost_mono_ms > 0)
+            hs_log(HSP_LOG_NOTICE, "MQTT: broker back after %.1f s (%ld failed attempts)",
+                   (double)(now - p->lost_mono_ms) / 1000.0, p->attempts);
+        else
+            hs_log(HSP_LOG_NOTICE, "MQTT: connected to the broker");
+        p->lost_mono_ms = 0;
+        p->attempts = 0;
+        p->ever_connected = 1;
+        return;
+    }
+    if (p->connected || p->lost_mono_ms == 0) { /* the first word of a loss */
+        hs_log(HSP_LOG_NOTICE, "MQTT: %s the broker: %s; reconnecting",
+               p->connected || p->ever_connected ? "lost" : "cannot reach",
+               reason ? reason : "no reason given");
+        p->lost_mono_ms = now;
+        p->attempts = p->connected ? 0 : 1;
+        p->next_retry_log_ms = now + RETRY_LOG_EVERY_MS;
+        return;
+    }
+    p->attempts++;
+    if (now >= p->next_retry_log_ms) {
+        hs_log(HSP_LOG_NOTICE, "MQTT: still no broker after %.0f s, %ld attempts (last: %s)",
+               (double)(now - p->lost_mono_ms) / 1000.0, p->attempts,
+               reason ? reason : "no reason given");
+        p->next_retry_log_ms = now + RETRY_LOG_EVERY_MS;
+    }
+}
 
 #define GOODBYE_TAG (-1) /* tag of the offline status; row ids are positive */
 
@@ -108,12 +160,14 @@ static void on_event(void *ctx, const hp_mqtt_event *ev)
     hs_publisher *p = ctx;
     switch (ev->type) {
     case HP_MQTT_CONNECTED:
+        log_link(p, 1, NULL);
         p->connected = 1;
         p->stats.connects++;
         forget_inflight(p);
         publish_gateway(p, 1, 0); /* tag 0: not an outbox row */
         break;
     case HP_MQTT_DISCONNECTED:
+        log_link(p, 0, ev->reason);
         p->connected = 0;
         forget_inflight(p);
         break;
@@ -135,7 +189,8 @@ static void on_event(void *ctx, const hp_mqtt_event *ev)
         break;
     case HP_MQTT_MESSAGE:
         if (p->inbound)
-            p->inbound(p->inbound_ctx, ev->topic, ev->payload, ev->payload_len, ev->oversize);
+            p->inbound(p->inbound_ctx, ev->topic, ev->payload, ev->payload_len, ev->oversize,
+                       ev->retained);
         break;
     }
 }

@@ -119,6 +119,8 @@ static int site_parts_open(hs_runtime *rt, hs_brine_models *models)
     for (size_t i = 0; i < site->n_ponds; i++) {
         hs_pond_aids_clear(&rt->ponds[i].aids);
         hc_state_clear(&rt->ponds[i].view.state);
+        rt->ponds[i].last_state_quality = -1;
+        rt->ponds[i].dirty = 1; /* the first cycle publishes what is known, even nothing */
         rt->ponds[i].view.depth_m = NAN;
         rt->ponds[i].view.quality = HS_QUALITY_BAD;
     }
@@ -206,14 +208,51 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
 
 /* ---- the cycle ---- */
 
-static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms)
+/* Alarm rules of pond i whose limit the state crosses only within k u:
+ * logged once when the set changes (`uncertain-source`), so an operator
+ * sees why a rule that looks crossed has not raised. */
+static void note_uncertain_alarms(hs_runtime *rt, size_t i)
+{
+    char now[sizeof rt->ponds[i].uncertain] = "";
+    size_t used = 0;
+    hs_alarm_info info;
+    for (size_t k = 0; hs_alarm_get(rt->alarms, k, &info) == 0; k++) {
+        if (!info.uncertain || strcmp(info.pond, rt->site.ponds[i].name) != 0)
+            continue;
+        int n = snprintf(now + used, sizeof now - used, "%s%s", used ? "," : "", info.rule);
+        if (n < 0 || (size_t)n >= sizeof now - used)
+            break;
+        used += (size_t)n;
+    }
+    struct hs_rt_pond *p = &rt->ponds[i];
+    if (strcmp(now, p->uncertain) == 0)
+        return;
+    if (now[0])
+        hs_log(HSP_LOG_NOTICE, "pond %s: uncertain-source: %s past a limit by less than %.0f "
+               "standard uncertainties of the state (+-%.1f kg/m3); not raised",
+               rt->site.ponds[i].name, now, HS_DECISION_K,
+               p->view.state.density_uncertainty_kg_m3);
+    else
+        hs_log(HSP_LOG_INFO, "pond %s: no alarm held back by uncertainty any more",
+               rt->site.ponds[i].name);
+    snprintf(p->uncertain, sizeof p->uncertain, "%s", now);
+}
+
+/* A pond is evaluated every cycle (its alarms watch the age of its
+ * inputs), but its state is fed to the hydrology, stored and published
+ * only when a new input arrived or an input's quality changed; an
+ * unchanged retained state goes out again every state_heartbeat_ms. */
+static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms, int64_t mono_ms)
 {
     struct hs_rt_pond *p = &rt->ponds[i];
+    int fresh = p->dirty;
     p->aids.calibration = p->calib_ok ? &p->calibration : NULL; /* rt->ponds may have moved */
     hs_pond_evaluate(&rt->site, i, rt->readings, rt->models, &p->aids, rt->gravity_m_s2, now_ms,
                      &p->view);
-    hs_rt_hydro_update(rt, i, now_ms);
-    if (p->view.have_state) {
+    if (fresh)
+        hs_rt_hydro_update(rt, i, now_ms);
+    if (fresh && p->view.have_state &&
+        (p->view.t_ms != p->last_state_ms || (int)p->view.quality != p->last_state_quality)) {
         hs_pond_extra extra;
         hs_pond_extra_clear(&extra);
         extra.depth_m = p->view.depth_m;
@@ -227,10 +266,14 @@ static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms)
         if (hs_store_add_state(rt->store, rt->site.ponds[i].name, p->view.t_ms, &p->view.state,
                                &extra, p->view.quality) != 0)
             hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
+        p->last_state_ms = p->view.t_ms;
+        p->last_state_quality = (int)p->view.quality;
+        rt->states_stored++;
     }
     hs_alarm_input in;
     hs_alarm_input_clear(&in);
     in.state = p->view.have_state ? &p->view.state : NULL;
+    in.state_t_ms = p->view.t_ms;
     in.depth_m = p->view.depth_m;
     in.sample_age_s = p->view.oldest_input_age_s;
     in.bus_down = 0;
@@ -245,8 +288,22 @@ static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms)
             in.sensors_stuck += 1.0;
     }
     hs_alarm_update(rt->alarms, rt->site.ponds[i].name, &in, now_ms, alarm_emit, rt);
-    hs_rt_enqueue_state(rt, i, now_ms);
-    hs_rt_emit_pond(rt, i, now_ms);
+    note_uncertain_alarms(rt, i);
+    int changed = p->pub_mono_ms == 0 || p->view.t_ms != p->pub_t_ms ||
+                  (int)p->view.quality != p->pub_quality ||
+                  (int)p->view.depth_quality != p->pub_depth_quality ||
+                  p->view.have_state != p->pub_have;
+    int heartbeat = rt->state_heartbeat_ms > 0 && mono_ms - p->pub_mono_ms >= rt->state_heartbeat_ms;
+    if ((fresh && changed) || heartbeat) {
+        hs_rt_enqueue_state(rt, i, now_ms);
+        hs_rt_emit_pond(rt, i, now_ms);
+        p->pub_t_ms = p->view.t_ms;
+        p->pub_quality = (int)p->view.quality;
+        p->pub_depth_quality = (int)p->view.depth_quality;
+        p->pub_have = p->view.have_state;
+        p->pub_mono_ms = mono_ms;
+        rt->states_published++;
+    }
     p->dirty = 0;
 }
 
@@ -266,7 +323,7 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
     int periodic = mono >= rt->next_eval_ms;
     for (size_t i = 0; i < rt->site.n_ponds; i++)
         if (rt->ponds[i].dirty || periodic)
-            evaluate_pond(rt, i, now);
+            evaluate_pond(rt, i, now, mono);
     if (periodic) {
         hs_alarm_tick(rt->alarms, now, alarm_emit, rt);
         /* no transfer decides on a site that has not been read yet */

@@ -85,6 +85,8 @@ static void refresh_pond(hs_runtime *rt, size_t i)
                hs_store_error(rt->store));
         return; /* keep what we had */
     }
+    if (c.latest_t_ms != p->aids.manual_t_ms)
+        p->dirty = 1; /* a new manual reading is a new input */
     p->aids.manual_sg = c.latest_sg;
     p->aids.manual_t_ref_c = c.latest_t_ref_c;
     p->aids.manual_t_ms = c.latest_t_ms;
@@ -93,6 +95,7 @@ static void refresh_pond(hs_runtime *rt, size_t i)
         return; /* nothing new: keep the fit */
     p->calib_rows = c.total;
     p->calib_skipped = c.skipped;
+    p->dirty = 1; /* a new fit changes the state: evaluate and publish it */
     if (c.skipped > 0)
         hs_log(HSP_LOG_WARNING, "pond %s: %zu hydrometer readings could not be referred to "
                "%g degC and are left out of the calibration", pd->name, c.skipped,

@@ -228,8 +228,17 @@ void hs_rt_hydro_update(hs_runtime *rt, size_t pond, int64_t now_ms)
         if (isnan(cf_target))
             hc_curve_cf_at_density(curve, p->density_out_kg_m3, &cf_target);
     }
-    if (rp->view.have_state && s->next_stage != HC_STAGE_NONE)
-        cf_next = hc_path_stage_cf(hs_brine_models_path(rt->models, p->feed_index), s->next_stage);
+    if (rp->view.have_state && s->next_stage != HC_STAGE_NONE) {
+        /* the next stage begins where it does at the pond's temperature */
+        const hc_onset_table *onsets = hs_brine_models_onsets(rt->models, p->feed_index);
+        double at[HC_STAGE_COUNT];
+        if (onsets != NULL && isfinite(s->temperature_c)) {
+            hc_onset_table_at(onsets, s->temperature_c, at);
+            cf_next = at[s->next_stage];
+        } else {
+            cf_next = hc_path_stage_cf(path, s->next_stage);
+        }
+    }
     hs_hydro_report(&rp->hydro, curve, cf_target, cf_next, NAN, NAN, &rp->report);
     /* Until the daily balance has a rate, the recent trend answers. */
     if (rp->view.have_state) {

@@ -21,6 +21,7 @@ int hs_rt_mqtt_open(hs_runtime *rt)
     /* Alarm transitions from operator commands (the CLI's queue) are
      * journalled even with publishing off; nothing is queued for MQTT then. */
     hs_topics_init(&rt->topics, m ? m->topic_prefix : "halostage", rt->site.site.name);
+    rt->state_heartbeat_ms = m ? m->state_heartbeat_ms : 5 * 60 * 1000;
     rt->alarm_sink = (hs_alarm_sink){.store = rt->store, .topics = &rt->topics,
                                      .journal_only = 1};
     rt->commands = (hs_commands){.engine = rt->alarms, .sink = &rt->alarm_sink,
@@ -57,6 +58,9 @@ int hs_rt_mqtt_open(hs_runtime *rt)
         .will_topic = will_topic, .will_payload = will, .will_retained = 1,
         .keepalive_s = (int)m->keepalive_s, .max_inflight = (int)m->window,
         .subscribe = subscribe,
+        .min_retry_s = (int)((m->reconnect_min_ms + 999) / 1000),
+        .max_retry_s = (int)((m->reconnect_max_ms + 999) / 1000),
+        .max_inbound = m->max_inbound,
     };
     rt->link = hp_mqtt_new(&opt, err, sizeof err);
     memset(password, 0, sizeof password); /* the library keeps its own copy */
@@ -77,7 +81,7 @@ int hs_rt_mqtt_open(hs_runtime *rt)
     rt->alarm_sink = (hs_alarm_sink){.store = rt->store, .topics = &rt->topics,
                                      .journal_only = 0};
     rt->commands = (hs_commands){.engine = rt->alarms, .sink = &rt->alarm_sink,
-                                 .topics = &rt->topics};
+                                 .topics = &rt->topics, .max_age_ms = m->command_max_age_ms};
     hs_log(HSP_LOG_NOTICE, "MQTT: %s as %s, topics %s/%s/...", m->uri, m->client_id,
            m->topic_prefix, rt->site.site.name);
     return 0;

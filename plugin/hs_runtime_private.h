@@ -21,6 +21,7 @@
 #include "hs_publish.h"
 #include "hs_runtime.h"
 #include "hs_site.h"
+#include "hs_sparkplug.h"
 #include "hs_stage_table.h"
 #include "hs_store.h"
 #include "hs_transfer.h"
@@ -55,8 +56,13 @@ struct hs_rt_pond {
     hc_calibration calibration;   /* the pond's fit when calib_ok */
     int calib_ok;
     size_t calib_rows, calib_skipped; /* readings behind the fit, to notice new ones */
-    int dirty;                    /* new samples since the last evaluation */
-    int64_t last_state_ms;        /* wall time of the last stored state */
+    int dirty;                    /* new samples (or a quality change) since the last evaluation */
+    int64_t last_state_ms;        /* input time of the last stored state; 0 none */
+    int last_state_quality;       /* its quality; -1 none */
+    /* what was last published (MQTT, emit): input time, qualities, and when
+     * (monotonic), for the heartbeat of the retained state */
+    int64_t pub_t_ms, pub_mono_ms;
+    int pub_quality, pub_depth_quality, pub_have;
     struct hs_hydro hydro;
     int hydro_ok;
     struct hs_hydro_report report;
@@ -67,6 +73,8 @@ struct hs_rt_pond {
     struct hs_stage_table table;  /* stage-storage table when the pond has one */
     int table_loaded;
     double rain_last_m;           /* last rain-gauge total fed to the balance, NaN none */
+    char uncertain[256];          /* alarm rules of the pond the uncertainty holds back
+                                     ("band,fall"), as last logged */
 };
 
 struct hs_runtime {
@@ -100,12 +108,16 @@ struct hs_runtime {
     hs_commands commands;
     hs_mb_image *mb_image;        /* [modbus_server]: the map; NULL off */
     hp_mbserver *mb_server;       /* its thread; reads mb_image only */
+    hs_sparkplug *spb;            /* [sparkplug]: the edge node's thread; NULL off */
+    uint64_t spb_bd_seq;          /* the next session's bdSeq, kept across reloads */
 
     int64_t next_eval_ms;         /* monotonic */
     int64_t next_maintain_ms;
     int64_t next_calib_ms;        /* monotonic; 0: re-read the readings now */
     int64_t next_command_ms;
+    int64_t state_heartbeat_ms;   /* republish an unchanged retained state this often; 0 never */
     uint64_t samples_in, cycles;
+    uint64_t states_stored, states_published;
     int64_t started_ms;
 };
 

@@ -8,15 +8,53 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include <limits.h>
+
+#include "hs_conf_mqtt.h"
 #include "hs_conf_scada.h"
 #include "hs_log.h"
 #include "hs_runtime_private.h"
+#include "hs_secret.h"
+#include "hs_sparkplug.h"
+
+static int sparkplug_open(hs_runtime *rt)
+{
+    const hs_mqtt_conf *mq = rt->site.mqtt;
+    rt->spb = NULL;
+    if (rt->site.sparkplug == NULL)
+        return 0;
+    if (mq == NULL || !mq->enabled) {
+        hs_log(HSP_LOG_NOTICE, "Sparkplug: off with [mqtt] enabled = no");
+        return 0;
+    }
+    char password[256] = "", err[PATH_MAX + 128];
+    if (mq->password_file[0] &&
+        hs_read_secret(mq->password_file, password, sizeof password, err, sizeof err) != 0) {
+        hs_log(HSP_LOG_ERR, "[mqtt] password_file %s", err);
+        return -1;
+    }
+    rt->spb = hs_sparkplug_start(&rt->site, password[0] ? password : NULL, rt->spb_bd_seq, err,
+                                 sizeof err);
+    explicit_bzero(password, sizeof password);
+    if (rt->spb == NULL) {
+        hs_log(HSP_LOG_ERR, "[sparkplug]: %s", err);
+        return -1;
+    }
+    hs_log(HSP_LOG_NOTICE, "Sparkplug B edge node spBv1.0/%s/.../%s as %s%s%s",
+           rt->site.sparkplug->group_id, rt->site.sparkplug->edge_node_id,
+           rt->site.sparkplug->client_id, rt->site.sparkplug->primary_host_id[0]
+                                              ? ", primary host " : "",
+           rt->site.sparkplug->primary_host_id);
+    return 0;
+}
 
 int hs_rt_scada_open(hs_runtime *rt)
 {
     const hs_modbus_server_conf *m = rt->site.modbus_server;
     rt->mb_image = NULL;
     rt->mb_server = NULL;
+    if (sparkplug_open(rt) != 0)
+        return -1;
     if (m == NULL)
         return 0;
     hp_order order = m->word_order ? HP_ORDER_LITTLE : HP_ORDER_BIG;
@@ -46,6 +84,9 @@ int hs_rt_scada_open(hs_runtime *rt)
 
 void hs_rt_scada_close(hs_runtime *rt)
 {
+    if (rt->spb != NULL)
+        rt->spb_bd_seq = hs_sparkplug_stop(rt->spb);
+    rt->spb = NULL;
     hp_mbserver_stop(rt->mb_server); /* first: the server reads the image */
     rt->mb_server = NULL;
     hs_mb_image_free(rt->mb_image);
@@ -66,18 +107,20 @@ static uint16_t alarm_bits(const hs_runtime *rt, const char *pond)
 
 void hs_rt_scada_pond(hs_runtime *rt, size_t pond, const json_t *doc)
 {
-    if (rt->mb_image == NULL)
+    if (rt->mb_image == NULL && rt->spb == NULL)
         return;
     hs_scada_pond p;
     hs_scada_pond_clear(&p);
     hs_scada_pond_from_doc(&p, doc);
     p.code[HS_CODE_ALARM_BITS] = alarm_bits(rt, rt->site.ponds[pond].name);
-    hs_mb_image_pond(rt->mb_image, pond, &p);
+    if (rt->mb_image != NULL)
+        hs_mb_image_pond(rt->mb_image, pond, &p);
+    hs_sparkplug_pond(rt->spb, pond, &p);
 }
 
 void hs_rt_scada_transfer(hs_runtime *rt, size_t i)
 {
-    if (rt->mb_image == NULL)
+    if (rt->mb_image == NULL && rt->spb == NULL)
         return;
     const struct hs_rt_transfer *x = &rt->transfers[i];
     hs_scada_transfer t = {
@@ -85,7 +128,9 @@ void hs_rt_scada_transfer(hs_runtime *rt, size_t i)
         .pump_on = x->have_last && x->last.pump_on ? 1 : 0,
         .reasons = x->have_last ? x->last.reasons : 0,
     };
-    hs_mb_image_transfer(rt->mb_image, i, &t);
+    if (rt->mb_image != NULL)
+        hs_mb_image_transfer(rt->mb_image, i, &t);
+    hs_sparkplug_transfer(rt->spb, i, &t);
 }
 
 void hs_rt_scada_beat(hs_runtime *rt, int64_t now_ms)

@@ -9,6 +9,7 @@
 #include "hc_brine_density.h"
 #include "hc_ion.h"
 #include "hc_mixing.h"
+#include "hc_uncertainty.h"
 #include "hs_log.h"
 #include "hs_runtime_private.h"
 
@@ -96,6 +97,20 @@ static struct hs_xfer_input pond_density(const hs_runtime *rt, int pond)
         return (struct hs_xfer_input){NAN, HS_XQ_BAD};
     /* at the reference temperature: the brine, not the weather, decides */
     return (struct hs_xfer_input){v->state.density_ref_kg_m3, xq(v->quality)};
+}
+
+/* The stage trigger judges the source's brine at the reference temperature
+ * by its density there, as a hydrometer does: a pond that warms in the
+ * afternoon does not change stage for the trigger, and past halite no
+ * uncertain CF decides. */
+static hc_stage source_stage_ref(const hs_runtime *rt, int pond)
+{
+    const hs_pond_view *v = &rt->ponds[pond].view;
+    if (!v->have_state)
+        return HC_STAGE_NONE;
+    return hs_stage_at_density_ref(rt->models, rt->site.ponds[pond].feed_index,
+                                   v->state.density_ref_kg_m3,
+                                   rt->site.site.reference_temperature_c);
 }
 
 static struct hs_xfer_input pond_level(const hs_runtime *rt, int pond)
@@ -186,7 +201,14 @@ void hs_rt_transfers_run(hs_runtime *rt, int64_t mono_ms, int64_t now_ms)
         memset(&in, 0, sizeof in);
         in.now_ms = mono_ms;
         in.source_density = pond_density(rt, t->source_index);
-        in.source_stage = rt->ponds[t->source_index].view.state.stage;
+        const hs_pond_view *sv = &rt->ponds[t->source_index].view;
+        in.source_stage = source_stage_ref(rt, t->source_index);
+        in.source_density_u = sv->have_state ? hc_unc_density_ref(&sv->state) : NAN;
+        if (in.source_density_u > 0.0)
+            in.source_stage_low = hs_stage_at_density_ref(
+                rt->models, rt->site.ponds[t->source_index].feed_index,
+                sv->state.density_ref_kg_m3 - HS_DECISION_K * in.source_density_u,
+                sv->state.reference_temperature_c);
         in.source_level = pond_level(rt, t->source_index);
         in.dest_level = pond_level(rt, t->dest_index);
         in.dest_density_after_mixing = mixed_density(rt, t);

@@ -162,6 +162,13 @@ const char *hs_ion_name(hs_ion ion);
 int hs_site_bus(const hs_site *site, const char *name);
 int hs_site_pond(const hs_site *site, const char *name);
 int hs_site_feed(const hs_site *site, const char *name);
+/* For messages about a name the file does not have: " (did you mean 'x'?)"
+ * when a known name is close enough to be a slip, else " (ponds: a, b, ...)"
+ * (or " (the file has no ponds)"). Returns buf. */
+const char *hs_site_pond_hint(const hs_site *site, const char *name, char *buf, size_t len);
+const char *hs_site_bus_hint(const hs_site *site, const char *name, char *buf, size_t len);
+const char *hs_site_feed_hint(const hs_site *site, const char *name, char *buf, size_t len);
+const char *hs_site_signal_hint(const hs_site *site, const char *name, char *buf, size_t len);
 /* The signal of POND with QUANTITY, or NULL. */
 const hs_signal *hs_site_signal(const hs_site *site, int pond_index, hs_quantity quantity);
 

@@ -67,7 +67,12 @@ static const char *const migrations[] = {
     "ALTER TABLE pond_state ADD COLUMN sg_uncertainty REAL;"
     "ALTER TABLE pond_state ADD COLUMN baume_uncertainty REAL;"
     "ALTER TABLE pond_state ADD COLUMN cf_uncertainty REAL;",
-    /* 3 -> 4: why a sample is not good (hp_sample_reason, or flatline) and
+    /* 3 -> 4: inbound MQTT commands already answered (by request id, or by
+     * a hash of a retained one), so a repeat is answered, not applied. */
+    "CREATE TABLE command_seen(key TEXT PRIMARY KEY, t_ms INTEGER NOT NULL,"
+    " ok INTEGER NOT NULL, reply TEXT NOT NULL) STRICT, WITHOUT ROWID;"
+    "CREATE INDEX command_seen_t ON command_seen(t_ms);",
+    /* 4 -> 5: why a sample is not good (hp_sample_reason, or flatline) and
      * the Modbus exception code or errno behind it; NULL for good ones. */
     "ALTER TABLE sample ADD COLUMN reason TEXT;"
     "ALTER TABLE sample ADD COLUMN code INTEGER;",

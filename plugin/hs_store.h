@@ -289,4 +289,12 @@ int hs_store_command_take(hs_store *st, hs_command_fn fn, void *ctx);
  * once answered, 0 while pending, -1 on error or unknown id. */
 int hs_store_command_reply(hs_store *st, int64_t id, char **reply);
 
+/* Inbound commands already answered, by key ("id:REQUEST_ID" or
+ * "retained:HASH"): 1 and the recorded reply (malloc'ed, caller frees) and
+ * its ok flag when seen, 0 when not, -1 on error. Kept 30 days
+ * (hs_store_maintain). */
+int hs_store_command_seen(hs_store *st, const char *key, int *ok, char **reply);
+int hs_store_command_seen_add(hs_store *st, const char *key, int64_t t_ms, int ok,
+                              const char *reply);
+
 #endif

@@ -121,6 +121,8 @@ int hs_store_maintain(hs_store *st, int64_t now_ms)
         raw_cut = minute_done;
     if (run_range(st, "DELETE FROM sample WHERE t_ms < ?1 AND ?2 = ?2", raw_cut, 0) != 0 ||
         run_range(st, "DELETE FROM pond_state WHERE t_ms < ?1 AND ?2 = ?2", raw_cut, 0) != 0 ||
+        run_range(st, "DELETE FROM command_seen WHERE t_ms < ?1 AND ?2 = ?2",
+                  now_ms - INT64_C(30) * 86400000, 0) != 0 ||
         run_range(st, "DELETE FROM rollup WHERE series_id IN (SELECT id FROM series)"
                       " AND step_s = 60 AND t_ms < ?1 AND ?2 = ?2",
                   now_ms - st->opt.minute_retention_ms, 0) != 0 ||

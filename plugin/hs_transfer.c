@@ -31,6 +31,7 @@ static const struct {
     {"min-off-time", "kept off for the minimum off time"},
     {"max-run-time", "stopped: maximum run time reached"},
     {"pump-still-running", "commanded off but the pump still reports running"},
+    {"uncertain-source", "the source density is too uncertain to say the trigger is met"},
 };
 
 void hs_transfer_state_init(struct hs_transfer_state *state)
@@ -126,18 +127,24 @@ static int triggered(const struct hs_transfer_rule *rule, const struct hs_transf
                      const struct hs_transfer_inputs *in, unsigned *reasons)
 {
     double rho = in->source_density.value;
-    int met;
+    double u = in->source_density_u;
+    double margin = u > 0.0 ? HS_DECISION_K * u : 0.0; /* NaN u: no margin known */
+    double band = fmax(rule->hysteresis_kg_m3, margin);
+    int met, sure;
     double hold_from;
     if (rule->trigger == HS_TRIGGER_STAGE) {
         met = in->source_stage != HC_STAGE_NONE && in->source_stage >= rule->start_stage;
+        sure = met && (margin == 0.0 || (in->source_stage_low != HC_STAGE_NONE &&
+                                         in->source_stage_low >= rule->start_stage));
         /* Stages are discrete; hold on through noise at the boundary by the
          * density at which the run began. */
-        hold_from = state->start_density_kg_m3 - rule->hysteresis_kg_m3;
+        hold_from = state->start_density_kg_m3 - band;
     } else {
         met = rho >= rule->start_density_kg_m3;
-        hold_from = rule->start_density_kg_m3 - rule->hysteresis_kg_m3;
+        sure = rho >= rule->start_density_kg_m3 + margin;
+        hold_from = rule->start_density_kg_m3 - band;
     }
-    if (met) {
+    if (sure || (met && state->running)) {
         *reasons |= HS_XR_TRIGGER_MET;
         return 1;
     }
@@ -146,6 +153,8 @@ static int triggered(const struct hs_transfer_rule *rule, const struct hs_transf
         return 1;
     }
     *reasons |= HS_XR_TRIGGER_NOT_MET;
+    if (met)
+        *reasons |= HS_XR_UNCERTAIN_SOURCE;
     return 0;
 }
 

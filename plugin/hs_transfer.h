@@ -20,6 +20,12 @@
  *  - An output command the device does not confirm (hs_output.h) stops the
  *    transfer; a running pump the PLC or a panel stopped is not restarted
  *    before the minimum off time.
+ *  - Uncertainty: a transfer starts only when its trigger is met by a
+ *    margin of HS_DECISION_K standard uncertainties of the source density
+ *    (for a stage trigger: the stage of density - k u is reached), and a
+ *    run holds on down to the start density less max(hysteresis, k u).
+ *    A trigger met only within the margin gives `uncertain-source` and no
+ *    start: the state cannot tell which side of the line the brine is.
  * Error convention: functions return 0 on success, -1 on a malformed rule
  * (hs_transfer_rule_check writes the reason). */
 #ifndef HS_TRANSFER_H
@@ -27,6 +33,8 @@
 
 #include <stddef.h>
 #include <stdint.h>
+
+#include "hs_margin.h"
 
 #define HS_TRANSFER_NAME_MAX 48
 
@@ -76,7 +84,11 @@ struct hs_transfer_rule {
 struct hs_transfer_inputs {
     int64_t now_ms;                    /* monotonic [ms] */
     struct hs_xfer_input source_density;  /* [kg/m3] */
+    double source_density_u;           /* its standard uncertainty [kg/m3]; 0 or NaN:
+                                          not known (no margin) */
     int source_stage;                  /* hc_stage, valid when source_density is good */
+    int source_stage_low;              /* stage of the source density less k u (hc_stage);
+                                          read only when source_density_u > 0 */
     struct hs_xfer_input source_level;    /* [m] */
     struct hs_xfer_input dest_level;      /* [m] */
     struct hs_xfer_input dest_density_after_mixing; /* predicted [kg/m3] */
@@ -115,7 +127,9 @@ enum {
     HS_XR_MIN_OFF_TIME        = 1u << 18, /* kept off: minimum off time */
     HS_XR_MAX_RUN_TIME        = 1u << 19, /* stopped: maximum run time reached */
     HS_XR_PUMP_STILL_RUNNING  = 1u << 20, /* commanded off, feedback says running */
-    HS_XR_BITS                = 21
+    HS_XR_UNCERTAIN_SOURCE    = 1u << 21, /* the trigger is within k u of the source
+                                             density: not started on a guess */
+    HS_XR_BITS                = 22
 };
 
 typedef enum {

@@ -27,6 +27,7 @@ struct hp_mqtt {
     MQTTAsync client;
     hp_mqtt_options opt;  /* strings point into the copies below */
     char *copies[12];
+    void *will_copy;      /* will_len bytes */
     int tls;
     pthread_mutex_t lock;
     pthread_cond_t ready;
@@ -52,11 +53,12 @@ static char *keep(hp_mqtt *m, int slot, const char *s)
 
 /* Appends an event (called from paho's threads and the owner's). */
 static void push(hp_mqtt *m, hp_mqtt_event_type type, int64_t tag, const char *topic,
-                 const void *payload, size_t len, int oversize, const char *reason)
+                 const void *payload, size_t len, int oversize, int retained, const char *reason)
 {
     struct event_node *n = calloc(1, sizeof *n);
     if (n == NULL)
         return;
+    n->ev.retained = retained;
     n->ev.type = type;
     n->ev.tag = tag;
     n->ev.payload_len = len;
@@ -98,7 +100,7 @@ static void push(hp_mqtt *m, hp_mqtt_event_type type, int64_t tag, const char *t
 
 static void on_connection_lost(void *ctx, char *cause)
 {
-    push(ctx, HP_MQTT_DISCONNECTED, 0, NULL, NULL, 0, 0, cause ? cause : "connection lost");
+    push(ctx, HP_MQTT_DISCONNECTED, 0, NULL, NULL, 0, 0, 0, cause ? cause : "connection lost");
 }
 
 static int on_message(void *ctx, char *topic, int topic_len, MQTTAsync_message *msg)
@@ -112,8 +114,9 @@ static int on_message(void *ctx, char *topic, int topic_len, MQTTAsync_message *
     name[tl] = '\0';
     size_t len = msg->payloadlen > 0 ? (size_t)msg->payloadlen : 0;
     int oversize = len > m->opt.max_inbound;
+    int retained = msg->retained != 0;
     push(m, HP_MQTT_MESSAGE, 0, name, oversize ? NULL : (msg->payload ? msg->payload : ""), len,
-         oversize, NULL);
+         oversize, retained, NULL);
     MQTTAsync_freeMessage(&msg);
     MQTTAsync_free(topic);
     return 1;
@@ -123,31 +126,33 @@ static void on_connected(void *ctx, char *cause)
 {
     hp_mqtt *m = ctx;
     (void)cause;
-    push(m, HP_MQTT_CONNECTED, 0, NULL, NULL, 0, 0, NULL);
+    push(m, HP_MQTT_CONNECTED, 0, NULL, NULL, 0, 0, 0, NULL);
 }
 
-static void on_connect_failure(void *ctx, MQTTAsync_failureData *resp)
+static void on_connect_failure(void *ctx, MQTTAsync_failureData5 *resp)
 {
-    char why[160];
-    snprintf(why, sizeof why, "connect failed (code %d)%s%s", resp ? resp->code : 0,
-             resp && resp->message ? ": " : "", resp && resp->message ? resp->message : "");
-    push(ctx, HP_MQTT_DISCONNECTED, 0, NULL, NULL, 0, 0, why);
+    char why[200];
+    snprintf(why, sizeof why, "connect failed (code %d, reason %d)%s%s", resp ? resp->code : 0,
+             resp ? (int)resp->reasonCode : 0, resp && resp->message ? ": " : "",
+             resp && resp->message ? resp->message : "");
+    push(ctx, HP_MQTT_DISCONNECTED, 0, NULL, NULL, 0, 0, 0, why);
 }
 
-static void on_publish_ok(void *ctx, MQTTAsync_successData *resp)
+static void on_publish_ok(void *ctx, MQTTAsync_successData5 *resp)
 {
     struct pub_ctx *p = ctx;
     (void)resp;
-    push(p->m, HP_MQTT_DELIVERED, p->tag, NULL, NULL, 0, 0, NULL);
+    push(p->m, HP_MQTT_DELIVERED, p->tag, NULL, NULL, 0, 0, 0, NULL);
     free(p);
 }
 
-static void on_publish_fail(void *ctx, MQTTAsync_failureData *resp)
+static void on_publish_fail(void *ctx, MQTTAsync_failureData5 *resp)
 {
     struct pub_ctx *p = ctx;
     char why[64];
-    snprintf(why, sizeof why, "publish failed (code %d)", resp ? resp->code : 0);
-    push(p->m, HP_MQTT_FAILED, p->tag, NULL, NULL, 0, 0, why);
+    snprintf(why, sizeof why, "publish failed (code %d, reason %d)", resp ? resp->code : 0,
+             resp ? (int)resp->reasonCode : 0);
+    push(p->m, HP_MQTT_FAILED, p->tag, NULL, NULL, 0, 0, 0, why);
     free(p);
 }
 
@@ -201,10 +206,20 @@ hp_mqtt *hp_mqtt_new(const hp_mqtt_options *o, char *err, size_t errlen)
     m->opt.will_topic = keep(m, 7, o->will_topic);
     m->opt.will_payload = keep(m, 8, o->will_payload);
     m->opt.subscribe = keep(m, 9, o->subscribe);
-    const char *given[10] = {o->uri, o->client_id, o->username, o->password, o->ca_file,
+    m->opt.subscribe_extra[0] = keep(m, 10, o->subscribe_extra[0]);
+    m->opt.subscribe_extra[1] = keep(m, 11, o->subscribe_extra[1]);
+    const char *given[12] = {o->uri, o->client_id, o->username, o->password, o->ca_file,
                              o->cert_file, o->key_file, o->will_topic, o->will_payload,
-                             o->subscribe};
-    for (int i = 0; i < 10; i++)
+                             o->subscribe, o->subscribe_extra[0], o->subscribe_extra[1]};
+    if (o->will_payload != NULL && o->will_len > 0) {
+        /* a binary will (a Sparkplug NDEATH) may hold NUL bytes */
+        m->will_copy = malloc(o->will_len);
+        if (m->will_copy != NULL)
+            memcpy(m->will_copy, o->will_payload, o->will_len);
+        else
+            given[8] = "", m->copies[8] = NULL;
+    }
+    for (int i = 0; i < 12; i++)
         if (given[i] != NULL && m->copies[i] == NULL) {
             fail(err, errlen, "mqtt: out of memory");
             hp_mqtt_free(m, 0);
@@ -223,7 +238,7 @@ hp_mqtt *hp_mqtt_new(const hp_mqtt_options *o, char *err, size_t errlen)
     /* paho wants tcp:// and ssl:// spellings. */
     char uri[512];
     snprintf(uri, sizeof uri, "%s://%s", tls ? "ssl" : "tcp", strstr(o->uri, "://") + 3);
-    MQTTAsync_createOptions co = MQTTAsync_createOptions_initializer;
+    MQTTAsync_createOptions co = MQTTAsync_createOptions_initializer5;
     co.sendWhileDisconnected = 0; /* our outbox holds messages, not paho */
     co.maxBufferedMessages = m->opt.max_inflight + 16;
     int rc = MQTTAsync_createWithOptions(&m->client, uri, m->opt.client_id,
@@ -241,24 +256,38 @@ hp_mqtt *hp_mqtt_new(const hp_mqtt_options *o, char *err, size_t errlen)
 
 int hp_mqtt_start(hp_mqtt *m, char *err, size_t errlen)
 {
-    MQTTAsync_connectOptions co = MQTTAsync_connectOptions_initializer;
+    MQTTAsync_connectOptions co = MQTTAsync_connectOptions_initializer5;
     MQTTAsync_willOptions will = MQTTAsync_willOptions_initializer;
     MQTTAsync_SSLOptions ssl = MQTTAsync_SSLOptions_initializer;
+    /* MQTT 5: the broker is told the largest packet we take, so a huge
+     * publish is dropped at the broker instead of being read into memory
+     * here (paho reads a whole packet before it looks at it). */
+    MQTTProperties props = MQTTProperties_initializer;
+    MQTTProperty limit = {.identifier = MQTTPROPERTY_CODE_MAXIMUM_PACKET_SIZE};
+    limit.value.integer4 = (unsigned)hp_mqtt_packet_limit(&m->opt);
+    if (MQTTProperties_add(&props, &limit) != 0)
+        return fail(err, errlen, "mqtt: out of memory");
+    co.connectProperties = &props;
     co.keepAliveInterval = m->opt.keepalive_s;
-    co.cleansession = 1;
-    co.MQTTVersion = MQTTVERSION_3_1_1;
+    co.cleanstart = 1;
+    co.MQTTVersion = MQTTVERSION_5;
     co.maxInflight = m->opt.max_inflight;
-    co.automaticReconnect = 1;
+    co.automaticReconnect = m->opt.no_reconnect ? 0 : 1;
     co.minRetryInterval = m->opt.min_retry_s;
     co.maxRetryInterval = m->opt.max_retry_s;
     co.connectTimeout = 10;
     co.username = m->opt.username;
     co.password = m->opt.password;
-    co.onFailure = on_connect_failure;
+    co.onFailure5 = on_connect_failure;
     co.context = m;
     if (m->opt.will_topic) {
         will.topicName = m->opt.will_topic;
         will.message = m->opt.will_payload ? m->opt.will_payload : "";
+        if (m->will_copy != NULL) {
+            will.message = NULL; /* paho sends payload.data when message is NULL */
+            will.payload.data = m->will_copy;
+            will.payload.len = (int)m->opt.will_len;
+        }
         will.retained = m->opt.will_retained;
         will.qos = 1;
         co.will = &will;
@@ -272,10 +301,17 @@ int hp_mqtt_start(hp_mqtt *m, char *err, size_t errlen)
         co.ssl = &ssl;
     }
     int rc = MQTTAsync_connect(m->client, &co);
+    MQTTProperties_free(&props); /* paho keeps its own copy for reconnects */
     if (rc != MQTTASYNC_SUCCESS)
         return fail(err, errlen, "mqtt: cannot start connecting to %s (code %d)", m->opt.uri,
                     rc);
     return 0;
+}
+
+size_t hp_mqtt_packet_limit(const hp_mqtt_options *opt)
+{
+    size_t inbound = opt->max_inbound ? opt->max_inbound : 4096;
+    return inbound + HP_MQTT_PACKET_HEADROOM;
 }
 
 int hp_mqtt_connected(hp_mqtt *m)
@@ -306,8 +342,8 @@ int hp_mqtt_publish(hp_mqtt *m, const char *topic, const void *payload, size_t l
     msg.qos = qos;
     msg.retained = retained;
     MQTTAsync_responseOptions ro = MQTTAsync_responseOptions_initializer;
-    ro.onSuccess = on_publish_ok;
-    ro.onFailure = on_publish_fail;
+    ro.onSuccess5 = on_publish_ok;
+    ro.onFailure5 = on_publish_fail;
     ro.context = p;
     int rc = MQTTAsync_sendMessage(m->client, topic, &msg, &ro);
     if (rc != MQTTASYNC_SUCCESS) {
@@ -348,8 +384,15 @@ int hp_mqtt_poll(hp_mqtt *m, int timeout_ms, void (*fn)(void *ctx, const hp_mqtt
         if (list->ev.type == HP_MQTT_CONNECTED && m->opt.subscribe) {
             /* Renewed at every connect (clean sessions), from the owner's
              * thread rather than paho's callback. */
-            MQTTAsync_subscribe(m->client, m->opt.subscribe, 1, NULL);
+            MQTTAsync_responseOptions so = MQTTAsync_responseOptions_initializer;
+            /* keep the retain flag as published, so that a command published
+             * retained is seen as one even when it arrives live */
+            so.subscribeOptions.retainAsPublished = 1;
+            MQTTAsync_subscribe(m->client, m->opt.subscribe, 1, &so);
         }
+        for (int i = 0; list->ev.type == HP_MQTT_CONNECTED && i < 2; i++)
+            if (m->opt.subscribe_extra[i])
+                MQTTAsync_subscribe(m->client, m->opt.subscribe_extra[i], 1, NULL);
         if (fn)
             fn(ctx, &list->ev);
         free(list->topic);
@@ -378,7 +421,7 @@ void hp_mqtt_free(hp_mqtt *m, int timeout_ms)
         return;
     if (m->client) {
         if (MQTTAsync_isConnected(m->client)) {
-            MQTTAsync_disconnectOptions d = MQTTAsync_disconnectOptions_initializer;
+            MQTTAsync_disconnectOptions d = MQTTAsync_disconnectOptions_initializer5;
             d.timeout = timeout_ms;
             if (MQTTAsync_disconnect(m->client, &d) == MQTTASYNC_SUCCESS) {
                 /* Wait for the disconnect to finish before destroying. */
@@ -395,6 +438,7 @@ void hp_mqtt_free(hp_mqtt *m, int timeout_ms)
         explicit_bzero(m->copies[3], strlen(m->copies[3]));
     for (size_t i = 0; i < sizeof m->copies / sizeof m->copies[0]; i++)
         free(m->copies[i]);
+    free(m->will_copy);
     pthread_mutex_destroy(&m->lock);
     pthread_cond_destroy(&m->ready);
     free(m);

@@ -1,4 +1,4 @@
-/* MQTT link on paho-mqtt-c's async API: connects with automatic reconnect
+/* MQTT link on paho-mqtt-c's async API (MQTT 5): connects with automatic reconnect
  * (exponential backoff between min_retry_s and max_retry_s), a last will,
  * TLS with server verification, and a username/password. It knows nothing
  * of ponds or of the outbox: it publishes what it is given and reports,
@@ -29,14 +29,25 @@ typedef struct {
     const char *key_file;   /* its key (PEM) */
     const char *will_topic; /* NULL: no last will */
     const char *will_payload;
+    size_t will_len;        /* bytes of will_payload; 0: strlen (text) */
     int will_retained;
     int keepalive_s;        /* default 30 */
     int max_inflight;       /* QoS 1 messages in flight; default 64 */
     int min_retry_s;        /* reconnect backoff; default 1 */
     int max_retry_s;        /* default 60 */
     const char *subscribe;  /* topic filter subscribed at every connect; NULL: none */
+    const char *subscribe_extra[2]; /* more filters, the same way; NULL: none */
+    int no_reconnect;       /* 1: a lost connection stays lost (the owner makes a new
+                               client, e.g. to change the will); 0: paho reconnects */
     size_t max_inbound;     /* larger inbound payloads are reported, not copied; default 4096 */
 } hp_mqtt_options;
+
+/* Inbound payloads up to max_inbound + this are still read (and reported
+ * oversize, so that the sender gets an answer); the broker drops larger
+ * packets unread: the Maximum Packet Size of our CONNECT. */
+#define HP_MQTT_PACKET_HEADROOM 65536
+/* The Maximum Packet Size sent in CONNECT [bytes]. */
+size_t hp_mqtt_packet_limit(const hp_mqtt_options *opt);
 
 typedef enum {
     HP_MQTT_CONNECTED,      /* (re)connected; subscriptions are renewed */
@@ -53,6 +64,7 @@ typedef struct {
     const void *payload;    /* MESSAGE; NULL when oversize */
     size_t payload_len;     /* MESSAGE: the real length, even when oversize */
     int oversize;           /* MESSAGE: longer than max_inbound, payload dropped */
+    int retained;           /* MESSAGE: it carried the retain flag (a stored message) */
     const char *reason;     /* DISCONNECTED / FAILED: text; may be NULL */
 } hp_mqtt_event;
 

@@ -5,7 +5,13 @@
 #define HS_CLI_NUMBER_H
 
 /* The whole of TEXT must be one finite number (no trailing characters, no
- * overflow, no inf/nan): "halostage CMD: OPT: 'TEXT' is not a number". */
+ * overflow, no inf/nan): "halostage CMD: OPT: 'TEXT' is not a number".
+ * Options whose name ends in a quantity (temperature, conductivity, density,
+ * pressure, level, crest, area) also take a number with a unit, as the site
+ * file does ("77F", "40cm", "20ha", "1.215 g/cm3"), converted to the unit the
+ * command works in, and a bare number that is almost surely a slip of unit
+ * (a conductivity above 1000 mS/cm, a density below 3 kg/m3) is refused with
+ * the likely meaning. */
 int hs_cli_number(const char *cmd, const char *opt, const char *text, double *out);
 
 /* Reference temperature for specific gravity and Baume [degC]: a number within

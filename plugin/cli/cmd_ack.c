@@ -7,11 +7,13 @@
  * this command waits for. Exit 0 applied (or nothing to do), 1 refused,
  * 75 still pending when the wait ran out (the daemon is not running?). */
 #include <getopt.h>
+#include <pwd.h>
 #include <jansson.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 #include <time.h>
+#include <unistd.h>
 
 #include "cli_number.h"
 #include "commands.h"
@@ -27,6 +29,17 @@ static void usage(FILE *out)
             "                     [--note TEXT] [--wait DURATION]\n"
             "  Without --shelve/--unshelve it acknowledges. --operator defaults to $USER.\n"
             "  Waits up to --wait (default 10s) for the daemon's answer.\n");
+}
+
+/* $USER, else the login name of this process's user: the journal must say
+ * who acted, and a service shell or cron has no $USER. */
+static const char *operator_name(void)
+{
+    const char *u = getenv("USER");
+    if (u != NULL && u[0] != '\0')
+        return u;
+    struct passwd *pw = getpwuid(getuid());
+    return pw != NULL && pw->pw_name[0] != '\0' ? pw->pw_name : NULL;
 }
 
 int hs_cmd_ack(int argc, char **argv)
@@ -67,12 +80,31 @@ int hs_cmd_ack(int argc, char **argv)
         }
     }
     if (oper == NULL)
-        oper = getenv("USER");
+        oper = operator_name();
     const char *verb = shelve ? "shelve" : unshelve ? "unshelve" : "ack";
-    if (config == NULL || optind < argc || (shelve && unshelve) || oper == NULL ||
-        (event != 0) == (pond != NULL) || ((shelve || unshelve) && (event || !rule))) {
-        fprintf(stderr, "halostage ack: need --config and either --event or --pond; shelving "
-                        "needs --pond and --rule; --operator when $USER is not set (see --help)\n");
+    const char *why = NULL;
+    if (optind < argc) {
+        fprintf(stderr, "halostage ack: unexpected '%s'\n", argv[optind]);
+        return 2;
+    }
+    if (config == NULL)
+        why = "needs --config FILE (the site file whose daemon keeps the alarms)";
+    else if (shelve && unshelve)
+        why = "--shelve and --unshelve exclude each other: give one";
+    else if ((shelve || unshelve) && event)
+        why = "--shelve and --unshelve name the alarm by --pond and --rule, not by --event";
+    else if ((shelve || unshelve) && (pond == NULL || rule == NULL))
+        why = shelve ? "--shelve needs --pond POND and --rule RULE"
+                     : "--unshelve needs --pond POND and --rule RULE";
+    else if (event != 0 && pond != NULL)
+        why = "give --event ID or --pond POND [--rule RULE], not both";
+    else if (event == 0 && pond == NULL)
+        why = "which alarm? give --event ID, or --pond POND [--rule RULE]";
+    else if (oper == NULL)
+        why = "who is acknowledging? give --operator NAME (neither $USER nor a login name is "
+              "known)";
+    if (why != NULL) {
+        fprintf(stderr, "halostage ack: %s\n", why);
         return 2;
     }
     int64_t wait_ms = 0, shelve_ms = 0;
@@ -107,6 +139,13 @@ int hs_cmd_ack(int argc, char **argv)
     int rc = hs_cli_open(config, &site, &st);
     if (rc != 0) {
         free(text);
+        return rc;
+    }
+    rc = hs_cli_known_pond("ack", "--pond", &site, pond);
+    if (rc != 0) {
+        free(text);
+        hs_store_close(st);
+        hs_site_free(&site);
         return rc;
     }
     int64_t id;

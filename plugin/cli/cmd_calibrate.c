@@ -212,11 +212,8 @@ int hs_cmd_calibrate(int argc, char **argv)
     }
     int rc = 2;
     hs_store *st = NULL;
-    if (pond != NULL && hs_site_pond(&site, pond) < 0) {
-        fprintf(stderr, "halostage calibrate: --pond %s: no [pond %s] in %s\n", pond, pond,
-                config);
+    if (hs_cli_known_pond("calibrate", "--pond", &site, pond) != 0)
         goto done;
-    }
     hs_calibration_row row = {
         .pond = pond,
         .hydrometer_temperature_c = NAN,

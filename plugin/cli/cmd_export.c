@@ -256,6 +256,12 @@ int hs_cmd_export(int argc, char **argv)
     int rc = hs_cli_open(config, &site, &st);
     if (rc != 0)
         return rc;
+    rc = hs_cli_known_pond("export", "--pond", &site, pond);
+    if (rc != 0) {
+        hs_store_close(st);
+        hs_site_free(&site);
+        return rc;
+    }
     long rows = 0;
     int n;
     if (json) {

@@ -272,6 +272,14 @@ int hs_cmd_forecast(int argc, char **argv)
         hs_hopt_pond_free(&rq.pond);
         return rc == 3 ? 0 : rc;
     }
+    if (rq.common.config_path == NULL && !isfinite(rq.pond.area_m2) &&
+        rq.pond.stage_storage[0] == '\0' && !isfinite(rq.pond.density_kg_m3)) {
+        fprintf(stderr, "halostage " CMD ": give --config FILE (every pond of the site, from "
+                        "its history) or describe one pond by hand (--area, --level, --density, "
+                        "--temperature, ...; see --help)\n");
+        hs_hopt_pond_free(&rq.pond);
+        return 2;
+    }
     struct hs_hcli_context ctx;
     rc = hs_hcli_open(CMD, &rq.common, &ctx);
     if (rc != 0) {
@@ -302,8 +310,10 @@ int hs_cmd_forecast(int argc, char **argv)
             break;
     }
     if (rq.only_pond != NULL && ctx.site_loaded && done == 0) {
-        fprintf(stderr, "halostage " CMD ": no pond '%s' in %s\n", rq.only_pond,
-                rq.common.config_path);
+        char hint[200];
+        fprintf(stderr, "halostage " CMD ": no pond '%s' in %s%s\n", rq.only_pond,
+                rq.common.config_path,
+                hs_site_pond_hint(&ctx.site, rq.only_pond, hint, sizeof hint));
         worst = 2;
     }
     hs_hcli_close(&ctx);

@@ -269,6 +269,14 @@ int hs_cmd_history(int argc, char **argv)
     int rc = hs_cli_open(config, &site, &st);
     if (rc != 0)
         return rc;
+    rc = hs_cli_known_pond("history", "--pond", &site, pond);
+    if (rc == 0)
+        rc = hs_cli_known_signal("history", &site, signal);
+    if (rc != 0) {
+        hs_store_close(st);
+        hs_site_free(&site);
+        return rc;
+    }
     struct table t = {0};
     char series[160];
     size_t ncols = signal ? 1 : NCOLS;

@@ -255,7 +255,9 @@ int hs_hcli_pond_view(const char *cmd, struct hs_hcli_context *ctx, const char *
     if (ctx->site_loaded) {
         int idx = hs_site_pond(&ctx->site, name);
         if (idx < 0) {
-            fprintf(stderr, "halostage %s: no pond '%s' in %s\n", cmd, name, ctx->site.path);
+            char hint[200];
+            fprintf(stderr, "halostage %s: no pond '%s' in %s%s\n", cmd, name, ctx->site.path,
+                    hs_site_pond_hint(&ctx->site, name, hint, sizeof hint));
             return 2;
         }
         p = &ctx->site.ponds[idx];

@@ -3,6 +3,7 @@
 #include <string.h>
 
 #include "commands.h"
+#include "hs_suggest.h"
 
 static void usage(FILE *out)
 {
@@ -31,7 +32,13 @@ int main(int argc, char **argv)
     for (const struct hs_command *c = hs_commands; c->name != NULL; c++)
         if (strcmp(argv[1], c->name) == 0)
             return c->run(argc - 1, argv + 1);
-    fprintf(stderr, "halostage: unknown command '%s'\n", argv[1]);
+    hs_suggest sg;
+    char hint[96];
+    hs_suggest_init(&sg, argv[1]);
+    for (const struct hs_command *c = hs_commands; c->name != NULL; c++)
+        hs_suggest_offer(&sg, c->name);
+    fprintf(stderr, "halostage: unknown command '%s'%s\n", argv[1],
+            hs_suggest_text(&sg, hint, sizeof hint));
     usage(stderr);
     return 2;
 }

@@ -30,6 +30,29 @@ int hs_cli_open(const char *config, hs_site *site, hs_store **st)
     return 0;
 }
 
+int hs_cli_known_pond(const char *cmd, const char *opt, const hs_site *site, const char *name)
+{
+    if (name == NULL || hs_site_pond(site, name) >= 0)
+        return 0;
+    char hint[200];
+    fprintf(stderr, "halostage %s: %s %s: no pond '%s' in %s%s\n", cmd, opt, name, name,
+            site->path, hs_site_pond_hint(site, name, hint, sizeof hint));
+    return 2;
+}
+
+int hs_cli_known_signal(const char *cmd, const hs_site *site, const char *name)
+{
+    if (name == NULL)
+        return 0;
+    for (size_t i = 0; i < site->n_signals; i++)
+        if (strcmp(site->signals[i].name, name) == 0)
+            return 0;
+    char hint[200];
+    fprintf(stderr, "halostage %s: --signal %s: no [signal %s] in %s%s\n", cmd, name, name,
+            site->path, hs_site_signal_hint(site, name, hint, sizeof hint));
+    return 2;
+}
+
 int hs_cli_time(const char *text, int64_t now_ms, int64_t *out_ms, char *msg, size_t len)
 {
     if (strcmp(text, "now") == 0) {

@@ -22,6 +22,12 @@ int hs_cli_time(const char *text, int64_t now_ms, int64_t *out_ms, char *msg, si
 
 int64_t hs_cli_now_ms(void);
 
+/* A --pond (or --signal POND.QUANTITY) the site file must have. 0 when it
+ * does (or name is NULL); else prints "halostage CMD: OPT NAME: no pond 'NAME'
+ * in FILE (did you mean 'x'? | ponds: a, b)" and returns 2 (a usage error). */
+int hs_cli_known_pond(const char *cmd, const char *opt, const hs_site *site, const char *name);
+int hs_cli_known_signal(const char *cmd, const hs_site *site, const char *name);
+
 /* --since and --until of CMD, each as hs_cli_time reads it against the same
  * "now". 0, or -1 after printing "halostage CMD: reason" on stderr. */
 int hs_cli_window(const char *cmd, const char *since_text, const char *until_text,

@@ -10,6 +10,7 @@
 #include "hc_brine_density.h"
 #include "hc_carbonate.h"
 #include "hc_minerals.h"
+#include "hc_onset_table.h"
 #include "hc_path.h"
 #include "hc_pitzer.h"
 
@@ -136,6 +137,48 @@ static double bench_lookup(const hc_path *p, enum lookup kind, double *sink)
     return best;
 }
 
+/* ms to build the stage-onset table (10 paths, 0..45 degC), and ns per
+ * sample to restage a state at its own temperature (stage, next stage and
+ * its densities at t and t_ref) or to judge the stage at t_ref by density. */
+static void bench_onsets(const hc_feed *f, const hc_path *p, double *sink)
+{
+    static const double temps[] = {0, 5, 10, 15, 20, 25, 30, 35, 40, 45};
+    static hc_onset_table tab;
+    double t0 = now_ns();
+    if (hc_onset_table_build(f, temps, 10, HC_PATH_FRACTIONAL, NULL, &tab) != HC_OK)
+        return;
+    printf("onset table build, 10 temps:  %8.2f ms (at start, per feed)\n",
+           (now_ns() - t0) / 1e6);
+    enum { N = 20000 };
+    double best = 1e300, best_ref = 1e300;
+    for (int r = 0; r < ROUNDS; r++) {
+        double acc = 0.0;
+        t0 = now_ns();
+        for (int i = 0; i < N; i++) {
+            double u = (i % 997) / 997.0;
+            hc_brine_state s;
+            hc_state_clear(&s);
+            s.concentration_factor = 1.0 + 150.0 * u;
+            s.temperature_c = 5.0 + 35.0 * u;
+            s.reference_temperature_c = 20.0;
+            hc_onset_table_restage(&tab, &s);
+            acc += s.stage;
+        }
+        double dt = (now_ns() - t0) / N;
+        best = dt < best ? dt : best;
+        t0 = now_ns();
+        for (int i = 0; i < N / 10; i++)
+            acc += hc_onset_table_stage_ref(&tab, 1025.0 + 0.03 * (i % 9973), 20.0);
+        dt = (now_ns() - t0) / (N / 10);
+        best_ref = dt < best_ref ? dt : best_ref;
+        *sink += acc;
+    }
+    (void)p;
+    printf("stage at pond temperature:    %8.0f ns per sample (table lookup + next-stage densities)\n",
+           best);
+    printf("stage at t_ref by density:    %8.0f ns per transfer decision\n", best_ref);
+}
+
 int main(void)
 {
     double sink = 0.0;
@@ -168,6 +211,7 @@ int main(void)
            bench_lookup(p, FROM_DENSITY_OTHER_T, &sink));
     printf("state lookup, from cond.:     %8.0f ns (built-in brine model)\n",
            bench_lookup(p, FROM_CONDUCTIVITY, &sink));
+    bench_onsets(&f, p, &sink);
     hc_path_free(p);
     if (sink == 0.0)
         printf("(no result)\n");

@@ -65,7 +65,7 @@ refuse 1 '--pressure 20000: outside' --conductivity 40 --temperature 10 --pressu
 refuse 1 '--pressure -1: outside' --conductivity 40 --temperature 10 --pressure -1
 refuse 2 "not a number" --conductivity nan --temperature 25
 refuse 2 "not a number" --conductivity 40 --temperature abc
-refuse 2 "not a number" --conductivity 40x --temperature 25
+refuse 2 "unknown unit 'x' for a conductivity" --conductivity 40x --temperature 25
 refuse 2 "exactly one of" --temperature 25
 refuse 2 "exactly one of" --conductivity 40 --density 1025 --temperature 25
 refuse 2 "required" --conductivity 40

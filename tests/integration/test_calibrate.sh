@@ -24,7 +24,7 @@ rows() { sqlite3 -cmd ".timeout 5000" "$db" "$1" 2>/dev/null; }
 
 # ---- the command: refusals name the field, and write nothing ----
 "$H" calibrate --config "$cfg" --pond nowhere --sg 1.2 >/dev/null 2>"$HS_TMP/e1"
-check "unknown pond: exit 2, named" test $? -eq 2 -a -n "$(grep -l 'no \[pond nowhere\]' "$HS_TMP/e1")"
+check "unknown pond: exit 2, named" test $? -eq 2 -a -n "$(grep -l "no pond 'nowhere'" "$HS_TMP/e1")"
 "$H" calibrate --config "$cfg" --pond x2 --sg 1.8 >/dev/null 2>"$HS_TMP/e2"
 check "SG out of range: exit 2, names --sg" test $? -eq 2 -a -n "$(grep -l -- '--sg 1.8: outside' "$HS_TMP/e2")"
 "$H" calibrate --config "$cfg" --pond x2 --sg 1.2 --conductivity 200 >/dev/null 2>"$HS_TMP/e3"

@@ -70,7 +70,15 @@ check "raw history lists every state (60 in 10 min)" \
     --until 2026-01-01T03:00Z --step 1h >"$HS_TMP/h1.txt"
 check "text history has one line per hour" test "$(grep -c '^2026-01-01T0' "$HS_TMP/h1.txt")" -eq 3
 "$CLI" history --config "$CONF" --pond west-9 --since 7d >/dev/null 2>"$HS_TMP/unknown.err"
-check "unknown pond: exit 1 with a reason" test $? -eq 1
+check "unknown pond: exit 2 (a usage error)" test $? -eq 2
+check "unknown pond: the message names the known ponds" grep -q "no pond 'west-9'.*(ponds: east-1)" "$HS_TMP/unknown.err"
+"$CLI" history --config "$CONF" --pond east-l --since 7d >/dev/null 2>"$HS_TMP/slip.err"
+check "a slip gets 'did you mean'" grep -q "did you mean 'east-1'" "$HS_TMP/slip.err"
+"$CLI" export --csv --config "$CONF" --pond west-9 >"$HS_TMP/export-unknown.csv" 2>"$HS_TMP/export-unknown.err"
+check "export of an unknown pond is refused, not silently empty (exit 2)" test $? -eq 2
+check "export names the known ponds" grep -q "no pond 'west-9'" "$HS_TMP/export-unknown.err"
+"$CLI" history --config "$CONF" --signal east-1.temprature --since 7d >/dev/null 2>"$HS_TMP/sig.err"
+check "an unknown signal gets 'did you mean'" grep -q "did you mean 'east-1.temperature'" "$HS_TMP/sig.err"
 check "the reason names the pond" grep -q "west-9" "$HS_TMP/unknown.err"
 "$CLI" history --config "$CONF" --pond east-1 --since 7d --step 90s >/dev/null 2>&1
 check "a step that is not whole minutes is refused (exit 2)" test $? -eq 2
@@ -120,6 +128,30 @@ check "shelve reports its journal event" grep -q "^event 3$" "$HS_TMP/ack4.out"
 check "journal: raise, one ack, the shelve" \
     test "$(sqlite3 "$DB" "SELECT group_concat(cause) FROM (SELECT cause FROM alarm_journal ORDER BY event_id)")" = \
     "condition-raised,acknowledged,shelved"
+"$CLI" ack --config "$CONF" --pond east-1 --rule band --shelve 48h --operator ana --wait 10s \
+    >"$HS_TMP/ack5.out" 2>&1
+check "a shelve beyond max_shelve is refused naming the limit (24 h)" \
+    grep -q "longer than its max_shelve of 86400s (24 h)" "$HS_TMP/ack5.out"
+# Each mistake on the command line gets its own sentence.
+ack_err() {  # EXPECTED-TEXT ARGS...
+    local want=$1; shift
+    "$CLI" ack "$@" >/dev/null 2>"$HS_TMP/ackerr"
+    local rc=$?
+    [ "$rc" -eq 2 ] && grep -qF -- "$want" "$HS_TMP/ackerr"
+}
+check "ack: no --config" ack_err "needs --config FILE" --event 1
+check "ack: neither --event nor --pond" ack_err "which alarm?" --config "$CONF"
+check "ack: both --event and --pond" ack_err "not both" --config "$CONF" --event 1 --pond east-1
+check "ack: --shelve with --unshelve" ack_err "exclude each other" --config "$CONF" \
+    --pond east-1 --rule band --shelve 1h --unshelve
+check "ack: --shelve by --event" ack_err "not by --event" --config "$CONF" --event 1 --shelve 1h
+check "ack: --shelve without --rule" ack_err "--shelve needs --pond POND and --rule RULE" \
+    --config "$CONF" --pond east-1 --shelve 1h
+check "ack: an unknown pond names the known ones" ack_err "(ponds: east-1)" --config "$CONF" \
+    --pond west-9 --operator ana
+env -u USER "$CLI" ack --config "$CONF" --event 1 --wait 300ms >/dev/null 2>"$HS_TMP/nouser.err"
+check "ack without \$USER takes the login name instead of refusing" \
+    bash -c "[ $? -ne 2 ] && ! grep -q 'operator' '$HS_TMP/nouser.err'"
 for sub in history "export --csv"; do
     "$CLI" $sub --config "$CONF" --pond east-1 --since yesterday 2>"$HS_TMP/when.err" >/dev/null
     check "${sub%% *}: unreadable --since exits 2" test $? -eq 2

@@ -80,7 +80,10 @@ mosquitto_pub -h 127.0.0.1 -p "$mport" -q 1 -t "$T/command/shelve" -f "$HS_TMP/b
 mosquitto_pub -h 127.0.0.1 -p "$mport" -q 1 -t "$T/command/reboot" -m '{}'
 mosquitto_pub -h 127.0.0.1 -p "$mport" -q 1 -t "$T/command/ack/deeper" -m '{"event_id":1}'
 mosquitto_pub -h 127.0.0.1 -p "$mport" -q 1 -t "$T/command/unshelve" -n
-want=$((n_garbage + 4))
+# big.bin (200 kB) is beyond the Maximum Packet Size the daemon gave the
+# broker (max_inbound + 64 KiB): the broker drops it, so it gets no answer;
+# oversize payloads below that limit are answered (the "[" x 5000 one).
+want=$((n_garbage + 3))
 got=0
 for ((i = 0; i < 600; i++)); do
     got=$(grep -c "^$T/error " "$HS_TMP/out.txt")

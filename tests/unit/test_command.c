@@ -224,9 +224,10 @@ static int see_topic(void *ctx, const hs_outbox_msg *m)
 static void replies_go_to_their_topics(void **state)
 {
     struct fixture *f = *state;
-    hs_command_on_message(&f->cmd, "halostage/demo/command/ack", "{oops", 5, 0);
-    const char *ack = "{\"event_id\":1,\"operator\":\"ana\"}";
-    hs_command_on_message(&f->cmd, "halostage/demo/command/ack", ack, strlen(ack), 0);
+    hs_command_on_message(&f->cmd, "halostage/demo/command/ack", "{oops", 5, 0, 0);
+    const char *ack = "{\"event_id\":1,\"operator\":\"ana\",\"request_id\":\"r1\","
+                      "\"time\":\"1970-01-01T00:16:40Z\"}";
+    hs_command_on_message(&f->cmd, "halostage/demo/command/ack", ack, strlen(ack), 0, 0);
     struct topics_seen t = {0};
     assert_int_equal(hs_store_outbox_peek(f->st, 0, 8, see_topic, &t), 4);
     assert_string_equal(t.topic[0], "halostage/demo/alarm/crys-1/bittern"); /* the raise */
@@ -246,6 +247,113 @@ static void replies_go_to_their_topics(void **state)
     free(reply);
 }
 
+/* Reads the outbox rows after id *after into topic/payload pairs. */
+struct rows_seen {
+    char topic[16][128];
+    char payload[16][512];
+    int n;
+};
+
+static int see_row(void *ctx, const hs_outbox_msg *m)
+{
+    struct rows_seen *t = ctx;
+    if (t->n < 16) {
+        snprintf(t->topic[t->n], sizeof t->topic[0], "%s", m->topic);
+        snprintf(t->payload[t->n], sizeof t->payload[0], "%.*s", (int)m->payload_len,
+                 (const char *)m->payload);
+        t->n++;
+    }
+    return 0;
+}
+
+static int64_t journal_rows(struct fixture *f)
+{
+    uint64_t last = 0;
+    hs_store_flush(f->st);
+    hs_store_last_event_id(f->st, &last);
+    return (int64_t)last;
+}
+
+/* A retained command is never applied and is answered once, however often
+ * the broker delivers it (a restart included: the answer is in the store). */
+static void retained_refused_once(void **state)
+{
+    struct fixture *f = *state;
+    const char *shelve = "{\"pond\":\"crys-1\",\"rule\":\"bittern\",\"duration_s\":3600,"
+                         "\"operator\":\"ana\",\"request_id\":\"s1\","
+                         "\"time\":\"1970-01-01T00:16:40Z\"}";
+    int64_t before = journal_rows(f);
+    for (int i = 0; i < 3; i++)
+        hs_command_on_message(&f->cmd, "halostage/demo/command/shelve", shelve, strlen(shelve),
+                              0, 1);
+    assert_int_equal(journal_rows(f), before); /* nothing shelved */
+    struct rows_seen t = {0};
+    hs_store_outbox_peek(f->st, 0, 16, see_row, &t);
+    int errors = 0;
+    for (int i = 0; i < t.n; i++)
+        if (strcmp(t.topic[i], "halostage/demo/error") == 0) {
+            errors++;
+            assert_non_null(strstr(t.payload[i], "retained command is never executed"));
+        }
+    assert_int_equal(errors, 1);
+}
+
+/* Over MQTT a command carries an id and a time: without them, or stale, it
+ * is refused; a repeat gets its first answer again and is not re-applied. */
+static void id_time_stale_and_repeat(void **state)
+{
+    struct fixture *f = *state;
+    const char *topic = "halostage/demo/command/shelve";
+    const char *no_id = "{\"pond\":\"crys-1\",\"rule\":\"bittern\",\"duration_s\":3600,"
+                        "\"operator\":\"ana\"}";
+    const char *stale = "{\"pond\":\"crys-1\",\"rule\":\"bittern\",\"duration_s\":3600,"
+                        "\"operator\":\"ana\",\"request_id\":\"old\","
+                        "\"time\":\"1970-01-01T00:05:00Z\"}"; /* 11 min 40 s before now */
+    const char *fresh = "{\"pond\":\"crys-1\",\"rule\":\"bittern\",\"duration_s\":3600,"
+                        "\"operator\":\"ana\",\"request_id\":\"new\","
+                        "\"time\":\"1970-01-01T00:16:30.500Z\"}";
+    int64_t before = journal_rows(f);
+    hs_command_on_message(&f->cmd, topic, no_id, strlen(no_id), 0, 0);
+    hs_command_on_message(&f->cmd, topic, stale, strlen(stale), 0, 0);
+    assert_int_equal(journal_rows(f), before);
+    hs_command_on_message(&f->cmd, topic, fresh, strlen(fresh), 0, 0);
+    int64_t applied = journal_rows(f);
+    assert_int_equal(applied, before + 1); /* shelved once */
+    fake_now += 60000;
+    hs_command_on_message(&f->cmd, topic, fresh, strlen(fresh), 0, 0);
+    fake_now -= 60000;
+    assert_int_equal(journal_rows(f), applied); /* the repeat changed nothing */
+    struct rows_seen t = {0};
+    hs_store_outbox_peek(f->st, 0, 16, see_row, &t);
+    int missing = 0, stale_seen = 0, shelved = 0, repeat = 0;
+    for (int i = 0; i < t.n; i++) {
+        missing += strstr(t.payload[i], "missing key 'request_id'") != NULL;
+        stale_seen += strstr(t.payload[i], "stale: sent at 1970-01-01T00:05:00Z, 700 s ago") != NULL;
+        shelved += strstr(t.payload[i], "\"result\":\"shelved\"") != NULL &&
+                   strstr(t.payload[i], "\"repeat\"") == NULL;
+        repeat += strstr(t.payload[i], "\"repeat\":true") != NULL &&
+                  strstr(t.payload[i], "\"result\":\"shelved\"") != NULL;
+    }
+    assert_int_equal(missing, 1);
+    assert_int_equal(stale_seen, 1);
+    assert_int_equal(shelved, 1);
+    assert_int_equal(repeat, 1);
+}
+
+static void command_times_parse(void **unused)
+{
+    (void)unused;
+    int64_t t;
+    assert_int_equal(hs_command_parse_time("2026-01-01T00:00:00Z", &t), 0);
+    assert_int_equal(t, INT64_C(1767225600000));
+    assert_int_equal(hs_command_parse_time("2026-01-01T00:00:00.25Z", &t), 0);
+    assert_int_equal(t, INT64_C(1767225600250));
+    assert_int_equal(hs_command_parse_time("2026-01-01T00:00:00", &t), -1); /* no zone */
+    assert_int_equal(hs_command_parse_time("2026-01-01T00:00:00+01:00", &t), -1);
+    assert_int_equal(hs_command_parse_time("yesterday", &t), -1);
+    assert_int_equal(hs_command_parse_time("2026-01-01T00:00:00.Z", &t), -1);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -256,6 +364,9 @@ int main(void)
         cmocka_unit_test_setup_teardown(ack_twice_says_so, setup, teardown),
         cmocka_unit_test_setup_teardown(shelve_then_unshelve, setup, teardown),
         cmocka_unit_test_setup_teardown(replies_go_to_their_topics, setup, teardown),
+        cmocka_unit_test_setup_teardown(retained_refused_once, setup, teardown),
+        cmocka_unit_test_setup_teardown(id_time_stale_and_repeat, setup, teardown),
+        cmocka_unit_test(command_times_parse),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

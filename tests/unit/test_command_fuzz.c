@@ -312,11 +312,11 @@ static void every_message_gets_one_reply(void **state)
         json_t *doc = random_command();
         char *text = json_dumps(doc, JSON_COMPACT);
         json_decref(doc);
-        hs_command_on_message(&f->cmd, topic, text, strlen(text), 0);
+        hs_command_on_message(&f->cmd, topic, text, strlen(text), 0, 0);
         free(text);
         expect++;
     }
-    hs_command_on_message(&f->cmd, NULL, NULL, 0, 0);
+    hs_command_on_message(&f->cmd, NULL, NULL, 0, 0, 0);
     expect++;
     assert_int_equal(f->cmd.accepted + f->cmd.refused - seen, expect);
     after.last_id = before.last_id;

@@ -49,7 +49,12 @@ static void halite_stage_from_density(void **unused)
     assert_true(s.saturation_index[HC_MIN_GYPSUM] < 0.01);
     assert_true(s.water_activity > 0.70 && s.water_activity < 0.745);
     assert_true(isnan(s.practical_salinity));
-    assert_int_equal(s.warnings, 0);
+    /* past the halite onset the CF is flagged uncertain, nothing else */
+    assert_int_equal(s.warnings, HC_WARN_CF_UNCERTAIN);
+    hc_brine_state g;
+    assert_int_equal(hc_path_state_from_density(path, 1150.0, 25.0, 15.556, 145.0, &g), HC_OK);
+    assert_int_equal(g.stage, HC_STAGE_GYPSUM);
+    assert_int_equal(g.warnings & HC_WARN_CF_UNCERTAIN, 0);
 }
 
 static void seawater_round_trip(void **unused)

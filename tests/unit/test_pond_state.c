@@ -11,6 +11,7 @@
 #include <string.h>
 #include <cmocka.h>
 
+#include "hc_feed.h"
 #include "hc_level.h"
 #include "hc_seawater.h"
 #include "hs_brine_eval.h"
@@ -161,6 +162,67 @@ static void brine_beyond_seawater_uses_the_path(void **unused)
     assert_int_equal(hc_path_state_from_density(path, 1150.0, 25.0, 20.0, 145.0, &want), HC_OK);
     near(r.state.concentration_factor, want.concentration_factor, 1e-12);
     assert_int_equal(r.state.stage, want.stage);
+    hs_brine_models_free(models);
+}
+
+/* Stage at the pond's own temperature. One brine (CF 3.4 of reference
+ * seawater, read by a densitometer at 10 and at 35 degC) has one density at
+ * the reference temperature, but at 10 degC it is past its gypsum onset
+ * and at 35 degC it is not yet: each state takes the stage, next stage and
+ * next-stage density of the path built at its own temperature. The gypsum
+ * onset CF rises with temperature: gypsum grows more soluble from 0 to
+ * about 40 degC (Marshall & Slusher 1966, J. Phys. Chem. 70, 4015; from
+ * memory) and more CaCO3 forms first in warm brine; this model gives CF 2.7
+ * at 0 degC and 3.9 at 35 degC (hc_path). */
+static void stage_follows_pond_temperature(void **unused)
+{
+    (void)unused;
+    hs_brine_models *models = NULL;
+    setup_site();
+    assert_int_equal(hs_brine_models_build(&site, &models), 0);
+    const hc_path *path = hs_brine_models_path(models, -1);
+    const hc_onset_table *onsets = hs_brine_models_onsets(models, -1);
+    assert_non_null(onsets);
+    assert_int_equal(onsets->n, 10);
+    for (size_t i = 0; i + 1 < onsets->n && onsets->t_c[i + 1] <= 40.0; i++)
+        assert_true(onsets->stage_cf[i + 1][HC_STAGE_GYPSUM] >
+                    onsets->stage_cf[i][HC_STAGE_GYPSUM]);
+    hc_feed sw;
+    assert_int_equal(hc_feed_seawater(35.0, &sw), HC_OK);
+    const double temps[2] = {10.0, 35.0};
+    hs_pond_view r[2];
+    for (int k = 0; k < 2; k++) {
+        hc_brine_state b;
+        assert_int_equal(hc_path_state_from_cf(path, 3.4, temps[k], 20.0, 145.0, &b), HC_OK);
+        inputs_clear();
+        put(HS_Q_TEMPERATURE, HS_QUALITY_GOOD, temps[k]);
+        put(HS_Q_DENSITY, HS_QUALITY_GOOD, b.density_kg_m3);
+        compute(models, NULL, &r[k]);
+        assert_true(r[k].have_state);
+        near(r[k].state.concentration_factor, 3.4, 1e-3);
+        /* what a path of the pond's own temperature says of this CF */
+        hc_path *own = NULL;
+        assert_int_equal(hc_path_build(&sw, temps[k], HC_PATH_FRACTIONAL, &own), HC_OK);
+        hc_stage next;
+        hc_stage stage = hc_path_stage_at_cf(own, 3.4, &next);
+        assert_int_equal(r[k].state.stage, stage);
+        assert_int_equal(r[k].state.next_stage, next);
+        hc_path_onset on[HC_MINERAL_COUNT];
+        size_t n_on = hc_path_onsets(own, on, HC_MINERAL_COUNT);
+        double want = NAN;
+        for (size_t i = 0; i < n_on; i++)
+            if (fabs(on[i].concentration_factor - hc_path_stage_cf(own, next)) < 1e-9)
+                want = on[i].density_kg_m3; /* at the path's = the pond's temperature */
+        assert_true(isfinite(want));
+        /* the next stage's brine is that path's own (the table row) */
+        near(r[k].state.next_stage_density_kg_m3, want, 0.01); /* onset found between steps */
+        hc_path_free(own);
+    }
+    assert_int_equal(r[0].state.stage, HC_STAGE_GYPSUM);
+    assert_int_equal(r[0].state.next_stage, HC_STAGE_HALITE);
+    assert_int_equal(r[1].state.next_stage, HC_STAGE_GYPSUM);
+    assert_true(r[1].state.stage < HC_STAGE_GYPSUM);
+    near(r[0].state.density_ref_kg_m3, r[1].state.density_ref_kg_m3, 0.02); /* one brine */
     hs_brine_models_free(models);
 }
 
@@ -339,6 +401,7 @@ int main(void)
         cmocka_unit_test(pressure_pair_then_depth),
         cmocka_unit_test(problems_are_said),
         cmocka_unit_test(brine_beyond_seawater_uses_the_path),
+        cmocka_unit_test(stage_follows_pond_temperature),
         cmocka_unit_test(beyond_pss78_calibration_or_model),
         cmocka_unit_test(manual_reading_when_conductivity_is_weak),
         cmocka_unit_test(density_signal_below_feed_or_past_path_not_used),

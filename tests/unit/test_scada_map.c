@@ -13,6 +13,7 @@
 #include <arpa/inet.h>
 #include <modbus.h>
 
+#include "conf_file.h"
 #include "hp_netacl.h"
 #include "hs_mb_image.h"
 #include "hs_scada_map.h"
@@ -161,6 +162,36 @@ static void allow_list(void **state)
     assert_int_equal(hp_listen_parse("::1:1502", &ss, &len, err, sizeof err), -1);
 }
 
+/* The two sections' own checks, each naming the file and line. */
+static void config_errors(void **state)
+{
+    (void)state;
+    conf_dir cd;
+    assert_int_equal(conf_dir_make(&cd, "scada"), 0);
+    conf_expect_error(&cd, CONF_BASE_TWO_PONDS "[modbus_server]\nlisten = 0.0.0.0\n", 37,
+                      "listen: '0.0.0.0': expected ADDRESS:PORT");
+    conf_expect_error(&cd, CONF_BASE_TWO_PONDS "[modbus_server]\nlisten = plc.local:1502\n", 37,
+                      "must be numeric");
+    conf_expect_error(&cd,
+                      CONF_BASE_TWO_PONDS "[modbus_server]\nlisten = 127.0.0.1:1502\n"
+                                          "allow = 10.0.0.0/40\n",
+                      38, "allow: '10.0.0.0/40': prefix length out of range");
+    conf_expect_error(&cd, CONF_BASE_TWO_PONDS "[modbus_server]\nlisten = 127.0.0.1:1502\n"
+                                               "word_order = middle\n", 38, "word_order");
+    conf_expect_error(&cd, CONF_BASE_TWO_PONDS "[sparkplug]\ngroup_id = g\nedge_node_id = e\n",
+                      36, "[sparkplug] needs the [mqtt] section");
+    conf_expect_error(&cd,
+                      CONF_BASE_TWO_PONDS "[mqtt]\nuri = mqtt://127.0.0.1:1883\n"
+                                          "[sparkplug]\ngroup_id = g/h\nedge_node_id = e\n",
+                      39, "group_id: 'g/h' must be one topic level");
+    conf_expect_error(&cd,
+                      CONF_BASE_TWO_PONDS "[mqtt]\nuri = mqtt://127.0.0.1:1883\nclient_id = gw\n"
+                                          "[sparkplug]\ngroup_id = g\nedge_node_id = e\n"
+                                          "client_id = gw\n",
+                      42, "client_id: must differ");
+    conf_dir_remove(&cd, NULL);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -169,6 +200,7 @@ int main(void)
         cmocka_unit_test(codes),
         cmocka_unit_test(image_bounds_and_site_block),
         cmocka_unit_test(allow_list),
+        cmocka_unit_test(config_errors),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -97,8 +97,9 @@ static void migrates_an_older_file(void **unused)
     hs_store *st = open_writer(NULL);
     hs_store_close(st);
     /* Make it look like a version-1 file: the rollup index that version 2
-     * drops, no uncertainty columns (version 3), no sample reasons (version
-     * 4), one sample already stored, and the old version number. */
+     * drops, no uncertainty columns (version 3), no command_seen (version
+     * 4), no sample reasons (version 5), one sample already stored, and the
+     * old version number. */
     sqlite3 *db;
     assert_int_equal(sqlite3_open(path, &db), SQLITE_OK);
     assert_int_equal(sqlite3_exec(db, "CREATE INDEX rollup_step_t ON rollup(step_s, t_ms);"
@@ -106,6 +107,7 @@ static void migrates_an_older_file(void **unused)
                                       "ALTER TABLE pond_state DROP COLUMN sg_uncertainty;"
                                       "ALTER TABLE pond_state DROP COLUMN baume_uncertainty;"
                                       "ALTER TABLE pond_state DROP COLUMN cf_uncertainty;"
+                                      "DROP TABLE command_seen;"
                                       "ALTER TABLE sample DROP COLUMN reason;"
                                       "ALTER TABLE sample DROP COLUMN code;"
                                       "INSERT INTO series(id, name) VALUES(1, 'a.density');"
@@ -128,6 +130,7 @@ static void migrates_an_older_file(void **unused)
     /* the old sample is kept, with no reason */
     assert_int_equal(scalar("SELECT count(*) FROM sample WHERE value = 1210.5 AND quality = 0"
                             " AND reason IS NULL AND code IS NULL"), 1);
+    assert_int_equal(scalar("SELECT count(*) FROM sqlite_master WHERE name = 'command_seen'"), 1);
 }
 
 struct reason_rows {
@@ -191,7 +194,8 @@ static void wal_and_strict(void **unused)
     assert_string_equal((const char *)sqlite3_column_text(s, 0), "wal");
     sqlite3_finalize(s);
     /* STRICT: text in an integer column is refused. */
-    assert_int_not_equal(sqlite3_exec(db, "INSERT INTO sample VALUES(1, 'noon', 1.0, 0)", NULL,
+    assert_int_not_equal(sqlite3_exec(db, "INSERT INTO sample(series_id, t_ms, value, quality)"
+                                          " VALUES(1, 'noon', 1.0, 0)", NULL,
                                       NULL, NULL), SQLITE_OK);
     sqlite3_close(db);
     hs_store_close(st);

@@ -77,6 +77,56 @@ static struct hs_transfer_decision step(struct engine *e, const struct hs_transf
     return d;
 }
 
+/* Decisions respect the state's uncertainty (k = HS_DECISION_K = 2): a
+ * trigger met only within 2u of the source density waits with
+ * uncertain-source; met by more, it runs; a run holds down to the start
+ * density less max(hysteresis, 2u). Round numbers for the logic. */
+static void uncertain_source_waits(void **unused)
+{
+    (void)unused;
+    struct engine e;
+    engine_init(&e, base_rule());
+    struct hs_transfer_inputs in = ready_inputs(0);
+    in.source_density = good(1215);     /* 5 above the start density */
+    in.source_density_u = 4.0;          /* 2u = 8: cannot tell */
+    struct hs_transfer_decision d = step(&e, &in);
+    assert_false(d.pump_on);
+    assert_true(d.reasons & HS_XR_UNCERTAIN_SOURCE);
+    assert_true(d.reasons & HS_XR_TRIGGER_NOT_MET);
+    in.now_ms = 1000;
+    in.source_density_u = 2.0;          /* 2u = 4 < 5: sure */
+    d = step(&e, &in);
+    assert_true(d.pump_on);
+    assert_false(d.reasons & HS_XR_UNCERTAIN_SOURCE);
+    /* running: 1204 is 6 below the start, within 2u = 8 (above the
+     * hysteresis of 3): held on */
+    in.now_ms = 2000;
+    in.source_density = good(1204);
+    in.source_density_u = 4.0;
+    d = step(&e, &in);
+    assert_true(d.pump_on);
+    assert_true(d.reasons & HS_XR_HYSTERESIS_HOLD);
+    in.now_ms = 3000;
+    in.source_density = good(1201);     /* 9 below: beyond 2u */
+    d = step(&e, &in);
+    assert_false(d.pump_on);
+    /* stage trigger: the stage of density - 2u must be reached too */
+    struct hs_transfer_rule r = base_rule();
+    r.trigger = HS_TRIGGER_STAGE;
+    r.start_stage = HC_STAGE_HALITE;
+    engine_init(&e, r);
+    in = ready_inputs(0);
+    in.source_density_u = 5.0;
+    in.source_stage_low = HC_STAGE_GYPSUM;
+    d = step(&e, &in);
+    assert_false(d.pump_on);
+    assert_true(d.reasons & HS_XR_UNCERTAIN_SOURCE);
+    in.now_ms = 1000;
+    in.source_stage_low = HC_STAGE_HALITE;
+    d = step(&e, &in);
+    assert_true(d.pump_on);
+}
+
 static void runs_when_ready(void **unused)
 {
     (void)unused;
@@ -684,6 +734,7 @@ int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(runs_when_ready),
+        cmocka_unit_test(uncertain_source_waits),
         cmocka_unit_test(idle_below_trigger),
         cmocka_unit_test(density_hysteresis),
         cmocka_unit_test(stage_trigger),
