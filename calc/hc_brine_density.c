@@ -19,6 +19,12 @@ static const double lal[HC_SALT_COUNT][5] = {
                         0.00465767525381795, 4349.50513887423},
     [HC_SALT_K2SO4] = {7.10599369467468e-6, 4.6555866279207e-5, 0.349566841181191,
                        0.00751053641501126, 4200.09377806549},
+    /* surrogates (header): the parameters of the sodium salt of the same
+     * charge type, applied to the carbonate's own mass */
+    [HC_SALT_NA2CO3] = {4.45025449497252e-6, 9.12086519621226e-6, 0.0840358370073922,
+                        0.00465767525381795, 4349.50513887423},
+    [HC_SALT_NAHCO3] = {-0.00324112223655149, 0.0636354335906616, 1.01371399467365,
+                        0.0145951015210159, 3317.34854426537},
 };
 
 /* Molar masses [g/mol] of the salts (sums of hc_ion_molar_mass). */
@@ -35,6 +41,8 @@ static double salt_molar_mass(hc_salt s)
     case HC_SALT_CACL2: return ca + 2 * cl;
     case HC_SALT_NA2SO4: return 2 * na + so4;
     case HC_SALT_K2SO4: return 2 * k + so4;
+    case HC_SALT_NA2CO3: return 2 * na + hc_ion_molar_mass(HC_ION_CO3);
+    case HC_SALT_NAHCO3: return na + hc_ion_molar_mass(HC_ION_HCO3);
     default: return NAN;
     }
 }
@@ -75,6 +83,11 @@ hc_status hc_brine_salts(const double molality[HC_ION_COUNT], double salt[HC_SAL
      * parameterised 2-2 salt, in place of the calcium it belongs to. */
     x = fmin(ca, so4);
     salt[HC_SALT_MGSO4] += x; ca -= x;
+    /* Carbonate and bicarbonate with the sodium left (header). */
+    x = fmin(na / 2.0, molality[HC_ION_CO3]);
+    salt[HC_SALT_NA2CO3] = x; na -= 2.0 * x;
+    x = fmin(na, molality[HC_ION_HCO3]);
+    salt[HC_SALT_NAHCO3] = x; na -= x;
     /* The remaining cations pair with chloride. */
     salt[HC_SALT_CACL2] = ca;
     salt[HC_SALT_KCL] = k;

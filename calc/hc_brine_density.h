@@ -5,10 +5,16 @@
  *
  * Ions are split into those neutral salts by one stated rule
  * (hc_brine_salts): SO4 goes first to Mg (MgSO4), then to Na (Na2SO4), then
- * to K (K2SO4); Ca, K, Mg and Na then take Cl in that order (CaCl2, KCl,
- * MgCl2, NaCl). Calcium is never paired with sulfate because the model has no
- * CaSO4 parameters (gypsum keeps dissolved Ca below 0.03 mol/kg anyway).
- * Carbonate is left out (0.12 g/kg in seawater, under 0.1 kg/m3 of density).
+ * to K (K2SO4); CO3 and HCO3 then go to Na (Na2CO3, NaHCO3); Ca, K, Mg and
+ * Na then take Cl in that order (CaCl2, KCl, MgCl2, NaCl), and cations left
+ * without an anion (an unbalanced input) count as chlorides. Calcium is never
+ * paired with sulfate because the model has no CaSO4 parameters (gypsum
+ * keeps dissolved Ca below 0.03 mol/kg anyway). The sodium carbonates have
+ * no parameters here either: each takes its own mass with the apparent
+ * density of the sodium salt of the same charge type (Na2CO3 that of
+ * Na2SO4, NaHCO3 that of NaCl), within about 0.5 % of measured Na2CO3
+ * solutions (test); carbonate left without sodium is left out (0.12 g/kg in
+ * seawater, under 0.1 kg/m3 of density).
  * In the seawater range the result agrees with EOS-80 within 0.5 kg/m3 (test).
  * Error convention: hc_status (HC_OK = 0). Pure, no allocation. */
 #ifndef HC_BRINE_DENSITY_H
@@ -25,6 +31,8 @@ typedef enum {
     HC_SALT_CACL2,
     HC_SALT_NA2SO4,
     HC_SALT_K2SO4,
+    HC_SALT_NA2CO3, /* by the Na2SO4 parameters (stated surrogate, see above) */
+    HC_SALT_NAHCO3, /* by the NaCl parameters (stated surrogate) */
     HC_SALT_COUNT
 } hc_salt;
 

@@ -96,8 +96,16 @@ hc_status hc_plan_transfer(const hc_plan_input *in, hc_plan_result *out)
     if (in->target_density_kg_m3 <= 0 || in->tolerance_kg_m3 <= 0)
         return HC_ERR_NEGATIVE;
     out->interlocks = 0;
+    /* unknown until found: an unreachable target leaves every figure NaN
+     * (JSON null), never 0 (an empty pond) */
     out->volume_m3 = NAN;
+    out->mix_density_kg_m3 = NAN;
     out->source_level_after_m = NAN;
+    out->dest_level_after_m = NAN;
+    out->dest_volume_after_m3 = NAN;
+    out->mix_mass_kg = NAN;
+    for (size_t i = 0; i < HC_MIX_MAX_IONS; i++)
+        out->mix_molality[i] = NAN;
 
     double vs_m3, vd_m3;
     hc_status st = hc_shape_at_level(in->source->shape, in->source->level_m, &vs_m3, NULL);

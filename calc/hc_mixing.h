@@ -94,7 +94,7 @@ typedef struct {
  * each pond's shape. HC_OK with interlock bits when a limit would be
  * crossed (the volume is still what the target needs); HC_ERR_DOMAIN with
  * HC_PLAN_UNREACHABLE when the target does not lie between the two
- * densities. */
+ * densities (then every figure of out is NaN). */
 hc_status hc_plan_transfer(const hc_plan_input *in, hc_plan_result *out);
 
 #endif

@@ -51,6 +51,10 @@ static double gp_fun(double x)
     return -2.0 * (1.0 - (1.0 + x + 0.5 * x * x) * exp(-x)) / (x * x);
 }
 
+/* Below this ionic strength the Pitzer sums equal the limiting law to far
+ * better than 1e-6 in ln gamma (the next terms are O(I)) [mol/kg]. */
+#define DILUTE_LIMIT_MOL_KG 1e-10
+
 /* Returns HC_OK, HC_ERR_NOT_FINITE, HC_ERR_NEGATIVE or HC_ERR_SALINITY_RANGE. */
 hc_status hc_pitzer_eval(const hc_pitzer_params *p, const double molality[HC_ION_COUNT],
                          hc_pitzer_result *out)
@@ -74,6 +78,23 @@ hc_status hc_pitzer_eval(const hc_pitzer_params *p, const double molality[HC_ION
             out->ln_gamma[i] = 0.0;
             out->gamma[i] = 1.0;
         }
+        return HC_OK;
+    }
+    if (ionic < DILUTE_LIMIT_MOL_KG) {
+        /* The pure-water limit: g(x) and E-theta lose every digit as I -> 0
+         * (0/0), while all but the Debye-Hueckel term vanish. Limiting law
+         * from HMW84 eqs. 1-4 as I -> 0 (f^gamma -> -3 A_phi sqrt(I);
+         * Pitzer 1991, ch. 3): ln gamma_i = -3 A_phi z_i^2 sqrt(I) [1],
+         * phi = 1 - 2 A_phi I^1.5 / sum m [1]. */
+        double sq0 = sqrt(ionic);
+        for (int i = 0; i < HC_ION_COUNT; i++) {
+            double z = hc_ion_charge((hc_ion)i);
+            out->ln_gamma[i] = -3.0 * p->a_phi * z * z * sq0;
+            out->gamma[i] = exp(out->ln_gamma[i]);
+        }
+        out->osmotic_coefficient = 1.0 - 2.0 * p->a_phi * ionic * sq0 / sum_m;
+        /* ln a_w = -phi M_w sum m (HMW84 eq. 1) [1] */
+        out->water_activity = exp(-out->osmotic_coefficient * HC_WATER_KG_PER_MOL * sum_m);
         return HC_OK;
     }
 

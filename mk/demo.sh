@@ -5,6 +5,10 @@
 # live status table of every pond for about a minute; then stops all it
 # started, by PID, and leaves the history file for `halostage history`.
 # HS_DEMO_SECONDS (default 60) and HS_DEMO_SPEED (default 600) adjust it.
+# The actuated feed from the brine store to crystalliser x1 runs one cycle in
+# that minute: it starts (its pump coil is written over Modbus), the run
+# feedback confirms, and it stops on its own rule when x1 is full; the
+# screen follows it and the end summary lists it from the daemon's log.
 set -u
 cd "$(dirname "$0")/.."
 build=${1:-build}
@@ -78,6 +82,12 @@ fi
 daemon=$!
 pids+=("$daemon")
 
+# The store -> x1 cycle as the daemon logged it (start, feedback, stop).
+actuation_lines() {
+    grep -E '\[transfer store-to-x1\]: (run|idle|wait|blocked|pump output (RUN|STOP) written|run feedback)' \
+        "$out/halostaged.log" 2>/dev/null | sed -e 's/^halostaged: [a-z]*: //'
+}
+
 start=$(date +%s)
 while :; do
     now=$(date +%s)
@@ -95,6 +105,8 @@ while :; do
     echo
     "$build/halostage" status --config "$out/demo.ini" 2>&1 || true
     echo
+    echo "actuated transfer store -> x1: $(actuation_lines | tail -1)"
+    echo
     echo "latest daemon log lines:"
     tail -4 "$out/halostaged.log" | cut -c1-150
     sleep 2
@@ -106,6 +118,8 @@ rc=$?
 stop_all
 echo
 echo "halostaged stopped (exit $rc); everything the demo started is stopped."
+echo "Actuation cycle of the store -> x1 feed (from the daemon's log):"
+actuation_lines | sed 's/^/  /'
 if [ -f "$out/mqtt.log" ]; then
     echo "MQTT messages seen by a subscriber: $(wc -l <"$out/mqtt.log")"
 fi

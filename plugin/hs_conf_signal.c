@@ -78,7 +78,8 @@ static int signal_add(hs_site *site, hs_cfg *cfg, const char *name)
     if (q < 0) {
         hs_cfg_error(cfg, line, "unknown quantity '%s' (use conductivity, temperature, "
                      "level-pressure, level-distance, density, pressure-upper, rain, "
-                     "pump-run, pump-manual)", dot + 1);
+                     "pump-run, pump-manual, air-temperature, humidity, wind-speed, "
+                     "solar-radiation)", dot + 1);
         return -1;
     }
     int i = hs_cfg_grow((void **)&site->signals, &site->n_signals, sizeof site->signals[0]);
@@ -117,6 +118,10 @@ static const hs_unit_kind *kind_of(hs_quantity q)
     case HS_Q_LEVEL_DISTANCE: return &hs_unit_length;
     case HS_Q_DENSITY: return &hs_unit_density;
     case HS_Q_RAIN: return &hs_unit_rain;
+    case HS_Q_AIR_TEMPERATURE: return &hs_unit_temperature;
+    case HS_Q_HUMIDITY: return &hs_unit_humidity;
+    case HS_Q_WIND_SPEED: return &hs_unit_speed;
+    case HS_Q_SOLAR_RADIATION: return &hs_unit_irradiance;
     default: return &hs_unit_state;
     }
 }

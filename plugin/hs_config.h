@@ -82,7 +82,7 @@ typedef struct {
 extern const hs_unit_kind hs_unit_density_ref;
 extern const hs_unit_kind hs_unit_length, hs_unit_area, hs_unit_density,
     hs_unit_temperature, hs_unit_angle, hs_unit_pressure, hs_unit_conductivity,
-    hs_unit_rain, hs_unit_state;
+    hs_unit_rain, hs_unit_state, hs_unit_humidity, hs_unit_speed, hs_unit_irradiance;
 
 typedef enum {
     HS_KT_STRING,     /* char[size] */

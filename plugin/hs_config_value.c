@@ -39,6 +39,11 @@ static const hs_unit conductivity_units[] = {
 static const hs_unit rain_units[] = {
     {"mm", 0.001, 0.0}, {"m", 1.0, 0.0}, {NULL, 0, 0}};
 static const hs_unit state_units[] = {{"state", 1.0, 0.0}, {NULL, 0, 0}};
+/* Relative humidity as a fraction; wind in m/s; irradiance in W/m2. */
+static const hs_unit humidity_units[] = {{"%", 0.01, 0.0}, {"fraction", 1.0, 0.0}, {NULL, 0, 0}};
+static const hs_unit speed_units[] = {
+    {"m/s", 1.0, 0.0}, {"km/h", 1.0 / 3.6, 0.0}, {NULL, 0, 0}};
+static const hs_unit irradiance_units[] = {{"W/m2", 1.0, 0.0}, {NULL, 0, 0}};
 
 const hs_unit_kind hs_unit_length = {"length", length_units, false};
 const hs_unit_kind hs_unit_area = {"area", area_units, false};
@@ -51,6 +56,9 @@ const hs_unit_kind hs_unit_pressure = {"pressure", pressure_units, false};
 const hs_unit_kind hs_unit_conductivity = {"conductivity", conductivity_units, false};
 const hs_unit_kind hs_unit_rain = {"rain depth", rain_units, false};
 const hs_unit_kind hs_unit_state = {"state", state_units, true};
+const hs_unit_kind hs_unit_humidity = {"relative humidity", humidity_units, false};
+const hs_unit_kind hs_unit_speed = {"speed", speed_units, false};
+const hs_unit_kind hs_unit_irradiance = {"irradiance", irradiance_units, false};
 
 const hs_unit *hs_unit_find(const hs_unit_kind *kind, const char *name)
 {

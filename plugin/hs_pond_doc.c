@@ -18,7 +18,13 @@ static const struct {
 } digits_table[] = {
     {"saturation_index", 4},           /* log10 of a ratio; 1e-3 is below its model error */
     {"water_activity", 5},
-    {"days_to_target", 4},             /* forecasts: four digits are more than they know */
+    {"days_to_target", 4},
+    {"age_s", 4},
+    /* an uncertainty is stated with two significant digits (GUM 7.2.6) */
+    {"density_uncertainty_kg_m3", 2},
+    {"specific_gravity_uncertainty", 2},
+    {"baume_uncertainty", 2},
+    {"concentration_factor_uncertainty", 2},             /* forecasts: four digits are more than they know */
     {"days_to_next_stage", 4},
     {"net_evaporation_mm_day", 4},
     {"net_evaporation_range_mm_day", 4},
@@ -99,6 +105,13 @@ json_t *hs_pond_doc_json(const struct hs_pond_doc *d)
     rc |= put(o, "pond", text_or_null(d->pond));
     rc |= put(o, "role", text_or_null(d->role));
     rc |= put(o, "time", d->t_ms ? json_string(when) : json_null());
+    /* age: how old the newest input is when the outlet shows it */
+    int aged = d->t_ms && d->now_ms;
+    double age_s = aged ? (double)(d->now_ms - d->t_ms) / 1000.0 : NAN;
+    rc |= put(o, "age_s", aged ? json_real(age_s) : json_null());
+    rc |= put(o, "stale", aged && d->stale_after_ms > 0
+                              ? json_boolean(d->now_ms - d->t_ms > d->stale_after_ms)
+                              : json_null());
     rc |= put(o, "quality", json_string(hs_quality_name(d->quality)));
     rc |= put(o, "level_quality", d->level_quality >= 0
                                       ? json_string(hs_quality_name((hs_quality)d->level_quality))

@@ -28,6 +28,8 @@ struct hs_pond_doc {
     const char *pond;
     const char *role;              /* NULL: not known to this outlet */
     int64_t t_ms;                  /* newest input behind the state; 0 unknown */
+    int64_t now_ms;                /* when the outlet looks at it; 0: no age given */
+    int64_t stale_after_ms;        /* older than this is stale; 0: not judged */
     hs_quality quality;            /* worst input behind the brine state */
     int level_quality;             /* hs_quality of the level; -1 unknown */
     hc_brine_state state;

@@ -4,6 +4,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 
 #include "hc_level.h"
 #include "hs_conf_alarm.h"
@@ -193,10 +194,18 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
         return HSP_ERR_RUNTIME;
     }
     rt->started_ms = hs_rt_wall_ms();
+    /* who holds the site and since when, for `status` once we are gone */
+    if (hs_store_meta_set(rt->store, "daemon_pid", (int64_t)getpid()) != 0 ||
+        hs_store_meta_set(rt->store, "daemon_started_ms", rt->started_ms) != 0 ||
+        hs_store_meta_set(rt->store, "daemon_seen_ms", rt->started_ms) != 0 ||
+        hs_store_meta_set(rt->store, "daemon_stopped_ms", 0) != 0)
+        hs_log(HSP_LOG_WARNING, "store: %s", hs_store_error(rt->store));
     int64_t mono = hs_rt_mono_ms();
     rt->next_eval_ms = mono;
     rt->next_maintain_ms = mono + HS_RT_MAINTAIN_MS;
     rt->next_command_ms = mono;
+    rt->next_schedule_ms = mono;
+    rt->schedule_day = -1;
     hs_rt_emit_gateway(rt, 1, rt->started_ms);
     hs_log(HSP_LOG_NOTICE, "site %s: %zu ponds, %zu signals on %zu buses, %zu transfers; "
            "history in %s; MQTT %s", rt->site.site.name, rt->site.n_ponds, rt->site.n_signals,
@@ -339,10 +348,13 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
     }
     if (hs_store_flush(rt->store) != 0)
         hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
+    hs_rt_schedule_tick(rt, mono, now);
     hs_rt_mqtt_pump(rt, 0);
     if (mono >= rt->next_maintain_ms) {
         if (hs_store_maintain(rt->store, now) != 0)
             hs_log(HSP_LOG_WARNING, "store maintenance: %s", hs_store_error(rt->store));
+        if (hs_store_meta_set(rt->store, "daemon_seen_ms", now) != 0)
+            hs_log(HSP_LOG_WARNING, "store: %s", hs_store_error(rt->store));
         rt->next_maintain_ms = mono + HS_RT_MAINTAIN_MS;
     }
     *next_ms = HS_RT_TICK_MS;
@@ -395,6 +407,7 @@ int hs_runtime_reload(hs_runtime *rt, const char *config_path)
         hs_log(HSP_LOG_WARNING, "%s: [mqtt] changed: that takes a restart; the running link "
                "stays as it was", config_path);
     rt->warm = 0;
+    rt->schedule_day = -1; /* a new site: a new schedule */
     int ok = site_parts_open(rt, models) == 0 && alarms_open(rt) == 0 &&
              hs_rt_scada_open(rt) == 0;
     for (size_t i = 0; ok && old_names != NULL && i < rt->site.n_transfers; i++)
@@ -457,6 +470,8 @@ void hs_runtime_close(hs_runtime *rt)
     site_parts_free(rt);
     hs_alarm_free(rt->alarms);
     if (rt->store != NULL) {
+        if (hs_store_meta_set(rt->store, "daemon_stopped_ms", hs_rt_wall_ms()) != 0)
+            hs_log(HSP_LOG_WARNING, "store: %s", hs_store_error(rt->store));
         hs_store_checkpoint(rt->store, 1);
         hs_store_close(rt->store);
     }

@@ -41,6 +41,8 @@ void hs_rt_pond_doc(const hs_runtime *rt, size_t pond, struct hs_pond_doc *d)
     d->pond = rt->site.ponds[pond].name;
     d->role = hs_role_name(rt->site.ponds[pond].role);
     d->t_ms = p->view.t_ms;
+    d->now_ms = hs_rt_wall_ms();
+    d->stale_after_ms = rt->site.site.stale_after_ms;
     d->quality = p->view.quality;
     d->level_quality = (int)p->view.depth_quality;
     d->state = p->view.state;

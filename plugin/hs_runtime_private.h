@@ -47,6 +47,7 @@ struct hs_rt_transfer {
     unsigned rain_n, rain_head;
     double predicted_mix_kg_m3;   /* last mixing prediction, NaN unknown */
     int64_t flow_ms;              /* wall time up to which pumping is in the balances */
+    int feedback_seen;            /* this run's feedback has confirmed the pump (logged) */
 };
 
 /* Per-pond memory between cycles. */
@@ -115,6 +116,8 @@ struct hs_runtime {
     int64_t next_maintain_ms;
     int64_t next_calib_ms;        /* monotonic; 0: re-read the readings now */
     int64_t next_command_ms;
+    int64_t next_schedule_ms;     /* monotonic: when to look at the schedule again */
+    int64_t schedule_day;         /* UTC day of the last published schedule; -1 none */
     int64_t state_heartbeat_ms;   /* republish an unchanged retained state this often; 0 never */
     uint64_t samples_in, cycles;
     uint64_t states_stored, states_published;
@@ -138,6 +141,9 @@ void hs_rt_age_readings(hs_runtime *rt, int64_t now_ms);
 int hs_rt_device_down(const hs_runtime *rt, const hs_signal *g);
 int hs_rt_write(hs_runtime *rt, int bus, uint8_t unit_id, int coil, uint16_t address,
                 uint16_t value);
+
+/* hs_runtime_schedule.c: the chain schedule, daily, retained on MQTT */
+void hs_rt_schedule_tick(hs_runtime *rt, int64_t mono_ms, int64_t now_ms);
 
 /* hs_runtime_transfer.c */
 int hs_rt_transfers_init(hs_runtime *rt);

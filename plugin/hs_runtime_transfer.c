@@ -235,6 +235,16 @@ void hs_rt_transfers_run(hs_runtime *rt, int64_t mono_ms, int64_t now_ms)
                    d.reasons & HS_XR_PUMP_STILL_RUNNING
                        ? hs_transfer_reason_text(HS_XR_PUMP_STILL_RUNNING)
                        : hs_transfer_reason_text(HS_XR_NO_RUN_FEEDBACK));
+        /* say once per run that the pump confirmed: the operator's proof
+         * that the command reached the plant */
+        if (!d.pump_on) {
+            x->feedback_seen = 0;
+        } else if (!x->feedback_seen && in.run_feedback.quality == HS_XQ_GOOD &&
+                   in.run_feedback.value != 0.0) {
+            x->feedback_seen = 1;
+            hs_log(HSP_LOG_NOTICE, "[transfer %s]: run feedback confirms the pump is running",
+                   t->name);
+        }
         write_output(rt, i, d.write, mono_ms);
         if (t->actuate && t->heartbeat_address >= 0 && t->bus_index >= 0)
             hs_rt_write(rt, t->bus_index, t->unit_id, 0, (uint16_t)t->heartbeat_address,

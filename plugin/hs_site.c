@@ -14,6 +14,7 @@ const char *hs_role_name(hs_role role)
 static const char *const quantity_names[HS_QUANTITY_COUNT] = {
     "conductivity", "temperature", "level-pressure", "level-distance",
     "density", "pressure-upper", "rain", "pump-run", "pump-manual",
+    "air-temperature", "humidity", "wind-speed", "solar-radiation",
 };
 
 const char *hs_quantity_name(hs_quantity quantity)

@@ -90,6 +90,12 @@ typedef enum {
     HS_Q_RAIN,             /* rain gauge, accumulated */
     HS_Q_PUMP_RUN,         /* feedback of the pond's outlet pump, 0/1 */
     HS_Q_PUMP_MANUAL,      /* the outlet pump is in local (manual) control, 0/1 */
+    /* Weather at the pond (a site's station may sit at any one pond): the
+     * open-water evaporation estimate of `halostage chain` (hc_penman.h). */
+    HS_Q_AIR_TEMPERATURE,  /* air temperature [degC] */
+    HS_Q_HUMIDITY,         /* relative humidity of the air, fraction [1] */
+    HS_Q_WIND_SPEED,       /* wind speed at 2 m [m/s] */
+    HS_Q_SOLAR_RADIATION,  /* incoming solar irradiance [W/m2] */
     HS_QUANTITY_COUNT
 } hs_quantity;
 

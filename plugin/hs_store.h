@@ -275,6 +275,13 @@ int hs_store_states(hs_store *st, const char *pond, int64_t since_ms, int64_t un
 /* Names of ponds that have states, sorted; fn called per name. */
 int hs_store_ponds(hs_store *st, void (*fn)(void *ctx, const char *pond), void *ctx);
 
+/* Named integers kept in the store (store_meta): the daemon's marks for
+ * `status` ("daemon_pid", "daemon_started_ms", "daemon_seen_ms",
+ * "daemon_stopped_ms") beside the store's own. get gives def when the key is
+ * absent. 0, or -1 with hs_store_error(). */
+int hs_store_meta_get(hs_store *st, const char *key, int64_t def, int64_t *out);
+int hs_store_meta_set(hs_store *st, const char *key, int64_t value);
+
 /* ---- commands queued by the CLI for the daemon --------------------------- */
 
 /* The CLI (another process) queues a command as JSON text; the daemon takes

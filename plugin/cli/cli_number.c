@@ -70,6 +70,12 @@ int hs_cli_number(const char *cmd, const char *opt, const char *text, double *ou
     errno = 0;
     double v = strtod(text, &end);
     const struct opt_quantity *q = quantity_of(opt);
+    /* decimal only: strtod also reads hexadecimal ("0x10", "0x1p4") */
+    const char *hex = strpbrk(text, "xXpP");
+    if (hex != NULL && end != NULL && hex < end) {
+        fprintf(stderr, "halostage %s: %s: '%s' is not a decimal number\n", cmd, opt, text);
+        return -1;
+    }
     if (end != text && *end != '\0' && errno == 0 && isfinite(v) && q != NULL) {
         char msg[200];
         double si;
@@ -90,7 +96,7 @@ int hs_cli_number(const char *cmd, const char *opt, const char *text, double *ou
         return -1;
     }
     if (slip(cmd, opt, text, v, q))
-        return -1;
+        return HS_CLI_RANGE;
     *out = v;
     return 0;
 }
@@ -102,12 +108,13 @@ int hs_cli_tref(const char *cmd, const char *text, double lo_c, double hi_c, dou
         return 0;
     }
     double v;
-    if (hs_cli_number(cmd, "--reference-temperature", text, &v) != 0)
-        return -1;
+    int rc = hs_cli_number(cmd, "--reference-temperature", text, &v);
+    if (rc != 0)
+        return rc;
     if (v < lo_c || v > hi_c) {
         fprintf(stderr, "halostage %s: --reference-temperature %s: outside %.0f..%.0f degC "
                         "(usual: 15, 20 or 60F)\n", cmd, text, lo_c, hi_c);
-        return -1;
+        return HS_CLI_RANGE;
     }
     *t_ref_c = v;
     return 0;

@@ -14,8 +14,16 @@
  * the likely meaning. */
 int hs_cli_number(const char *cmd, const char *opt, const char *text, double *out);
 
+/* Returned instead of -1 when TEXT is a number but outside what the option
+ * takes (a slip of unit, a reference temperature out of its range): the
+ * commands exit 1 for it ("out of the model's range"), 2 for text that is
+ * not a decimal number. Hexadecimal ("0x10") is not a number here. */
+#define HS_CLI_RANGE (-2)
+/* The exit status for a parse result: 0, 1 (HS_CLI_RANGE) or 2. */
+#define HS_CLI_EXIT(rc) ((rc) == 0 ? 0 : (rc) == HS_CLI_RANGE ? 1 : 2)
+
 /* Reference temperature for specific gravity and Baume [degC]: a number within
- * lo_c..hi_c, or "60F" (any case), which gives HC_TREF_60F. */
+ * lo_c..hi_c (else HS_CLI_RANGE), or "60F" (any case), which gives HC_TREF_60F. */
 int hs_cli_tref(const char *cmd, const char *text, double lo_c, double hi_c, double *t_ref_c);
 
 /* The value after the option at argv[*i]; advances *i past it. NULL (message

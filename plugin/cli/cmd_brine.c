@@ -29,7 +29,18 @@ struct brine_request {
     double modulus;
     double log_p_co2;       /* NaN: take HCO3/CO3 as given, no speciation */
     int json;
+    double given_charge_eq_kg;  /* sum z m of the input [eq/kg] */
+    int balanced_ion;           /* -1, or the ion added to balance the charge */
+    double balance_added_mol_kg;
 };
+
+/* An analysis is rarely exactly electroneutral; up to this share of the
+ * ions' charge the rule of the feed analyses applies: the missing charge is
+ * made up with Cl (excess cations) or Na (excess anions), and said. Beyond
+ * it the input is refused: the model is for electroneutral solutions
+ * (HMW84) and gives nonsense (phi < 0, a_w > 1) far from it. The 5 % is
+ * common practice for a major-ion analysis, no source. */
+#define BALANCE_TOLERANCE 0.05
 
 static void usage(FILE *out)
 {
@@ -49,6 +60,33 @@ static void usage(FILE *out)
             "                               the CaCO3/MgCO3 ion pairs are computed; without it\n"
             "                               HCO3 and CO3 are taken as given, free, without pH\n"
             "  --json                       one JSON object instead of the table\n");
+}
+
+/* Charge balance of the input (BALANCE_TOLERANCE); 0, or 1 after a message
+ * (refused: out of the model's range). */
+static int balance(struct brine_request *rq)
+{
+    double cb = hc_charge_balance(rq->molality), eq = 0.0;
+    for (int i = 0; i < HC_ION_COUNT; i++)
+        eq += fabs((double)hc_ion_charge((hc_ion)i)) * rq->molality[i];
+    rq->given_charge_eq_kg = cb;
+    rq->balanced_ion = -1;
+    rq->balance_added_mol_kg = 0.0;
+    if (!(eq > 0.0) || fabs(cb) <= 1e-12 * eq)
+        return 0;
+    /* conservation of charge: sum z m = 0 [eq/kg]; the imbalance as the
+     * usual (cations - anions) / (cations + anions) */
+    if (fabs(cb) > BALANCE_TOLERANCE * eq) {
+        fprintf(stderr, "halostage " CMD ": --molality: the charges do not balance (%+.4g eq/kg, "
+                "%.1f %% of the ions' charge, cations - anions over cations + anions; at most %.0f %% is made up with Cl or Na): give "
+                "the counter-ions too, e.g. Mg=4,Cl=8\n", cb, 100.0 * fabs(cb) / eq,
+                100.0 * BALANCE_TOLERANCE);
+        return 1;
+    }
+    rq->balanced_ion = cb > 0.0 ? HC_ION_CL : HC_ION_NA;
+    rq->balance_added_mol_kg = fabs(cb);
+    rq->molality[rq->balanced_ion] += fabs(cb);
+    return 0;
 }
 
 /* 0 ok, 2 usage error (message printed), 3 --help shown. */
@@ -86,27 +124,27 @@ static int parse(int argc, char **argv, struct brine_request *rq)
             if (rc == 0 && !(rq->log_p_co2 >= -8.0 && rq->log_p_co2 <= 0.0)) {
                 fprintf(stderr, "halostage " CMD ": --pco2-log %s: outside -8..0 (log10 atm; "
                                 "air is -3.4)\n", v);
-                rc = -1;
+                rc = HS_CLI_RANGE;
             }
         } else if (strcmp(a, "--modulus") == 0) {
             rc = hs_cli_number(CMD, a, v, &rq->modulus);
             if (rc == 0 && !hc_baume_modulus_valid(rq->modulus)) {
                 fprintf(stderr, "halostage " CMD ": --modulus %s: must be a positive number "
                                 "(145, 144.3 or 146.78 are usual)\n", v);
-                rc = -1;
+                rc = HS_CLI_RANGE;
             }
         } else {
             fprintf(stderr, "halostage " CMD ": unknown option '%s' (see --help)\n", a);
             return 2;
         }
         if (rc != 0)
-            return 2;
+            return HS_CLI_EXIT(rc);
     }
     if (!have) {
         fprintf(stderr, "halostage " CMD ": --molality is required, e.g. --molality Na=6,Cl=6\n");
         return 2;
     }
-    return 0;
+    return balance(rq);
 }
 
 struct brine_result {
@@ -159,6 +197,10 @@ static hc_status compute(const struct brine_request *rq, struct brine_result *r,
         st = hc_pitzer_eval(&pp, rq->molality, &r->pitzer);
     if (st != HC_OK)
         return st;
+    /* never print what no solution has: phi < 0 or a_w > 1 (outside the
+     * model, e.g. far from electroneutral) */
+    if (!(r->pitzer.osmotic_coefficient >= 0.0) || !(r->pitzer.water_activity <= 1.0))
+        return HC_ERR_DOMAIN;
     hc_saturation_indices(&set, r->molality, &r->pitzer, s->saturation_index);
     for (int m = 0; m < HC_MINERAL_COUNT; m++)
         if (!isfinite(s->saturation_index[m]))
@@ -168,6 +210,10 @@ static hc_status compute(const struct brine_request *rq, struct brine_result *r,
         st = hc_brine_density(rq->molality, rq->t_ref_c, &s->density_ref_kg_m3);
     if (st == HC_OK)
         st = hc_brine_specific_gravity(rq->molality, rq->t_ref_c, &s->specific_gravity);
+    /* the pure-water limit: SG 1 within rounding (the heavy-liquid scale
+     * starts at water) */
+    if (st == HC_OK && s->specific_gravity < 1.0 && s->specific_gravity > 1.0 - 1e-12)
+        s->specific_gravity = 1.0;
     if (st == HC_OK)
         st = hc_baume_from_sg(s->specific_gravity, rq->modulus, &s->baume);
     if (st != HC_OK)
@@ -232,6 +278,19 @@ static int print_json(const struct brine_request *rq, const struct brine_result 
         json_decref(gam);
         json_decref(mol);
     }
+    if (ok && rq->balanced_ion >= 0) {
+        /* the balancing is stated twice: a warning and what was added */
+        char text[200];
+        snprintf(text, sizeof text, "charge-balanced: %.4g mol/kg %s added (the input was "
+                 "%+.4g eq/kg out of balance)", rq->balance_added_mol_kg,
+                 hc_ion_name((hc_ion)rq->balanced_ion), rq->given_charge_eq_kg);
+        ok = json_array_append_new(json_object_get(o, "warnings"), json_string(text)) == 0 &&
+             json_object_set_new(o, "charge_balanced_with",
+                                 json_pack("{s:s, s:f, s:f}", "ion",
+                                           hc_ion_name((hc_ion)rq->balanced_ion), "added_mol_kg",
+                                           rq->balance_added_mol_kg, "input_charge_eq_kg",
+                                           rq->given_charge_eq_kg)) == 0;
+    }
     if (ok && isfinite(r->mean_gamma))
         ok = json_object_set_new(o, "mean_activity_coefficient", json_real(r->mean_gamma)) == 0;
     char *text = ok ? json_dumps(o, JSON_REAL_PRECISION(10)) : NULL;
@@ -290,6 +349,10 @@ static void print_table(const struct brine_request *rq, const struct brine_resul
     for (unsigned b = 0; b < HC_WARN_COUNT_BITS; b++)
         if ((s->warnings & (1u << b)) && hc_warning_text(1u << b) != NULL)
             printf("  warning: %s\n", hc_warning_text(1u << b));
+    if (rq->balanced_ion >= 0)
+        printf("  warning: the input was %+.4g eq/kg out of charge balance; %.4g mol/kg %s "
+               "added\n", rq->given_charge_eq_kg, rq->balance_added_mol_kg,
+               hc_ion_name((hc_ion)rq->balanced_ion));
 }
 
 int hs_cmd_brine(int argc, char **argv)
@@ -299,7 +362,7 @@ int hs_cmd_brine(int argc, char **argv)
     if (rc == 3)
         return 0;
     if (rc != 0)
-        return 2;
+        return rc == 1 ? 1 : 2; /* 1: a value out of range, 2: usage */
     struct brine_result r;
     const char *what = "";
     hc_status st = compute(&rq, &r, &what);

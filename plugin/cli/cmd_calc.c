@@ -128,7 +128,7 @@ static int parse_request(int argc, char **argv, struct calc_request *rq)
             if (rc == 0 && (rq->opt.feed_sp <= 0.0 || rq->opt.feed_sp > HC_PSS78_SP_MAX)) {
                 fprintf(stderr, "halostage calc: --feed-salinity %s: must be above 0 and at "
                                 "most %.0f\n", v, HC_PSS78_SP_MAX);
-                return 2;
+                return 1;
             }
             rq->feed_name = "seawater (given salinity)";
         } else if (strcmp(a, "--reference-temperature") == 0) {
@@ -148,7 +148,7 @@ static int parse_request(int argc, char **argv, struct calc_request *rq)
             if (rc == 0 && !(rq->t_accuracy >= 0.0 && rq->t_accuracy < 50.0)) {
                 fprintf(stderr, "halostage calc: --temperature-accuracy %s: must be 0 or more "
                                 "and below 50 degC\n", v);
-                return 2;
+                return 1;
             }
             rq->have_t_accuracy = 1;
         } else if (strcmp(a, "--modulus") == 0) {
@@ -156,14 +156,14 @@ static int parse_request(int argc, char **argv, struct calc_request *rq)
             if (rc == 0 && !hc_baume_modulus_valid(rq->opt.baume_modulus)) {
                 fprintf(stderr, "halostage calc: --modulus %s: must be a positive number "
                                 "(145, 144.3 or 146.78 are usual)\n", v);
-                return 2;
+                return 1;
             }
         } else {
             fprintf(stderr, "halostage calc: unknown option '%s' (see --help)\n", a);
             return 2;
         }
         if (rc != 0)
-            return 2;
+            return HS_CLI_EXIT(rc);
     }
     if (rq->have_conductivity == rq->have_density) {
         fprintf(stderr, "halostage calc: give exactly one of --conductivity or --density\n");
@@ -180,12 +180,12 @@ static int parse_request(int argc, char **argv, struct calc_request *rq)
     if (rq->have_conductivity && rq->conductivity_ms_cm > 1000.0) {
         fprintf(stderr, "halostage calc: --conductivity %g: above 1000 mS/cm, beyond any brine\n",
                 rq->conductivity_ms_cm);
-        return 2;
+        return 1;
     }
     if (rq->have_density && rq->density_kg_m3 > 2000.0) {
         fprintf(stderr, "halostage calc: --density %g: above 2000 kg/m3, beyond any brine\n",
                 rq->density_kg_m3);
-        return 2;
+        return 1;
     }
     return 0;
 }
@@ -396,7 +396,7 @@ int hs_cmd_calc(int argc, char **argv)
     if (rc == 3)
         return 0;
     if (rc != 0)
-        return 2;
+        return rc == 1 ? 1 : 2; /* 1: a value out of range, 2: usage */
 
     hc_brine_state st;
     hc_status s = compute_state(&rq, &st);

@@ -21,16 +21,15 @@
 #include "hc_penman.h"
 #include "hs_chain.h"
 #include "hs_chain_json.h"
+#include "hs_chain_plan.h"
 #include "hs_chain_site.h"
 #include "hs_feed_model.h"
 #include "hs_hydro_brine.h"
 #include "hs_hydro_store.h"
+#include "hs_weather.h"
 
 #define CMD "chain"
 #define DEFAULT_DAYS 7
-#define DEFAULT_FLOW_M3_H 500.0    /* a pump without a rated_flow: assumption, no source */
-#define DEFAULT_HARVEST_M 0.10     /* salt depth worth harvesting: common practice, no source */
-#define HALITE_DENSITY 2165.0      /* compact halite [kg/m3] (CRC Handbook, from memory) */
 
 static void usage(FILE *out)
 {
@@ -96,8 +95,8 @@ static int parse(int argc, char **argv, struct request *rq)
     rq->sea = 1;
     rq->evap = rq->humidity = rq->air_min = rq->air_max = rq->wind = NAN;
     rq->solar = rq->sunshine = NAN;
-    rq->flow = DEFAULT_FLOW_M3_H;
-    rq->harvest = DEFAULT_HARVEST_M;
+    rq->flow = HS_CHAIN_DEFAULT_FLOW_M3_H;
+    rq->harvest = HS_CHAIN_DEFAULT_HARVEST_M;
     for (int i = 1; i < argc; i++) {
         const char *a = argv[i];
         if (strcmp(a, "--help") == 0 || strcmp(a, "-h") == 0) {
@@ -153,8 +152,9 @@ static int parse(int argc, char **argv, struct request *rq)
             fprintf(stderr, "halostage " CMD ": unknown option '%s' (see --help)\n", a);
             return 2;
         }
-        if (hs_cli_number(CMD, a, v, num) != 0)
-            return 2;
+        int nrc = hs_cli_number(CMD, a, v, num);
+        if (nrc != 0)
+            return HS_CLI_EXIT(nrc);
         if (num == &days) {
             if (days < 1 || days > HS_CHAIN_MAX_DAYS || days != floor(days)) {
                 fprintf(stderr, "halostage " CMD ": --days must be a whole number 1..%d\n",
@@ -208,60 +208,19 @@ static int penman(const struct request *rq, const hs_site *site, double *e_mm)
     return 1;
 }
 
-/* Level, reference density, fresh-water rate and deposit of every pond. */
-static int states(const struct request *rq, struct hs_hcli_context *ctx, const hc_path *path,
-                  const hc_chain_brine *brine, double penman_mm, struct hs_chain_site *cs,
-                  const char **source)
+static void print_evaporation(const struct hs_chain_evaporation *ev)
 {
-    double rh = isfinite(rq->humidity) ? rq->humidity : 0;
-    *source = isfinite(rq->evap) ? "given" : isfinite(penman_mm) ? "penman" : "achieved";
-    for (size_t i = 0; i < cs->n_ponds; i++) {
-        struct hs_chain_pond_in *p = &cs->ponds[i];
-        struct hs_hydro_history h;
-        int64_t now = (int64_t)time(NULL) * 1000;
-        if (ctx->store == NULL || hs_hydro_history_read(ctx->store, p->name, now, 60, &h) != 0 ||
-            !h.have_state || !isfinite(h.depth_m) || !isfinite(h.density_kg_m3) ||
-            !isfinite(h.temperature_c)) {
-            fprintf(stderr, "halostage " CMD ": pond %s: no state in the store %s (the daemon "
-                            "records one as it runs)\n", p->name, ctx->site.site.database);
-            return 1;
-        }
-        double mol[HC_ION_COUNT], cf, rho_ref;
-        unsigned warn = 0;
-        if (hs_brine_at_density(path, h.density_kg_m3, h.temperature_c, mol, &cf, &warn) != HC_OK ||
-            hs_brine_density_cb(mol, HC_ION_COUNT, ctx->t_ref_c, NULL, &rho_ref) != HC_OK) {
-            fprintf(stderr, "halostage " CMD ": pond %s: density %g kg/m3 at %g degC is not on "
-                            "the feed's evaporation path\n", p->name, h.density_kg_m3,
-                    h.temperature_c);
-            return 1;
-        }
-        p->level_m = h.depth_m;
-        p->density_ref_kg_m3 = rho_ref;
-        p->harvest_depth_m = p->role == HS_ROLE_CRYSTALLISER ? rq->harvest : NAN;
-        p->deposit_start_kg = isfinite(h.deposited_salt_t) ? 1000 * h.deposited_salt_t : 0;
-        hc_chain_point pt;
-        double f = 1;
-        if (hc_chain_point_at(brine, cf, &pt) != HC_OK ||
-            hc_evaporation_activity_factor(pt.water_activity, rh, &f) != HC_OK || !(f > 0))
-            f = NAN;
-        if (isfinite(rq->evap)) {
-            p->evap_fresh_mm_day = rq->evap;
-        } else if (isfinite(penman_mm)) {
-            p->evap_fresh_mm_day = penman_mm;
-        } else {
-            double s = 0;
-            for (int k = 0; k < h.n; k++)
-                s += h.rate[k];
-            if (h.n == 0 || !isfinite(f)) {
-                fprintf(stderr, "halostage " CMD ": pond %s: no achieved evaporation in the "
-                                "store; give --evaporation-mm-day or the weather\n", p->name);
-                return 1;
-            }
-            /* The achieved net rate is the brine's: back to fresh water. */
-            p->evap_fresh_mm_day = s / h.n / f;
-        }
-    }
-    return 0;
+    if (isfinite(ev->penman_mm_day))
+        printf("Penman open-water evaporation (Shuttleworth 1993; FAO-56 terms): %.2f mm/day%s\n",
+               ev->penman_mm_day, strcmp(ev->source, "weather") == 0
+                                      ? " from the latest complete day of the site's weather"
+                                      : "");
+    if (ev->fit.pairs > 0)
+        printf("fit to the achieved net evaporation: factor %.3f, rms %.2f mm/day, R2 %.2f "
+               "(%d pond-days)%s\n", ev->fit.factor, ev->fit.rms_mm_day, ev->fit.r2,
+               ev->fit.pairs, ev->calibrated ? ", applied" : "");
+    else if (ev->weather_days > 0)
+        printf("fit to the achieved net evaporation: none yet (no overlapping days)\n");
 }
 
 static void print_text(const struct hs_chain_input *in, const struct hs_chain_result *r,
@@ -323,53 +282,32 @@ int hs_cmd_chain(int argc, char **argv)
     rc = hs_hcli_open(CMD, &rq.common, &ctx);
     if (rc != 0)
         return rc;
-    hs_paths paths = {0};
-    struct hs_chain_tables tables = {0};
-    struct hs_chain_site cs = {0};
-    struct hs_chain_result res = {0};
+    struct hs_chain_options o;
+    hs_chain_options_default(&o, ctx.t_ref_c);
+    o.days = rq.days;
+    o.evaporation_mm_day = rq.evap;
+    o.relative_humidity = rq.humidity;
+    o.default_flow_m3_h = rq.flow;
+    o.harvest_depth_m = rq.harvest;
+    o.sea_fill = rq.sea;
+    o.rain_mm = rq.rain;
+    if (penman(&rq, &ctx.site, &o.penman_mm_day) < 0) {
+        hs_hcli_close(&ctx);
+        return 2;
+    }
+    struct hs_chain_plan plan;
     char err[512];
-    double penman_mm = NAN;
-    const char *source = "";
+    int64_t now = (int64_t)time(NULL) * 1000;
     rc = 1;
-    int pr = penman(&rq, &ctx.site, &penman_mm);
-    if (pr < 0) {
-        rc = 2;
-        goto done;
-    }
-    if (hs_paths_build(&ctx.site, &paths) != 0) {
-        fprintf(stderr, "halostage " CMD ": out of memory\n");
-        goto done;
-    }
-    const hc_path *path = hs_paths_for(&paths, ctx.site.site.feed_index);
-    if (path == NULL) {
-        fprintf(stderr, "halostage " CMD ": the site feed's evaporation path failed\n");
-        goto done;
-    }
-    if (hs_chain_tables_from_path(path, ctx.t_ref_c, &tables, err, sizeof err) != 0 ||
-        hs_chain_site_build(&ctx.site, rq.flow, &cs, err, sizeof err) != 0) {
+    if (hs_chain_plan_make(&ctx.site, ctx.store, now, &o, &plan, err, sizeof err) != 0) {
         fprintf(stderr, "halostage " CMD ": %s\n", err);
-        goto done;
-    }
-    if (states(&rq, &ctx, path, &tables.view, penman_mm, &cs, &source) != 0)
-        goto done;
-    double modulus = isfinite(ctx.site.site.baume_modulus) ? ctx.site.site.baume_modulus : 145.0;
-    struct hs_chain_input in = {&tables.view, cs.n_ponds, cs.ponds, cs.n_links, cs.links,
-                                rq.days, rq.rain, rq.humidity, rq.sea, ctx.t_ref_c, modulus,
-                                HALITE_DENSITY};
-    if (hs_chain_run(&in, &res, err, sizeof err) != 0) {
-        fprintf(stderr, "halostage " CMD ": %s\n", err);
-        goto done;
+        hs_hcli_close(&ctx);
+        return 1;
     }
     if (rq.common.json) {
-        json_t *o = hs_chain_to_json(&in, &res);
-        if (o != NULL) {
-            json_object_set_new(o, "site", json_string(ctx.site.site.name));
-            json_object_set_new(o, "evaporation_source", json_string(source));
-            if (isfinite(penman_mm))
-                json_object_set_new(o, "penman_mm_day", json_real(penman_mm));
-        }
-        char *text = o ? json_dumps(o, JSON_COMPACT | JSON_REAL_PRECISION(10)) : NULL;
-        json_decref(o);
+        json_t *j = hs_chain_plan_json(&plan, ctx.site.site.name, now);
+        char *text = j ? json_dumps(j, JSON_COMPACT | JSON_REAL_PRECISION(10)) : NULL;
+        json_decref(j);
         if (text == NULL) {
             fprintf(stderr, "halostage " CMD ": out of memory\n");
             goto done;
@@ -377,17 +315,12 @@ int hs_cmd_chain(int argc, char **argv)
         puts(text);
         free(text);
     } else {
-        if (isfinite(penman_mm))
-            printf("Penman open-water evaporation (Shuttleworth 1993; FAO-56 terms): %.2f "
-                   "mm/day\n", penman_mm);
-        print_text(&in, &res, source);
+        print_evaporation(&plan.evaporation);
+        print_text(&plan.in, &plan.result, plan.evaporation.source);
     }
     rc = 0;
 done:
-    hs_chain_result_free(&res);
-    hs_chain_site_free(&cs);
-    hs_chain_tables_free(&tables);
-    hs_paths_free(&paths);
+    hs_chain_plan_free(&plan);
     hs_hcli_close(&ctx);
     return rc;
 }

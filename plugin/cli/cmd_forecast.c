@@ -130,8 +130,9 @@ static int parse(int argc, char **argv, struct request *rq)
             fprintf(stderr, "halostage " CMD ": unknown option '%s' (see --help)\n", a);
             return 2;
         }
-        if (hs_cli_number(CMD, a, v, num) != 0)
-            return 2;
+        int nrc = hs_cli_number(CMD, a, v, num);
+        if (nrc != 0)
+            return HS_CLI_EXIT(nrc);
     }
     if (isfinite(rq->humidity) && (rq->humidity < 0 || rq->humidity >= 1)) {
         fprintf(stderr, "halostage " CMD ": --humidity must be in 0..1 (a fraction, not %%)\n");

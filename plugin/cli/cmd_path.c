@@ -113,7 +113,7 @@ static int parse(int argc, char **argv, struct path_request *rq)
             rc = hs_cli_number(CMD, a, v, &rq->feed_sp);
             if (rc == 0 && (rq->feed_sp < 2.0 || rq->feed_sp > 42.0)) {
                 fprintf(stderr, "halostage " CMD ": --feed-salinity %s: outside 2..42\n", v);
-                rc = -1;
+                rc = HS_CLI_RANGE;
             }
         } else if (strcmp(a, "--feed-analysis") == 0) {
             rc = hs_cli_parse_ions(CMD, a, v, rq->analysis.conc);
@@ -133,7 +133,7 @@ static int parse(int argc, char **argv, struct path_request *rq)
                             rq->analysis.density_kg_m3 > 1400.0)) {
                 fprintf(stderr, "halostage " CMD ": --feed-density %s: outside 990..1400 "
                                 "kg/m3\n", v);
-                rc = -1;
+                rc = HS_CLI_RANGE;
             }
         } else if (strcmp(a, "--temperature") == 0) {
             rc = hs_cli_number(CMD, a, v, &rq->t_c);
@@ -142,7 +142,7 @@ static int parse(int argc, char **argv, struct path_request *rq)
             if (rc == 0 && !(rq->log_p_co2 >= -8.0 && rq->log_p_co2 <= -0.1)) {
                 fprintf(stderr, "halostage " CMD ": --pco2-log %s: outside -8..-0.1 (log10 "
                                 "atm; air is -3.4)\n", v);
-                rc = -1;
+                rc = HS_CLI_RANGE;
             }
         } else if (strcmp(a, "--mode") == 0) {
             if (strcmp(v, "fractional") == 0)
@@ -161,14 +161,14 @@ static int parse(int argc, char **argv, struct path_request *rq)
             if (rc == 0 && !hc_baume_modulus_valid(rq->modulus)) {
                 fprintf(stderr, "halostage " CMD ": --modulus %s: must be a positive number\n",
                         v);
-                rc = -1;
+                rc = HS_CLI_RANGE;
             }
         } else {
             fprintf(stderr, "halostage " CMD ": unknown option '%s' (see --help)\n", a);
             return 2;
         }
         if (rc != 0)
-            return 2;
+            return HS_CLI_EXIT(rc);
     }
     if (rq->analysis.unit == HC_FEED_MG_PER_L && !rq->have_analysis) {
         fprintf(stderr, "halostage " CMD ": --feed-unit needs --feed-analysis\n");
@@ -380,7 +380,7 @@ int hs_cmd_path(int argc, char **argv)
     if (rc == 3)
         return 0;
     if (rc != 0)
-        return 2;
+        return rc == 1 ? 1 : 2; /* 1: a value out of range, 2: usage */
     hc_feed feed;
     hc_status st = rq.have_analysis ? hc_feed_from_analysis("site analysis", &rq.analysis, &feed)
                                     : hc_feed_seawater(rq.feed_sp, &feed);

@@ -99,8 +99,9 @@ static int parse(int argc, char **argv, struct request *rq)
         else if (strcmp(a, "--to") == 0)
             rq->to_name = v;
         else if (strcmp(a, "--target-density") == 0) {
-            if (hs_cli_number(CMD, a, v, &rq->target_kg_m3) != 0)
-                return 2;
+            int nrc = hs_cli_number(CMD, a, v, &rq->target_kg_m3);
+            if (nrc != 0)
+                return HS_CLI_EXIT(nrc);
         } else {
             fprintf(stderr, "halostage " CMD ": unknown option '%s' (see --help)\n", a);
             return 2;

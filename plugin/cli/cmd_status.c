@@ -127,29 +127,93 @@ static void alarms_of(const struct alarm_list *l, const char *pond, char *buf, s
         snprintf(buf, len, "-");
 }
 
-/* Who runs the site: the holder of the site lock (hs_lock.h). */
-static void print_daemon(const hs_site *site)
+static void age_text(char *buf, size_t len, int64_t ms);
+
+/* What the daemon left in the store (hs_runtime.c): its PID, when it
+ * started, when it was last seen, when it stopped cleanly (0: it did not). */
+struct daemon_marks {
+    int64_t pid, started_ms, seen_ms, stopped_ms;
+};
+
+static void read_marks(hs_store *st, struct daemon_marks *m)
 {
-    long pid = 0;
-    char err[300] = "";
-    int held = hs_lock_holder(site->site.database, &pid, err, sizeof err);
-    if (held < 0)
-        printf("daemon: unknown (%s)\n", err);
-    else if (held && pid > 0)
-        printf("daemon: PID %ld holds the site lock\n", pid);
-    else if (held)
-        printf("daemon: a process holds the site lock\n");
-    else
-        printf("daemon: not running (nobody holds the site lock)\n");
+    if (hs_store_meta_get(st, "daemon_pid", 0, &m->pid) != 0 ||
+        hs_store_meta_get(st, "daemon_started_ms", 0, &m->started_ms) != 0 ||
+        hs_store_meta_get(st, "daemon_seen_ms", 0, &m->seen_ms) != 0 ||
+        hs_store_meta_get(st, "daemon_stopped_ms", 0, &m->stopped_ms) != 0)
+        memset(m, 0, sizeof *m);
 }
 
-static json_t *daemon_json(const hs_site *site)
+/* Since when the daemon has not been running: its clean stop, else the
+ * last time it was seen; 0 unknown. */
+static int64_t down_since(const struct daemon_marks *m)
+{
+    return m->stopped_ms > 0 ? m->stopped_ms : m->seen_ms;
+}
+
+/* Who runs the site: the holder of the site lock (hs_lock.h); when nobody
+ * does, since when and which process last held it. */
+static void print_daemon(const hs_site *site, hs_store *st, int64_t now)
 {
     long pid = 0;
-    char err[300] = "";
+    char err[300] = "", when[40], ago[24];
+    struct daemon_marks m;
+    read_marks(st, &m);
     int held = hs_lock_holder(site->site.database, &pid, err, sizeof err);
-    return json_pack("{s:o, s:o}", "running", held < 0 ? json_null() : json_boolean(held),
-                     "pid", held > 0 && pid > 0 ? json_integer(pid) : json_null());
+    if (held < 0) {
+        printf("daemon: unknown (%s)\n", err);
+    } else if (held) {
+        printf("daemon: running, PID %ld holds the site lock", pid > 0 ? pid : (long)m.pid);
+        if (m.started_ms > 0) {
+            hs_iso8601_ms(when, sizeof when, m.started_ms);
+            printf(" (since %s)", when);
+        }
+        printf("\n");
+    } else if (m.pid > 0) {
+        int64_t since = down_since(&m);
+        hs_iso8601_ms(when, sizeof when, since);
+        age_text(ago, sizeof ago, now - since);
+        printf("daemon: NOT RUNNING since %s (%s ago%s); PID %lld last held the site; "
+               "the states below are its last\n", since > 0 ? when : "an unknown time",
+               since > 0 ? ago : "?", m.stopped_ms > 0 ? ", stopped" : ", not stopped cleanly",
+               (long long)m.pid);
+    } else {
+        printf("daemon: NOT RUNNING (nobody holds the site lock, and none has run on this "
+               "history)\n");
+    }
+}
+
+static json_t *daemon_json(const hs_site *site, hs_store *st)
+{
+    long pid = 0;
+    char err[300] = "", when[40];
+    struct daemon_marks m;
+    read_marks(st, &m);
+    int held = hs_lock_holder(site->site.database, &pid, err, sizeof err);
+    int64_t since = held == 0 ? down_since(&m) : 0;
+    hs_iso8601_ms(when, sizeof when, since);
+    return json_pack("{s:o, s:o, s:o, s:o, s:b}", "running",
+                     held < 0 ? json_null() : json_boolean(held), "pid",
+                     held > 0 && pid > 0 ? json_integer(pid) : json_null(), "last_pid",
+                     m.pid > 0 ? json_integer(m.pid) : json_null(), "not_running_since",
+                     since > 0 ? json_string(when) : json_null(), "stopped_cleanly",
+                     m.stopped_ms > 0);
+}
+
+/* An age as it reads best: "40s", "12min", "5.2h", "3.0d". */
+static void age_text(char *buf, size_t len, int64_t ms)
+{
+    double s = (double)ms / 1000.0;
+    if (s < 0)
+        snprintf(buf, len, "-");
+    else if (s < 120)
+        snprintf(buf, len, "%.0fs", s);
+    else if (s < 7200)
+        snprintf(buf, len, "%.0fmin", s / 60);
+    else if (s < 172800)
+        snprintf(buf, len, "%.1fh", s / 3600);
+    else
+        snprintf(buf, len, "%.1fd", s / 86400);
 }
 
 /* A device (bus, unit id) is shown down when the newest stored sample of
@@ -210,15 +274,16 @@ static void print_table(const hs_site *site, hs_store *st, const struct alarm_li
 {
     printf("site %s, %s; REF kg/m3 and Be at the reference temperature %g degC\n",
            site->site.name, site->site.database, site->site.reference_temperature_c);
-    print_daemon(site);
-    printf("%-9s %-12s %-17s %9s %6s %6s %7s %10s %9s %-8s %s\n", "POND", "ROLE", "STAGE",
-           "REF kg/m3", "+-", "Be", "LEVEL m", "VOLUME m3", "TO TARGET", "QUALITY", "ALARMS");
+    print_daemon(site, st, now);
+    printf("%-9s %-12s %-17s %9s %6s %6s %7s %10s %9s %-8s %7s %s\n", "POND", "ROLE", "STAGE",
+           "REF kg/m3", "+-", "Be", "LEVEL m", "VOLUME m3", "TO TARGET", "QUALITY", "AGE",
+           "ALARMS");
     for (size_t i = 0; i < site->n_ponds; i++) {
         const hs_pond *p = &site->ponds[i];
         hs_state_row row;
         int rc = hs_store_latest_state(st, p->name, &row);
         char rho[16] = "-", u_rho[16] = "-", be[16] = "-", lvl[16] = "-", vol[16] = "-", d[24] = "-";
-        char al[200];
+        char al[200], age[24] = "-";
         const char *stage = "-", *quality = rc == 0 ? hs_quality_name(row.quality) : "no data";
         if (rc == 0) {
             /* the density decisions compare: at the reference temperature */
@@ -230,12 +295,13 @@ static void print_table(const hs_site *site, hs_store *st, const struct alarm_li
             days(d, sizeof d, row.extra.days_to_target_low, row.extra.days_to_target_high);
             if (row.state.stage != HC_STAGE_NONE)
                 stage = hc_stage_name(row.state.stage);
-            if (now - row.t_ms > 5 * 60000)
-                quality = "old";
+            age_text(age, sizeof age, now - row.t_ms);
+            if (now - row.t_ms > site->site.stale_after_ms)
+                quality = "stale"; /* older than [site] stale_after */
         }
         alarms_of(alarms, p->name, al, sizeof al);
-        printf("%-9s %-12s %-17s %9s %6s %6s %7s %10s %9s %-8s %s\n", p->name,
-               hs_role_name(p->role), stage, rho, u_rho, be, lvl, vol, d, quality, al);
+        printf("%-9s %-12s %-17s %9s %6s %6s %7s %10s %9s %-8s %7s %s\n", p->name,
+               hs_role_name(p->role), stage, rho, u_rho, be, lvl, vol, d, quality, age, al);
     }
     if (site->n_transfers > 0) {
         printf("\n%-16s %-18s %-8s %s\n", "TRANSFER", "FROM -> TO", "ADVICE", "REASONS");
@@ -259,7 +325,8 @@ static void print_table(const hs_site *site, hs_store *st, const struct alarm_li
     printf("\n");
 }
 
-static json_t *status_json(const hs_site *site, hs_store *st, const struct alarm_list *alarms)
+static json_t *status_json(const hs_site *site, hs_store *st, const struct alarm_list *alarms,
+                           int64_t now)
 {
     json_t *ponds = json_array(), *transfers = json_array(), *al = json_array();
     for (size_t i = 0; i < site->n_ponds; i++) {
@@ -268,6 +335,8 @@ static json_t *status_json(const hs_site *site, hs_store *st, const struct alarm
         struct hs_pond_doc d;
         if (hs_store_latest_state(st, p->name, &row) == 0) {
             hs_pond_doc_from_row(&d, &row, p->name, hs_role_name(p->role));
+            d.now_ms = now;
+            d.stale_after_ms = site->site.stale_after_ms;
         } else {
             hs_pond_doc_init(&d);
             d.pond = p->name;
@@ -306,7 +375,7 @@ static json_t *status_json(const hs_site *site, hs_store *st, const struct alarm
                                                   ? json_integer(d[i].last_good_ms)
                                                   : json_null()));
     return json_pack("{s:s, s:o, s:o, s:o, s:o, s:o}", "site", site->site.name, "daemon",
-                     daemon_json(site), "ponds", ponds, "transfers", transfers, "alarms", al,
+                     daemon_json(site, st), "ponds", ponds, "transfers", transfers, "alarms", al,
                      "devices_down", down);
 }
 
@@ -362,7 +431,7 @@ int hs_cmd_status(int argc, char **argv)
         fprintf(stderr, "halostage status: %s\n", hs_store_error(st));
         rc = 1;
     } else if (json) {
-        json_t *o = status_json(&site, st, &alarms);
+        json_t *o = status_json(&site, st, &alarms, wall_ms());
         char *text = hs_doc_dumps(o);
         if (text)
             printf("%s\n", text);

@@ -13,6 +13,7 @@
 #include "hp_state_json.h"
 #include "hs_config.h"
 #include "hs_hydro_store.h"
+#include "hs_store_latest.h"
 
 /* How far back the store is read for the latest state and daily rates. */
 #define HISTORY_DAYS 60
@@ -273,6 +274,7 @@ int hs_hcli_pond_view(const char *cmd, struct hs_hcli_context *ctx, const char *
         return rc;
     if (!isfinite(pv->own.level_m))
         pv->own.level_m = h.depth_m;
+    int stored = !isfinite(pv->own.density_kg_m3) && !isfinite(ctx->common->temperature_c);
     if (!isfinite(pv->own.density_kg_m3))
         pv->own.density_kg_m3 = h.density_kg_m3;
     for (int i = 0; i < h.n; i++)
@@ -317,6 +319,14 @@ int hs_hcli_pond_view(const char *cmd, struct hs_hcli_context *ctx, const char *
             fprintf(stderr, "halostage %s: %s: target %g kg/m3 at %g degC is not on the "
                             "feed's evaporation path\n",
                     cmd, pv->label, pv->target_kg_m3, ctx->t_ref_c);
+    }
+    /* One stage computation: for the brine the daemon stored, its stage is
+     * the daemon's (the state every outlet shows), not a second lookup. */
+    hs_state_row row;
+    if (stored && ctx->store != NULL && hs_store_latest_state(ctx->store, name, &row) == 0 &&
+        row.state.stage != HC_STAGE_NONE) {
+        pv->state.stage = row.state.stage;
+        pv->state.next_stage = row.state.next_stage;
     }
     if (pv->state.next_stage != HC_STAGE_NONE)
         pv->cf_next_stage = hc_path_stage_cf(pv->model.path, pv->state.next_stage);

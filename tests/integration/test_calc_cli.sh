@@ -72,8 +72,14 @@ refuse 2 "required" --conductivity 40
 refuse 2 "needs a value" --conductivity 40 --temperature
 refuse 2 "unknown option" --conductivity 40 --temperature 25 --colour red
 refuse 2 "unknown feed" --conductivity 40 --temperature 25 --feed lagoon
-refuse 2 "positive" --conductivity 40 --temperature 25 --modulus 0
-refuse 2 "outside" --conductivity 40 --temperature 25 --reference-temperature 70
+# numbers out of range exit 1 and text that is not a decimal number exits 2
+# (halostage(1), EXIT STATUS)
+refuse 1 "positive" --conductivity 40 --temperature 25 --modulus 0
+refuse 1 "outside" --conductivity 40 --temperature 25 --reference-temperature 70
+refuse 1 "more than any brine conducts" --conductivity 1e6 --temperature 25
+refuse 2 "not a decimal number" --conductivity 0x10 --temperature 25
+refuse 2 "not a decimal number" --conductivity 40 --temperature 0x19
+refuse 2 "not a decimal number" --density 0x1p10 --temperature 25
 "$HS" calc --help >/dev/null
 check "--help exits 0" test $? -eq 0
 hs_finish

@@ -91,6 +91,8 @@ check "interlocks named" test "$(field "$pl" '",".join(d["interlocks"])')" = \
     --from-area 30000 --to-level 0.3 --to-density 1050 --to-area 40000 --json >"$pl"
 check "unreachable target exits 1" test $? -eq 1
 check "unreachable named" test "$(field "$pl" 'd["interlocks"]')" = "['target-unreachable']"
+check "unreachable: every figure null, none 0.0 (an empty pond)" test "$(field "$pl" \
+    'all(d[k] is None for k in ("volume_m3", "mix_density_kg_m3", "destination_level_after_m", "destination_volume_after_m3", "source_level_after_m"))')" = True
 refuse 2 "--target-density is required" plan --from-level 1
 refuse 2 "the current density is missing" plan --target-density 1100 --temperature 25 \
     --from-level 0.5 --from-area 3e4 --to-level 0.3 --to-density 1050 --to-area 4e4

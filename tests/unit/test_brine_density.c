@@ -108,6 +108,30 @@ static void salt_split_rule(void **unused)
     assert_true(fabs(s[HC_SALT_CACL2] - 0.01) < 1e-12 && fabs(s[HC_SALT_KCL] - 0.01) < 1e-12);
 }
 
+/* Carbonate pairs with sodium before chloride takes what is left; a
+ * cation without any anion still counts as its chloride. A definition. */
+static void carbonate_split_rule(void **unused)
+{
+    (void)unused;
+    double m[HC_ION_COUNT] = {[HC_ION_NA] = 1.2, [HC_ION_CL] = 0.1, [HC_ION_CO3] = 0.5,
+                              [HC_ION_HCO3] = 0.1};
+    double s[HC_SALT_COUNT];
+    assert_int_equal(hc_brine_salts(m, s), HC_OK);
+    assert_true(fabs(s[HC_SALT_NA2CO3] - 0.5) < 1e-12);
+    assert_true(fabs(s[HC_SALT_NAHCO3] - 0.1) < 1e-12);
+    assert_true(fabs(s[HC_SALT_NACL] - 0.1) < 1e-12);
+    /* 0.5 mol/kg Na2CO3 is about 1049 kg/m3 at 25 degC (CRC Handbook,
+     * concentrative properties, 5 % at 20 degC 1.0502 g/cm3; from memory),
+     * not 1 m NaCl's 1036.4 */
+    double na2co3[HC_ION_COUNT] = {[HC_ION_NA] = 1.0, [HC_ION_CO3] = 0.5};
+    double nacl[HC_ION_COUNT] = {[HC_ION_NA] = 1.0, [HC_ION_CL] = 1.0};
+    double r1, r2;
+    assert_int_equal(hc_brine_density(na2co3, 25.0, &r1), HC_OK);
+    assert_int_equal(hc_brine_density(nacl, 25.0, &r2), HC_OK);
+    assert_true(fabs(r1 - 1049.0) < 8.0);
+    assert_true(r1 > r2 + 5.0);
+}
+
 static void bad_input(void **unused)
 {
     (void)unused;
@@ -129,6 +153,7 @@ int main(void)
         cmocka_unit_test(joins_eos80_in_seawater_range),
         cmocka_unit_test(nacl_against_crc),
         cmocka_unit_test(salt_split_rule),
+        cmocka_unit_test(carbonate_split_rule),
         cmocka_unit_test(bad_input),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);

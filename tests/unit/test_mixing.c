@@ -109,6 +109,9 @@ static void interlocks_are_reported(void **unused)
     in.target_density_kg_m3 = 1200;
     assert_int_equal(hc_plan_transfer(&in, &r), HC_ERR_DOMAIN);
     assert_int_equal(r.interlocks, HC_PLAN_UNREACHABLE);
+    /* nothing is known of a plan that cannot be made: NaN, not an empty pond */
+    assert_true(isnan(r.volume_m3) && isnan(r.mix_density_kg_m3) && isnan(r.dest_level_after_m) &&
+                isnan(r.dest_volume_after_m3) && isnan(r.source_level_after_m));
     /* Diluting works the other way: fresher source into denser pond. */
     hc_plan_pond fresh = {&src_shape, 0.80, m_dst, 1037, NAN, NAN, NAN, NAN};
     hc_plan_pond dense = {&dst_shape, 0.50, m_src, 1157, NAN, NAN, NAN, NAN};

@@ -154,6 +154,25 @@ static void seawater_osmotic_coefficient(void **unused)
     assert_true(r.gamma[HC_ION_SO4] < 0.5 * r.gamma[HC_ION_CL]);
 }
 
+/* The pure-water limit: as I -> 0 the Pitzer equations reduce to the
+ * Debye-Hueckel limiting law, ln gamma = -3 A_phi z^2 sqrt(I) and
+ * phi = 1 - A_phi sqrt(m) for a 1-1 salt (Pitzer 1991, ch. 3); the switch
+ * to it at I = 1e-10 is continuous, and 1e-300 gives water itself. */
+static void pure_water_limit(void **unused)
+{
+    (void)unused;
+    hc_pitzer_result r = eval_salt(25.0, HC_ION_NA, 1e-300, HC_ION_CL, 1e-300);
+    assert_true(r.osmotic_coefficient == 1.0 && r.water_activity == 1.0);
+    assert_true(r.gamma[HC_ION_NA] == 1.0 && r.gamma[HC_ION_CL] == 1.0);
+    hc_pitzer_result a = eval_salt(25.0, HC_ION_NA, 0.99e-10, HC_ION_CL, 0.99e-10);
+    hc_pitzer_result b = eval_salt(25.0, HC_ION_NA, 1.01e-10, HC_ION_CL, 1.01e-10);
+    /* both sides of the switch follow ln gamma / sqrt(I) = -3 A_phi */
+    double ka = a.ln_gamma[HC_ION_NA] / sqrt(0.99e-10), kb = b.ln_gamma[HC_ION_NA] / sqrt(1.01e-10);
+    assert_true(fabs(ka - kb) < 1e-4 * fabs(ka));
+    assert_true(fabs(a.osmotic_coefficient - b.osmotic_coefficient) < 1e-7);
+    assert_true(a.osmotic_coefficient < 1.0 && a.osmotic_coefficient > 1.0 - 1e-5);
+}
+
 static void bad_input_and_ranges(void **unused)
 {
     (void)unused;
@@ -187,6 +206,7 @@ int main(void)
         cmocka_unit_test(halite_with_temperature),
         cmocka_unit_test(gypsum_with_temperature),
         cmocka_unit_test(seawater_osmotic_coefficient),
+        cmocka_unit_test(pure_water_limit),
         cmocka_unit_test(bad_input_and_ranges),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);

@@ -1,0 +1,60 @@
+/* The daemon's chain schedule: once a day (UTC), and after a start or a
+ * reload, as soon as every pond has a state, the week's schedule
+ * (hs_chain_plan.h) is published retained on <prefix>/<site>/schedule.
+ * Advice only: the daemon never acts on it. A schedule that cannot be made
+ * (no achieved evaporation yet, a pond without a state) is retried every
+ * SCHEDULE_RETRY_MS and the reason logged. */
+#include <math.h>
+#include <stdio.h>
+
+#include "hs_chain_plan.h"
+#include "hs_log.h"
+#include "hs_runtime_private.h"
+
+#define SCHEDULE_DAYS 7
+#define SCHEDULE_RETRY_MS (10 * 60000LL)  /* after a failure */
+#define SCHEDULE_LOOK_MS 60000LL          /* for the next UTC day */
+#define DAY_MS 86400000LL
+
+void hs_rt_schedule_tick(hs_runtime *rt, int64_t mono_ms, int64_t now_ms)
+{
+    if (rt->link == NULL || !rt->warm || mono_ms < rt->next_schedule_ms)
+        return;
+    int64_t day = now_ms / DAY_MS;
+    if (day == rt->schedule_day) {
+        rt->next_schedule_ms = mono_ms + SCHEDULE_LOOK_MS;
+        return;
+    }
+    for (size_t i = 0; i < rt->site.n_ponds; i++)
+        if (!rt->ponds[i].view.have_state) {
+            rt->next_schedule_ms = mono_ms + SCHEDULE_LOOK_MS / 12;
+            return;
+        }
+    struct hs_chain_options o;
+    double t_ref = rt->site.site.reference_temperature_c;
+    hs_chain_options_default(&o, isfinite(t_ref) ? t_ref : 15.0);
+    o.days = SCHEDULE_DAYS;
+    struct hs_chain_plan plan;
+    char err[256], topic[HS_TOPIC_MAX];
+    if (hs_chain_plan_make(&rt->site, rt->store, now_ms, &o, &plan, err, sizeof err) != 0) {
+        hs_log(HSP_LOG_WARNING, "schedule: %s; trying again in %lld min", err,
+               (long long)(SCHEDULE_RETRY_MS / 60000));
+        rt->next_schedule_ms = mono_ms + SCHEDULE_RETRY_MS;
+        return;
+    }
+    json_t *doc = hs_chain_plan_json(&plan, rt->site.site.name, now_ms);
+    int ok = doc != NULL && hs_topic(topic, sizeof topic, &rt->topics, "schedule", NULL, NULL) == 0 &&
+             hs_enqueue_json(rt->store, HS_MSG_STATE, topic, doc, 1) == 0;
+    json_decref(doc);
+    if (ok) {
+        hs_log(HSP_LOG_INFO, "schedule: %d days published on %s (evaporation: %s)",
+               SCHEDULE_DAYS, topic, plan.evaporation.source);
+        rt->schedule_day = day;
+        rt->next_schedule_ms = mono_ms + SCHEDULE_LOOK_MS;
+    } else {
+        hs_log(HSP_LOG_WARNING, "schedule: could not queue it; trying again in %lld min",
+               (long long)(SCHEDULE_RETRY_MS / 60000));
+        rt->next_schedule_ms = mono_ms + SCHEDULE_RETRY_MS;
+    }
+    hs_chain_plan_free(&plan);
+}
