@@ -3,6 +3,7 @@
 #   calc/*.c        -> build/libhc.a   (pure science)
 #   protocol/*.c    -> build/libhp.a   (Modbus, MQTT, JSON)
 #   plugin/*.c      -> build/libhs.a and build/halostage.so
+#   plugin/web/*    -> embedded in both as byte arrays (mk/embed.sh)
 #   plugin/cli/*.c  -> build/halostage
 #   plugin/host/*.c -> build/halostaged
 #   tests/sim/*.c   -> build/halostage-sim
@@ -29,8 +30,8 @@ OPT      ?= -O2 -g
 endif
 
 WARN     := -Wall -Wextra -Werror -Wshadow -Wstrict-prototypes -Wmissing-prototypes -Wcast-qual
-PKG_CFLAGS := $(shell pkg-config --cflags libmodbus jansson inih sqlite3 libsystemd 2>/dev/null)
-PKG_LIBS   := $(shell pkg-config --libs libmodbus jansson inih sqlite3 libsystemd 2>/dev/null)
+PKG_CFLAGS := $(shell pkg-config --cflags libmodbus jansson inih sqlite3 libsystemd libmicrohttpd libxcrypt 2>/dev/null)
+PKG_LIBS   := $(shell pkg-config --libs libmodbus jansson inih sqlite3 libsystemd libmicrohttpd libxcrypt 2>/dev/null)
 # The version has one home: the first line of debian/changelog.
 HS_VERSION := $(shell sed -n '1s/^[^(]*(\([^)]*\)).*/\1/p' debian/changelog 2>/dev/null)
 CPPFLAGS += -DHS_VERSION='"$(HS_VERSION)"' -DHS_PLUGIN_DIR='"$(PLUGINDIR)"'
@@ -59,6 +60,11 @@ TOOL_SRC   := $(wildcard tests/tools/*.c)
 TPLUG_SRC  := $(wildcard tests/plugins/*.c)
 
 obj = $(patsubst %.c,$(BUILD)/obj/%.o,$(1))
+
+# The page's files, compiled into the plugin (served by plugin/hs_web_static.c).
+WEB_ASSETS := $(sort $(wildcard plugin/web/*))
+WEB_GEN    := $(BUILD)/gen/hs_web_assets.c
+WEB_OBJ    := $(BUILD)/gen/hs_web_assets.o
 
 LIBHC := $(BUILD)/libhc.a
 LIBHP := $(BUILD)/libhp.a
@@ -107,9 +113,15 @@ $(LIBHC): $(call obj,$(CALC_SRC))
 $(LIBHP): $(call obj,$(PROTO_SRC) $(GEN_C))
 	@mkdir -p $(dir $@)
 	rm -f $@ && ar rcs $@ $^
-$(LIBHS): $(call obj,$(PLUGIN_SRC))
+$(LIBHS): $(call obj,$(PLUGIN_SRC)) $(WEB_OBJ)
 	@mkdir -p $(dir $@)
 	rm -f $@ && ar rcs $@ $^
+
+$(WEB_GEN): $(WEB_ASSETS) mk/embed.sh
+	@mkdir -p $(dir $@)
+	sh mk/embed.sh $(WEB_ASSETS) >$@.tmp && mv $@.tmp $@
+$(WEB_OBJ): $(WEB_GEN)
+	$(CC) $(CPPFLAGS) $(CFLAGS) -c $< -o $@
 
 $(BUILD)/halostage: $(call obj,$(CLI_SRC)) $(ALL_LIBS)
 	$(CC) $(LDFLAGS) -o $@ $(call obj,$(CLI_SRC)) $(ALL_LIBS) $(LIBS)
@@ -121,9 +133,9 @@ $(BUILD)/halostage-sim: $(call obj,$(SIM_SRC)) $(ALL_LIBS)
 	$(CC) $(LDFLAGS) -o $@ $(call obj,$(SIM_SRC)) $(ALL_LIBS) $(LIBS)
 # Only the ABI entry points are exported (mk/plugin.map); the rest binds
 # inside the plugin.
-$(BUILD)/halostage.so: $(call obj,$(PLUGIN_SRC)) $(LIBHP) $(LIBHC) mk/plugin.map
+$(BUILD)/halostage.so: $(call obj,$(PLUGIN_SRC)) $(WEB_OBJ) $(LIBHP) $(LIBHC) mk/plugin.map
 	$(CC) $(LDFLAGS) -shared -Wl,--version-script=mk/plugin.map -Wl,-z,defs -o $@ \
-	    $(call obj,$(PLUGIN_SRC)) $(LIBHP) $(LIBHC) $(LIBS)
+	    $(call obj,$(PLUGIN_SRC)) $(WEB_OBJ) $(LIBHP) $(LIBHC) $(LIBS)
 
 # Small plugins for the ABI tests (e.g. one speaking a version no host offers).
 $(BUILD)/tests/plugins/%.so: tests/plugins/%.c plugin/halostage_plugin.h

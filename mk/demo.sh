@@ -2,7 +2,8 @@
 # `make demo`: the whole job on the invented salt works of config/demo.ini.
 # Starts the pond-chain simulator (accelerated), a private mosquitto on a
 # free loopback port when mosquitto is installed, and halostaged; shows a
-# live status table of every pond for about a minute; then stops all it
+# live status table of every pond for about a minute and serves the
+# operators' page on loopback (its address is printed); then stops all it
 # started, by PID, and leaves the history file for `halostage history`.
 # HS_DEMO_SECONDS (default 60) and HS_DEMO_SPEED (default 600) adjust it.
 # The actuated feed from the brine store to crystalliser x1 runs one cycle in
@@ -72,6 +73,15 @@ if command -v mosquitto >/dev/null; then
     fi
 fi
 
+# The operators' page on a free loopback port, views public, one operator
+# login with a fresh password for this run.
+webport=$(free_port)
+webpass=$(/usr/bin/python3 -c 'import secrets; print(secrets.token_urlsafe(9))')
+rm -f "$out/web-users"
+printf '\n[web]\nlisten = 127.0.0.1:%s\nusers_file = web-users\npublic_view = yes\n' "$webport" >>"$out/demo.ini"
+printf '%s\n' "$webpass" | "$build/halostage" user --config "$out/demo.ini" add demo --role operator >/dev/null
+web="http://127.0.0.1:$webport/ (log in as demo / $webpass to acknowledge)"
+
 "$build/halostage-sim" --config "$out/demo.ini" --speed "$speed" >"$out/sim.log" 2>&1 &
 pids+=($!)
 if ! wait_port "$dikes" || ! wait_port "$analysers"; then
@@ -101,6 +111,7 @@ while :; do
     [ -t 1 ] && printf '\033[H\033[2J'
     echo "halostage demo: invented salt works, simulator at ${speed}x (1 s here = $((speed / 60)) min there)"
     echo "MQTT $mqtt; ${left}s left (Ctrl-C stops)"
+    echo "Page: $web"
     echo "TO TARGET: time until the pond reaches its density_out at the recent pace (real time)"
     echo
     "$build/halostage" status --config "$out/demo.ini" 2>&1 || true

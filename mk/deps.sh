@@ -4,10 +4,11 @@
 set -eu
 PKGS="build-essential pkg-config
 libmodbus-dev libpaho-mqtt-dev libsqlite3-dev sqlite3 libcmocka-dev libinih-dev
-libjansson-dev libsystemd-dev libprotobuf-c-dev protobuf-c-compiler
+libjansson-dev libsystemd-dev libprotobuf-c-dev protobuf-c-compiler libmicrohttpd-dev libcrypt-dev
 mosquitto mosquitto-clients socat openssl valgrind systemd
 python3 python3-gsw python3-numpy python3-pymodbus python3-serial-asyncio
 protobuf-compiler python3-protobuf
+chromium chromium-driver python3-selenium fonts-dejavu-core
 man-db groff-base
 debhelper dpkg-dev lintian"
 missing=""

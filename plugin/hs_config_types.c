@@ -8,7 +8,7 @@
 
 extern const hs_section_type hs_section_site, hs_section_feed, hs_section_bus,
     hs_section_pond, hs_section_signal, hs_section_transfer, hs_section_mqtt, hs_section_alarm,
-    hs_section_modbus_server, hs_section_sparkplug;
+    hs_section_web, hs_section_modbus_server, hs_section_sparkplug;
 
 const hs_section_type *const hs_section_types[] = {
     &hs_section_site,
@@ -19,6 +19,7 @@ const hs_section_type *const hs_section_types[] = {
     &hs_section_transfer,
     &hs_section_mqtt,
     &hs_section_alarm,
+    &hs_section_web,
     &hs_section_modbus_server,
     &hs_section_sparkplug,
     NULL,

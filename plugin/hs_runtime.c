@@ -9,6 +9,7 @@
 #include "hc_level.h"
 #include "hs_conf_alarm.h"
 #include "hs_conf_mqtt.h"
+#include "hs_conf_web.h"
 #include "hs_config.h"
 #include "hs_log.h"
 #include "hs_runtime_private.h"
@@ -206,6 +207,11 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
     rt->next_command_ms = mono;
     rt->next_schedule_ms = mono;
     rt->schedule_day = -1;
+    if (rt->site.web != NULL && hs_web_start(config_path, &rt->web) != 0) {
+        hs_log(HSP_LOG_ERR, "%s:%d: [web] could not start", config_path, rt->site.web->line);
+        hs_runtime_close(rt);
+        return HSP_ERR_RUNTIME;
+    }
     hs_rt_emit_gateway(rt, 1, rt->started_ms);
     hs_log(HSP_LOG_NOTICE, "site %s: %zu ponds, %zu signals on %zu buses, %zu transfers; "
            "history in %s; MQTT %s", rt->site.site.name, rt->site.n_ponds, rt->site.n_signals,
@@ -329,10 +335,12 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
     hs_rt_drain(rt, now);
     hs_rt_age_readings(rt, now);
     hs_rt_calib_refresh(rt, mono);
-    int periodic = mono >= rt->next_eval_ms;
+    int periodic = mono >= rt->next_eval_ms, evaluated = 0;
     for (size_t i = 0; i < rt->site.n_ponds; i++)
-        if (rt->ponds[i].dirty || periodic)
+        if (rt->ponds[i].dirty || periodic) {
             evaluate_pond(rt, i, now, mono);
+            evaluated = 1;
+        }
     if (periodic) {
         hs_alarm_tick(rt->alarms, now, alarm_emit, rt);
         /* no transfer decides on a site that has not been read yet */
@@ -342,12 +350,16 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
         rt->cycles++;
         hs_rt_scada_beat(rt, now);
     }
+    if (hs_web_take_command_hint(rt->web))
+        rt->next_command_ms = mono; /* the page waits for its answer */
     if (mono >= rt->next_command_ms) {
         hs_store_command_take(rt->store, command_from_queue, rt);
         rt->next_command_ms = mono + COMMANDS_EVERY_MS;
     }
     if (hs_store_flush(rt->store) != 0)
         hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
+    if (evaluated)
+        hs_web_notify(rt->web); /* after the flush: the page reads committed rows */
     hs_rt_schedule_tick(rt, mono, now);
     hs_rt_mqtt_pump(rt, 0);
     if (mono >= rt->next_maintain_ms) {
@@ -419,6 +431,12 @@ int hs_runtime_reload(hs_runtime *rt, const char *config_path)
     free(old);
     free(old_names);
     rt->commands.engine = rt->alarms;
+    /* the page follows the new file: its users, ponds and [web] keys */
+    hs_web_stop(rt->web);
+    rt->web = NULL;
+    if (ok && rt->site.web != NULL && hs_web_start(config_path, &rt->web) != 0)
+        hs_log(HSP_LOG_ERR, "reload: [web] could not start; the page is off until the next "
+               "reload");
     if (!ok) {
         hs_log(HSP_LOG_ERR, "reload: the new configuration could not be started");
         return HSP_ERR_RUNTIME;
@@ -456,6 +474,8 @@ void hs_runtime_close(hs_runtime *rt)
 {
     if (rt == NULL)
         return;
+    hs_web_stop(rt->web); /* no page requests while we shut down */
+    rt->web = NULL;
     /* pumps first: nothing may run on after we stop watching */
     if (rt->queue != NULL && rt->store != NULL && rt->readings != NULL && rt->buses != NULL)
         hs_rt_drain(rt, hs_rt_wall_ms());

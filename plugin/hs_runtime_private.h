@@ -25,6 +25,7 @@
 #include "hs_stage_table.h"
 #include "hs_store.h"
 #include "hs_transfer.h"
+#include "hs_web.h"
 
 #define HS_RT_QUEUE_CAPACITY 4096
 #define HS_RT_TICK_MS 100          /* how often the main loop looks at the queue */
@@ -107,6 +108,7 @@ struct hs_runtime {
     hp_mqtt *link;                /* NULL: MQTT off */
     hs_publisher *publisher;
     hs_commands commands;
+    hs_web *web;                  /* NULL: no [web] section */
     hs_mb_image *mb_image;        /* [modbus_server]: the map; NULL off */
     hp_mbserver *mb_server;       /* its thread; reads mb_image only */
     hs_sparkplug *spb;            /* [sparkplug]: the edge node's thread; NULL off */

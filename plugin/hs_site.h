@@ -139,6 +139,7 @@ typedef struct {
 
 struct hs_transfer_conf;
 struct hs_mqtt_conf;
+struct hs_web_conf;
 struct hs_modbus_server_conf;
 struct hs_sparkplug_conf;
 
@@ -153,6 +154,7 @@ typedef struct hs_site {
     struct hs_transfer_conf *transfers; size_t n_transfers; /* hs_conf_transfer.h */
     struct hs_mqtt_conf *mqtt;     /* hs_conf_mqtt.h; NULL without [mqtt] */
     struct hs_alarm_conf *alarms; size_t n_alarms; /* hs_conf_alarm.h */
+    struct hs_web_conf *web;       /* hs_conf_web.h; NULL without [web] */
     struct hs_modbus_server_conf *modbus_server; /* hs_conf_scada.h; NULL: off */
     struct hs_sparkplug_conf *sparkplug;         /* hs_conf_scada.h; NULL: off */
     /* Other section types ([mqtt], [alarm NAME], [transfer NAME], ...) add

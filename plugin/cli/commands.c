@@ -15,6 +15,7 @@ const struct hs_command hs_commands[] = {
     {"forecast", hs_cmd_forecast, "days until ponds reach their target density and next stage"},
     {"map", hs_cmd_map, "the read-only Modbus register map of the site, for the SCADA"},
     {"plan", hs_cmd_plan, "how much brine to move so a pond lands on a target density"},
+    {"user", hs_cmd_user, "logins of the operators' page: add, remove, list"},
     {"chain", hs_cmd_chain, "a day-by-day schedule of transfers for the whole chain (advice)"},
     {"backup", hs_cmd_backup, "a consistent copy of the history while the daemon runs"},
     {NULL, NULL, NULL},

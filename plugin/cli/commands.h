@@ -28,6 +28,7 @@ int hs_cmd_history(int argc, char **argv);
 int hs_cmd_export(int argc, char **argv);
 int hs_cmd_ack(int argc, char **argv);
 int hs_cmd_calibrate(int argc, char **argv);
+int hs_cmd_user(int argc, char **argv);
 int hs_cmd_map(int argc, char **argv);
 int hs_cmd_backup(int argc, char **argv);
 
