@@ -13,10 +13,14 @@ int hs_accuracy_parse(const char *text, double si_factor, double *abs_si, double
     char *end;
     errno = 0;
     double v = strtod(text, &end);
-    if (end == text || errno != 0 || !isfinite(v) || v < 0.0) {
-        snprintf(why, why_len, "'%s' is not a non-negative number (N in the signal's unit, or "
-                 "N%% of the reading)", text);
+    if (end == text || errno != 0 || !isfinite(v)) {
+        snprintf(why, why_len, "'%s' is not a number (N in the signal's unit, or N%% of the "
+                 "reading)", text);
         return -1;
+    }
+    if (v < 0.0) {
+        snprintf(why, why_len, "'%s': an accuracy cannot be negative", text);
+        return -2;
     }
     while (*end == ' ')
         end++;
@@ -24,9 +28,13 @@ int hs_accuracy_parse(const char *text, double si_factor, double *abs_si, double
         end++;
         while (*end == ' ')
             end++;
-        if (*end != '\0' || v >= 100.0) {
-            snprintf(why, why_len, "'%s': a percentage of the reading below 100 %%", text);
+        if (*end != '\0') {
+            snprintf(why, why_len, "'%s': nothing may follow the %%", text);
             return -1;
+        }
+        if (v >= 100.0) {
+            snprintf(why, why_len, "'%s': a percentage of the reading below 100 %%", text);
+            return -2;
         }
         *abs_si = 0.0;
         *rel = v / 100.0;

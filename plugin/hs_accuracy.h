@@ -15,7 +15,9 @@
  *   the hydrostatic pair's spacing, 2 mm (a surveyed mount; common
  *   practice, no source), and a hydrometer's resolution, 0.001 SG (the
  *   usual division of a brine hydrometer; common practice, no source).
- * Error convention: hs_accuracy_parse returns 0, or -1 with a reason. */
+ * Error convention: hs_accuracy_parse returns 0, -1 when the text is not
+ * an accuracy, -2 when the number is out of range (negative, 100 % or more),
+ * each with a reason in why. */
 #ifndef HS_ACCURACY_H
 #define HS_ACCURACY_H
 

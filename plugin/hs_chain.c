@@ -96,6 +96,8 @@ static int record(struct run *r, int day)
         d->density_ref_kg_m3 = v.point.density_ref_kg_m3;
         d->baume = baume_of(in, d->density_ref_kg_m3);
         d->stage = v.point.stage;
+        if (day == 0 && p->stage_now_known && p->stage_now >= 0 && p->stage_now < HC_STAGE_COUNT)
+            d->stage = p->stage_now; /* one stage computation: the daemon's, now */
         double floor_area = 0;
         (void)hc_shape_at_level(&p->shape, 0, NULL, &floor_area);
         double salt = hc_chain_deposit_kg(in->brine, &r->pond[i]) +

@@ -40,6 +40,10 @@ struct hs_chain_pond_in {
     double evap_fresh_mm_day;      /* fresh-water rate at this pond [mm/day] */
     double harvest_depth_m;        /* crystallisers: salt depth to harvest at; NaN none */
     double deposit_start_kg;       /* salt already on the floor [kg] */
+    int stage_now_known;           /* 1: the start shows stage_now, the stage the
+                                      daemon stored, so that every outlet gives a
+                                      pond one stage; 0 (zeroed): the chain's own */
+    int stage_now;                 /* hc_stage */
 };
 
 struct hs_chain_link {

@@ -12,6 +12,7 @@
 #include "hs_hydro.h"
 #include "hs_hydro_brine.h"
 #include "hs_hydro_store.h"
+#include "hs_store_latest.h"
 
 #define HISTORY_DAYS 60
 
@@ -79,6 +80,11 @@ static int states(const hs_site *site, hs_store *st, int64_t now, const struct h
         pi->density_ref_kg_m3 = rho_ref;
         pi->harvest_depth_m = pi->role == HS_ROLE_CRYSTALLISER ? o->harvest_depth_m : NAN;
         pi->deposit_start_kg = isfinite(h->deposited_salt_t) ? 1000 * h->deposited_salt_t : 0;
+        hs_state_row row; /* the stage every other outlet shows now */
+        if (hs_store_latest_state(st, pi->name, &row) == 0 && row.state.stage != HC_STAGE_NONE) {
+            pi->stage_now_known = 1;
+            pi->stage_now = row.state.stage;
+        }
         hc_chain_point pt;
         f[i] = NAN;
         if (hc_chain_point_at(brine, cf, &pt) == HC_OK &&

@@ -158,7 +158,7 @@ static void signal_finish(hs_site *site, hs_cfg *cfg, size_t index)
     if (g->accuracy[0]) {
         char why[160];
         if (hs_accuracy_parse(g->accuracy, g->si_factor != 0.0 ? g->si_factor : 1.0,
-                              &g->accuracy_abs_si, &g->accuracy_rel, why, sizeof why) != 0)
+                              &g->accuracy_abs_si, &g->accuracy_rel, why, sizeof why) < 0)
             hs_cfg_error(cfg, where(cfg, index, "accuracy"), "accuracy: %s", why);
         else
             g->accuracy_set = 1;

@@ -239,6 +239,8 @@ static void print_ponds(const hs_site *site, const latest *got, const hs_brine_m
         d.pond = pd->name;
         d.role = hs_role_name(pd->role);
         d.t_ms = res.t_ms;
+        d.now_ms = now_ms;
+        d.stale_after_ms = site->site.stale_after_ms;
         d.quality = res.quality;
         d.level_quality = isfinite(res.depth_m) ? (int)res.depth_quality : -1;
         d.state = res.state;

@@ -207,11 +207,10 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
     rt->next_command_ms = mono;
     rt->next_schedule_ms = mono;
     rt->schedule_day = -1;
-    if (rt->site.web != NULL && hs_web_start(config_path, &rt->web) != 0) {
-        hs_log(HSP_LOG_ERR, "%s:%d: [web] could not start", config_path, rt->site.web->line);
-        hs_runtime_close(rt);
-        return HSP_ERR_RUNTIME;
-    }
+    /* the page is an outlet: without it the ponds are still watched */
+    if (rt->site.web != NULL && hs_web_start(config_path, &rt->web) != 0)
+        hs_log(HSP_LOG_ERR, "%s:%d: [web] could not start; running without the page (fix it, "
+               "then reload)", config_path, rt->site.web->line);
     hs_rt_emit_gateway(rt, 1, rt->started_ms);
     hs_log(HSP_LOG_NOTICE, "site %s: %zu ponds, %zu signals on %zu buses, %zu transfers; "
            "history in %s; MQTT %s", rt->site.site.name, rt->site.n_ponds, rt->site.n_signals,

@@ -116,6 +116,23 @@ int hs_users_save(const char *path, const hs_users *users, char *msg, size_t len
         return -1;
     }
     int fd = open(tmp, O_WRONLY | O_CREAT | O_TRUNC | O_CLOEXEC, 0640);
+    /* keep the file readable by the daemon's group: the old file's owner,
+     * group and mode, or for a new file the folder's group (root edits it,
+     * the halostage user reads it); failures here leave root's defaults */
+    struct stat sb;
+    if (fd >= 0 && stat(path, &sb) == 0) {
+        if (fchown(fd, sb.st_uid, sb.st_gid) != 0 || fchmod(fd, sb.st_mode & 0640) != 0)
+            errno = 0;
+    } else if (fd >= 0) {
+        char dir[4096];
+        snprintf(dir, sizeof dir, "%s", path);
+        char *slash = strrchr(dir, '/');
+        if (slash != NULL)
+            *slash = '\0';
+        if (stat(slash != NULL ? (dir[0] ? dir : "/") : ".", &sb) == 0 &&
+            fchown(fd, (uid_t)-1, sb.st_gid) != 0)
+            errno = 0;
+    }
     FILE *f = fd >= 0 ? fdopen(fd, "w") : NULL;
     if (f == NULL) {
         snprintf(msg, len, "%s: %s", tmp, strerror(errno));

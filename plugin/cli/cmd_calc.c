@@ -137,10 +137,11 @@ static int parse_request(int argc, char **argv, struct calc_request *rq)
             rq->tref_text = v;
         } else if (strcmp(a, "--accuracy") == 0) {
             char why[160];
-            if (hs_accuracy_parse(v, 1.0, &rq->accuracy_abs, &rq->accuracy_rel, why,
-                                  sizeof why) != 0) {
+            int bad = hs_accuracy_parse(v, 1.0, &rq->accuracy_abs, &rq->accuracy_rel, why,
+                                        sizeof why);
+            if (bad < 0) {
                 fprintf(stderr, "halostage calc: --accuracy: %s\n", why);
-                return 2;
+                return bad == -2 ? 1 : 2; /* out of range: 1, not an accuracy: 2 */
             }
             rq->have_accuracy = 1;
         } else if (strcmp(a, "--temperature-accuracy") == 0) {

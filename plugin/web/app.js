@@ -41,7 +41,9 @@ function sv(tag, attrs, text) {
 
 const fin = (x) => typeof x === 'number' && isFinite(x);
 
-function fixed(x, d) { return fin(x) ? x.toFixed(d) : '–'; }
+
+/* A measured value or limit with 4 significant digits and no trailing zeros. */
+function sig4(x) { return fin(x) ? String(Number(x.toPrecision(4))) : '–'; }
 
 function scaleSg() { return S.me && S.me.density_scale === 'sg'; }
 
@@ -509,7 +511,7 @@ function activeItem(a) {
       el('span', { class: `chip p${a.priority}`, text: PRIORITY[a.priority] || String(a.priority) }),
       el('b', { text: `${a.pond}: ${a.rule}` }),
       el('span', { text: stateText(a.state) }),
-      el('span', { class: 'muted', text: `since ${when(a.time_ms)}${fin(a.value) ? ', value ' + a.value.toPrecision(5) : ''}${fin(a.limit) ? ', limit ' + a.limit.toPrecision(5) : ''}` }),
+      el('span', { class: 'muted', text: `since ${when(a.time_ms)}${fin(a.value) ? ', value ' + sig4(a.value) : ''}${fin(a.limit) ? ', limit ' + sig4(a.limit) : ''}` }),
       a.state === 'shelved' && a.shelved_until_ms ? el('span', { text: `until ${when(a.shelved_until_ms)}` }) : null),
     acts);
 }

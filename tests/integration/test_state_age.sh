@@ -2,7 +2,8 @@
 # A state you can believe, end to end over real sockets (simulator ->
 # halostaged -> SQLite and a private mosquitto):
 #  - one stage computation: for every pond of the demo, `status --json`,
-#    `forecast --json` and the last retained MQTT state give the same stage,
+#    `forecast --json`, the start of `chain --json` and the last retained
+#    MQTT state (what the web page reads too) give the same stage,
 #    and the MQTT state carries its density uncertainty;
 #  - after the daemon stops, `status` says it is not running, since when and
 #    which PID last held the site, shows every pond's age, and marks states
@@ -54,27 +55,31 @@ check "halostaged stopped cleanly" test $? -eq 0
 "$H" status --config "$cfg" --json >"$HS_TMP/status.json" 2>&1
 "$H" forecast --config "$cfg" --json >"$HS_TMP/forecast.json" 2>"$HS_TMP/forecast.err"
 check "forecast --json ran for every pond" test "$(grep -c '^{' "$HS_TMP/forecast.json")" -eq 9
-$PY - "$HS_TMP/status.json" "$HS_TMP/forecast.json" "$HS_TMP/mqtt.txt" >"$HS_TMP/agree.txt" 2>&1 <<'PY'
+"$H" chain --config "$cfg" --json --days 1 --evaporation-mm-day 5 >"$HS_TMP/chain.json" 2>"$HS_TMP/chain.err"
+check "chain --json ran" test -s "$HS_TMP/chain.json"
+$PY - "$HS_TMP/status.json" "$HS_TMP/forecast.json" "$HS_TMP/mqtt.txt" "$HS_TMP/chain.json" \
+    >"$HS_TMP/agree.txt" 2>&1 <<'PY'
 import json, sys
 status = {p["pond"]: p for p in json.load(open(sys.argv[1]))["ponds"]}
 forecast = {}
 for line in open(sys.argv[2]):
     d = json.loads(line)
     forecast[d["pond"]] = d
+chain = {p["pond"]: p for p in json.load(open(sys.argv[4]))["start"]}
 mqtt = {}
 for line in open(sys.argv[3]):
     topic, payload = line.rstrip("\n").split(" ", 1)
     mqtt[topic.split("/")[3]] = json.loads(payload)
 bad = []
 for p, s in status.items():
-    stages = (s["stage"], forecast[p]["stage"], mqtt[p]["stage"])
+    stages = (s["stage"], forecast[p]["stage"], chain[p]["stage"], mqtt[p]["stage"])
     if len(set(stages)) != 1:
-        bad.append("%s: status %s, forecast %s, mqtt %s" % ((p,) + stages))
+        bad.append("%s: status %s, forecast %s, chain %s, mqtt %s" % ((p,) + stages))
     if not (mqtt[p]["density_uncertainty_kg_m3"] or 0) > 0:
         bad.append("%s: no density uncertainty on MQTT" % p)
 print("; ".join(bad) if bad else "ok %d ponds" % len(status))
 PY
-check "status, forecast and MQTT give every pond the same stage ($(cat "$HS_TMP/agree.txt"))" \
+check "status, forecast, chain and MQTT give every pond the same stage ($(cat "$HS_TMP/agree.txt"))" \
     grep -q '^ok 9 ponds' "$HS_TMP/agree.txt"
 
 # Not running: said, with since when and the last PID; ages; stale after 3 s.

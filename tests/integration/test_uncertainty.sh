@@ -69,9 +69,11 @@ check "conductivity beyond the model: density unknown, beyond-path" \
 check "near halite from conductivity: u(density) above 10 kg/m3" \
     test "$(field "$out" 'd["density_uncertainty_kg_m3"] > 10')" = True
 
-hs_refuse() { local what=$1; shift; "$HS" calc "$@" >/dev/null 2>"$HS_TMP/err"; local rc=$?
-    check "$what: exit 2 with one line" test $rc -eq 2 -a "$(wc -l <"$HS_TMP/err")" -eq 1; }
-hs_refuse "--accuracy abc" --conductivity 50 --temperature 20 --accuracy abc
-hs_refuse "--accuracy -1" --conductivity 50 --temperature 20 --accuracy -1
-hs_refuse "--temperature-accuracy 99" --conductivity 50 --temperature 20 --temperature-accuracy 99
+# refused CODE WHAT ARGS...: exit CODE (2 not a number, 1 out of range) and one line
+refused() { local code=$1 what=$2; shift 2; "$HS" calc "$@" >/dev/null 2>"$HS_TMP/err"; local rc=$?
+    check "$what: exit $code with one line" test $rc -eq "$code" -a "$(wc -l <"$HS_TMP/err")" -eq 1; }
+refused 2 "--accuracy abc" --conductivity 50 --temperature 20 --accuracy abc
+refused 1 "--accuracy -1" --conductivity 50 --temperature 20 --accuracy -1
+refused 1 "--accuracy 100%" --conductivity 50 --temperature 20 --accuracy 100%
+refused 1 "--temperature-accuracy 99" --conductivity 50 --temperature 20 --temperature-accuracy 99
 hs_finish

@@ -44,6 +44,24 @@ check "removing a missing user fails and says so" test "$rc" -eq 1 -a -n "$(echo
 out=$("$H" user --config config/demo.ini list 2>&1); rc=$?
 check "user without [web] users_file: 78 and why" test "$rc" -eq 78 -a -n "$(echo "$out" | grep 'no \[web\] users_file')"
 
+# a page that cannot listen (port taken) leaves the ponds watched
+busy=$(hs_free_port)
+/usr/bin/python3 -c 'import socket,sys,time; s=socket.socket(); s.bind(("127.0.0.1",int(sys.argv[1]))); s.listen(); time.sleep(120)' "$busy" &
+HS_PIDS+=($!)
+hs_wait_port "$busy" 10
+mkdir -p "$HS_TMP/busy"
+sed -e "s/^port = 15020/port = $(hs_free_port)/" -e "s/^port = 15021/port = $(hs_free_port)/" \
+    config/demo.ini >"$HS_TMP/busy/site.ini"
+printf '\n[web]\nlisten = 127.0.0.1:%s\n' "$busy" >>"$HS_TMP/busy/site.ini"
+"$D" --config "$HS_TMP/busy/site.ini" 2>"$HS_TMP/busy/log" &
+bpid=$!
+HS_PIDS+=("$bpid")
+check "with its port taken, the page is off and says so in the log" \
+    hs_wait_file_line "$HS_TMP/busy/log" "\[web\] could not start; running without the page" 20
+check "... and the daemon runs on, watching the ponds" kill -0 "$bpid"
+kill -TERM "$bpid"; wait "$bpid"
+check "... and stops cleanly" test $? -eq 0
+
 if ! hs_web_site; then
     not_ok "the simulator and halostaged with [web] start"
     tail -5 "$HS_TMP/halostaged.log"

@@ -213,6 +213,8 @@ def run(d):
     shot(d, "web-chain-phone.png")
     d.get(URL + "/#/alarms")
     wait(d, lambda x: x.find_elements(By.CSS_SELECTOR, "#forecast tbody tr"))
+    width = d.execute_script("return document.documentElement.scrollWidth")
+    ok(width <= 400, "on a 390 px phone the alarms view needs no sideways scrolling (%d px)" % width)
     shot(d, "web-alarms-phone.png")
     d.set_window_size(1280, 2200)
 
