@@ -151,6 +151,15 @@ hc_status hc_path_state_from_conductivity(const hc_path *path, double cond_ms_cm
                                           double t_ref_c, double baume_modulus,
                                           const hc_calibration *cal, hc_brine_state *out);
 
+/* Conductivity [mS/cm] of the path brine at cf and t_c [degC] by the
+ * built-in brine model as hc_path_state_from_conductivity inverts it:
+ * hc_brine_conductivity anchored to PSS-78 at S_P 42 (scaled to PSS-78's
+ * conductivity there, the scale fading linearly in ln CF to none at twice
+ * that CF), so that readings crossing S_P 42 move the state continuously.
+ * HC_ERR_* of hc_path_point_at_cf and hc_brine_conductivity, else HC_OK. */
+hc_status hc_path_model_conductivity(const hc_path *path, double cf, double t_c,
+                                     double *cond_ms_cm);
+
 /* The fractional path as the hydrology's brine curve (hc_brine_curve.h):
  * the points whose density rises (those density lookups use), with CF,
  * density at the path temperature, dissolved salt [kg per kg water],

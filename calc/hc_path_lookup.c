@@ -5,6 +5,8 @@
 #include "hc_brine_cond.h"
 #include "hc_brine_density.h"
 #include "hc_path_private.h"
+#include "hc_pss78.h"
+#include "hc_seawater.h"
 
 size_t hc_path_step_count(const hc_path *path) { return path->count; }
 double hc_path_temperature(const hc_path *path) { return path->t_c; }
@@ -291,12 +293,65 @@ hc_status hc_path_state_from_density(const hc_path *path, double rho_kg_m3, doub
 }
 
 /* Model conductivity of path point i at t_c [mS/cm]. */
-static double model_cond(const hc_path *path, size_t i, double t_c)
+/* The brine model is anchored to PSS-78 where the two meet (S_P 42): at
+ * the join it is scaled to PSS-78's conductivity exactly, and the scale
+ * fades linearly in ln CF to none at twice the join's CF, so that a
+ * reading crossing S_P 42 moves density and CF continuously. */
+struct cond_anchor {
+    double cf_join;   /* CF at S_P 42 [1]; NaN: no anchor (feed without S_P) */
+    double ln_scale;  /* ln(C_PSS78(42, t) / model(cf_join, t)) [1] */
+};
+
+static struct cond_anchor anchor_at(const hc_path *path, double t_c)
+{
+    struct cond_anchor a = {NAN, 0.0};
+    double sp = path->feed.practical_salinity, c42, k42;
+    hc_path_point j;
+    if (!(sp > 0.0) || sp >= HC_PSS78_SP_MAX)
+        return a;
+    double cf; /* the CF the seawater calculation gives S_P 42 (water mass ratio) */
+    if (hc_seawater_cf(HC_PSS78_SP_MAX, sp, &cf) != HC_OK ||
+        hc_pss78_c_from_sp(HC_PSS78_SP_MAX, t_c, 0.0, &c42) != HC_OK ||
+        hc_path_point_at_cf(path, cf, &j, NULL) != HC_OK ||
+        hc_brine_conductivity(j.salinity_g_kg, t_c, &k42) != HC_OK || !(k42 > 0.0))
+        return a;
+    a.cf_join = cf;
+    a.ln_scale = log(c42 / k42);
+    return a;
+}
+
+static double anchored(double k, double cf, const struct cond_anchor *a)
+{
+    if (isfinite(a->cf_join) && cf < 2.0 * a->cf_join) {
+        /* weight 1 up to the join, 0 from 2 cf_join, linear in ln CF [1] */
+        double w = cf <= a->cf_join ? 1.0 : 1.0 - log(cf / a->cf_join) / log(2.0);
+        k *= exp(w * a->ln_scale);
+    }
+    return k;
+}
+
+static double model_cond(const hc_path *path, size_t i, double t_c, const struct cond_anchor *a)
 {
     double k;
     if (hc_brine_conductivity(path->points[i].salinity_g_kg, t_c, &k) != HC_OK)
         return NAN;
-    return k;
+    return anchored(k, path->points[i].concentration_factor, a);
+}
+
+/* Returns HC_OK or an error of hc_path_point_at_cf / hc_brine_conductivity. */
+hc_status hc_path_model_conductivity(const hc_path *path, double cf, double t_c,
+                                     double *cond_ms_cm)
+{
+    hc_path_point p;
+    double k;
+    hc_status st = hc_path_point_at_cf(path, cf, &p, NULL);
+    if (st == HC_OK)
+        st = hc_brine_conductivity(p.salinity_g_kg, t_c, &k);
+    if (st != HC_OK)
+        return st;
+    struct cond_anchor a = anchor_at(path, t_c);
+    *cond_ms_cm = anchored(k, p.concentration_factor, &a);
+    return HC_OK;
 }
 
 /* Returns HC_OK or an error listed in hc_path.h. */
@@ -328,8 +383,9 @@ hc_status hc_path_state_from_conductivity(const hc_path *path, double cond_ms_cm
         if (t_c < -5.0 || t_c > 60.0)
             return HC_ERR_TEMPERATURE_RANGE;
         /* The model rises with CF; search the points for the reading. */
+        struct cond_anchor an = anchor_at(path, t_c);
         size_t n = path->count, lo = 0, hi = n - 1;
-        double k0 = model_cond(path, 0, t_c), kn = model_cond(path, n - 1, t_c);
+        double k0 = model_cond(path, 0, t_c, &an), kn = model_cond(path, n - 1, t_c, &an);
         if (!isfinite(k0) || !isfinite(kn))
             return HC_ERR_SALINITY_RANGE;
         if (cond_ms_cm <= k0) {
@@ -343,7 +399,7 @@ hc_status hc_path_state_from_conductivity(const hc_path *path, double cond_ms_cm
             double klo = k0, khi = kn;
             while (hi - lo > 1) {
                 size_t mid = (lo + hi) / 2;
-                double km = model_cond(path, mid, t_c);
+                double km = model_cond(path, mid, t_c, &an);
                 if (km < cond_ms_cm) {
                     lo = mid;
                     klo = km;

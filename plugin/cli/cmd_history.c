@@ -207,7 +207,7 @@ static void usage(FILE *out)
             "  WHEN is a duration back from now (7d, 6h, 90min), now, or a UTC time\n"
             "  (2026-03-01T06:00Z). --step takes whole minutes (1min, 15min, 1h, 1d) and\n"
             "  reads the rollups, which the daemon folds every minute; without it every\n"
-            "  stored state is listed (at most --limit, default 10000).\n");
+            "  stored state is listed, or the latest --limit of them (default 10000).\n");
 }
 
 int hs_cmd_history(int argc, char **argv)
@@ -293,11 +293,13 @@ int hs_cmd_history(int argc, char **argv)
                         signal ? signal : pond);
             rc = 1;
         }
-        if (step == 0 && t.n > (size_t)limit) {
-            fprintf(stderr, "halostage history: more than %ld rows; use --step or --limit\n",
-                    limit);
-            rc = 1;
-        }
+    }
+    if (rc == 0 && step == 0 && t.n > (size_t)limit) {
+        /* The latest rows are the ones asked about; say what was left out. */
+        fprintf(stderr, "halostage history: showing the last %ld of %zu stored states "
+                        "(--limit; narrow --since or use --step for the rest)\n", limit, t.n);
+        memmove(t.b, t.b + (t.n - (size_t)limit), (size_t)limit * sizeof t.b[0]);
+        t.n = (size_t)limit;
     }
     if (t.failed) {
         fprintf(stderr, "halostage history: out of memory\n");

@@ -116,7 +116,8 @@ static int parse(int argc, char **argv, struct path_request *rq)
                 rc = HS_CLI_RANGE;
             }
         } else if (strcmp(a, "--feed-analysis") == 0) {
-            rc = hs_cli_parse_ions(CMD, a, v, rq->analysis.conc);
+            rc = hs_cli_parse_feed_ions(CMD, a, v, rq->analysis.conc, &rq->analysis.br,
+                                        &rq->analysis.sr);
             rq->have_analysis = 1;
         } else if (strcmp(a, "--feed-unit") == 0) {
             if (strcmp(v, "g/kg") == 0)
@@ -325,6 +326,8 @@ static void print_tables(const struct path_request *rq, const hc_path *p)
     const hc_path_point *p0 = hc_path_step(p, 0);
     if (rq->mineral_flags & HC_MINERALS_NO_CARBONATE)
         printf("  carbonate left out (--no-carbonate)\n");
+    else if (!isfinite(p0->ph)) /* an analysis without HCO3/CO3: no carbonate system */
+        printf("  no carbonate in the analysis: CaCO3 and pH not modelled\n");
     else
         printf("  open to CO2 at 10^%.2f atm; feed pH %.2f; CaCO3 as %s\n",
                rq->log_p_co2 != 0.0 ? rq->log_p_co2 : HC_LOG_PCO2_AIR, p0->ph,

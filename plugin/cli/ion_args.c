@@ -81,3 +81,53 @@ int hs_cli_parse_ions(const char *cmd, const char *opt, const char *text,
     }
     return 0;
 }
+
+/* Br= and Sr= are taken out of the list into *br and *sr (the feed lumps them
+ * into Cl and Ca, mole for mole); the rest is parsed as hs_cli_parse_ions. */
+int hs_cli_parse_feed_ions(const char *cmd, const char *opt, const char *text,
+                           double value[HC_ION_COUNT], double *br, double *sr)
+{
+    char rest[512];
+    size_t used = 0;
+    *br = *sr = 0.0;
+    if (strlen(text) >= sizeof rest) {
+        fprintf(stderr, "halostage %s: %s: the list is too long\n", cmd, opt);
+        return -1;
+    }
+    const char *p = text;
+    while (*p != '\0') {
+        const char *comma = strchr(p, ',');
+        size_t len = comma != NULL ? (size_t)(comma - p) : strlen(p);
+        double *minor = NULL;
+        if (len > 3 && (strncasecmp(p, "Br=", 3) == 0))
+            minor = br;
+        else if (len > 3 && (strncasecmp(p, "Sr=", 3) == 0))
+            minor = sr;
+        if (minor != NULL) {
+            char num[64];
+            if (len - 3 >= sizeof num) {
+                fprintf(stderr, "halostage %s: %s: overlong item in '%s'\n", cmd, opt, text);
+                return -1;
+            }
+            memcpy(num, p + 3, len - 3);
+            num[len - 3] = '\0';
+            if (hs_cli_number(cmd, opt, num, minor) != 0)
+                return -1;
+            if (*minor < 0) {
+                fprintf(stderr, "halostage %s: %s: %.2s=%s must not be negative\n", cmd, opt, p,
+                        num);
+                return -1;
+            }
+        } else {
+            if (used > 0)
+                rest[used++] = ',';
+            memcpy(rest + used, p, len);
+            used += len;
+        }
+        p += len;
+        if (*p == ',')
+            p++;
+    }
+    rest[used] = '\0';
+    return hs_cli_parse_ions(cmd, opt, rest, value);
+}

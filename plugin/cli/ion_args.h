@@ -13,4 +13,10 @@
 int hs_cli_parse_ions(const char *cmd, const char *opt, const char *text,
                       double value[HC_ION_COUNT]);
 
+/* For a feed analysis: as hs_cli_parse_ions, and also Br=X and Sr=X (bromide
+ * and strontium, which the feed counts as Cl and Ca mole for mole), returned
+ * in *br and *sr (0 when absent). */
+int hs_cli_parse_feed_ions(const char *cmd, const char *opt, const char *text,
+                           double value[HC_ION_COUNT], double *br, double *sr);
+
 #endif

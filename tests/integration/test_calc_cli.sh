@@ -80,6 +80,28 @@ refuse 1 "more than any brine conducts" --conductivity 1e6 --temperature 25
 refuse 2 "not a decimal number" --conductivity 0x10 --temperature 25
 refuse 2 "not a decimal number" --conductivity 40 --temperature 0x19
 refuse 2 "not a decimal number" --density 0x1p10 --temperature 25
+# Continuity where PSS-78 hands over to the brine conductivity model (S_P
+# 42): just below and just above the join, at every 5 degC from 0 to 40,
+# density within 0.1 kg/m3 and CF within 0.1 %. The join's conductivity is
+# PSS-78's own, from TEOS-10 gsw.C_from_SP (the reference library).
+/usr/bin/python3 - "$HS" <<'PY' >"$HS_TMP/join.txt" 2>&1
+import json, subprocess, sys
+import gsw
+worst_rho = worst_cf = 0.0
+for t in range(0, 41, 5):
+    c42 = float(gsw.C_from_SP(42.0, t, 0.0))
+    side = []
+    for c in (c42 * (1 - 1e-5), c42 * (1 + 1e-5)):
+        r = subprocess.run([sys.argv[1], "calc", "--conductivity", "%.6f" % c, "--temperature",
+                            str(t), "--json"], capture_output=True, text=True, check=True)
+        side.append(json.loads(r.stdout))
+    assert side[0]["method"] == "pss78" and side[1]["method"] == "brine-conductivity-model"
+    worst_rho = max(worst_rho, abs(side[0]["density_kg_m3"] - side[1]["density_kg_m3"]))
+    worst_cf = max(worst_cf, abs(side[0]["concentration_factor"] / side[1]["concentration_factor"] - 1))
+print("worst jump %.3f kg/m3, %.3f %% in CF" % (worst_rho, 100 * worst_cf))
+sys.exit(0 if worst_rho <= 0.1 and worst_cf <= 0.001 else 1)
+PY
+check "conductivity crosses S_P 42 continuously over 0-40 degC ($(tail -1 "$HS_TMP/join.txt"))" test $? -eq 0
 "$HS" calc --help >/dev/null
 check "--help exits 0" test $? -eq 0
 hs_finish

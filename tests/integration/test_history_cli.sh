@@ -69,6 +69,11 @@ check "raw history lists every state (60 in 10 min)" \
 "$CLI" history --config "$CONF" --pond east-1 --since 2026-01-01T00:00Z \
     --until 2026-01-01T03:00Z --step 1h >"$HS_TMP/h1.txt"
 check "text history has one line per hour" test "$(grep -c '^2026-01-01T0' "$HS_TMP/h1.txt")" -eq 3
+"$CLI" history --config "$CONF" --pond east-1 --since 2026-01-01T00:00Z \
+    --until 2026-01-01T03:00Z --limit 5 >"$HS_TMP/lim.txt" 2>"$HS_TMP/lim.err"
+check "--limit 5 lists 5 rows (exit 0)" test $? -eq 0 -a "$(grep -c '^2026-01-01T' "$HS_TMP/lim.txt")" -eq 5
+check "--limit keeps the latest rows" grep -q '^2026-01-01T02:59:50' "$HS_TMP/lim.txt"
+check "--limit says how many were left out" grep -q "showing the last 5 of 1080" "$HS_TMP/lim.err"
 "$CLI" history --config "$CONF" --pond west-9 --since 7d >/dev/null 2>"$HS_TMP/unknown.err"
 check "unknown pond: exit 2 (a usage error)" test $? -eq 2
 check "unknown pond: the message names the known ponds" grep -q "no pond 'west-9'.*(ponds: east-1)" "$HS_TMP/unknown.err"

@@ -88,6 +88,27 @@ refuse 1 'outside -8..0' brine --molality Na=1,Cl=1 --pco2-log 2
 # --- path ----------------------------------------------------------------
 "$HS" path --json >"$out"
 check "path --json exits 0" test $? -eq 0
+# The README's figure: at SG 1.25 (15/15 degC) on the 25 degC fractional path
+# the model has evaporated 96.6 % of the water and deposited 74.6 % of the
+# sodium as halite [C] (Usiglio's seawater: 96.5 % and 77 % [S], as quoted
+# there); conservation: deposited Na <= the feed's.
+"$HS" path --all-steps --json >"$HS_TMP/all.json"
+$PY - "$HS_TMP/all.json" <<'PY'
+import json, sys
+d = json.load(open(sys.argv[1]))
+steps, feed = d["steps"], d["feed"]
+k = next(i for i, s in enumerate(steps) if s["specific_gravity"] >= 1.25)
+a, b = steps[k - 1], steps[k]
+x = (1.25 - a["specific_gravity"]) / (b["specific_gravity"] - a["specific_gravity"])
+def at(get):
+    return get(a) + x * (get(b) - get(a))
+evaporated = 100 * at(lambda s: s["water_removed_fraction"])
+na_feed = feed["molality"]["Na"] * feed["water_mass_fraction"]  # mol per kg feed
+deposited = 100 * at(lambda s: s["precipitated_mol_per_kg_feed"]["halite"]) / na_feed
+sys.exit(0 if abs(evaporated - 96.6) < 0.05 and abs(deposited - 74.6) < 0.1
+         and d["reference_temperature_c"] == 15 and d["temperature_c"] == 25 else 1)
+PY
+check "README: at SG 1.25, 96.6 % evaporated and 74.6 % of the NaCl deposited" test $? -eq 0
 check "path reaches bischofite" test "$(field "$out" 'd["complete"]')" = True
 # Stage sequence from carbonate (aragonite, field onset CF 1.5-2, DOMAIN 7
 # [S]) and gypsum through halite into the magnesium and potash salts to
@@ -141,4 +162,20 @@ check "calc: conductivity near halite warns and prefers density" test "$(field "
 "$HS" calc --conductivity 53.07 --temperature 25 --json >"$out"
 check "calc: seawater keeps PSS-78 and gains its next stage" test "$(field "$out" \
     'd["method"] + " " + d["stage"] + " " + d["next_stage"]')" = "pss78 seawater carbonate"
+# Br and Sr in a feed analysis count as Cl and Ca mole for mole (the lumping of
+# the Na-K-Mg-Ca-Cl-SO4 model): the same feed with them folded in by hand (molar
+# masses 79.904 Br, 35.453 Cl, 87.62 Sr, 40.078 Ca; IUPAC) gives the same moles
+# per kg of solution.
+"$HS" path --json --feed-analysis Na=10.78,Cl=19.35,Mg=1.284,SO4=2.712,Ca=0.412,K=0.399,Br=0.0673,Sr=0.0079 \
+    >"$HS_TMP/brsr.json" 2>&1
+check "path --feed-analysis accepts Br and Sr" test $? -eq 0
+"$HS" path --json --feed-analysis Na=10.78,Cl=19.379860669,Mg=1.284,SO4=2.712,Ca=0.415613515,K=0.399 \
+    >"$HS_TMP/folded.json" 2>&1
+check "Br and Sr are lumped into Cl and Ca mole for mole" /usr/bin/python3 -c '
+import json, sys
+fa, fb = json.load(open(sys.argv[1]))["feed"], json.load(open(sys.argv[2]))["feed"]
+# per kg of solution: the two analyses differ in solute mass, so in water
+a = {k: v * fa["water_mass_fraction"] for k, v in fa["molality"].items()}
+b = {k: v * fb["water_mass_fraction"] for k, v in fb["molality"].items()}
+sys.exit(0 if all(abs(a[k] - b[k]) <= 1e-6 * b[k] for k in b) else 1)' "$HS_TMP/brsr.json" "$HS_TMP/folded.json"
 hs_finish

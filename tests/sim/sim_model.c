@@ -5,8 +5,8 @@
  * - seawater range (S_P = 35 CF <= 42): density EOS-80 and conductivity
  *   PSS-78 (hc_eos80_rho, hc_pss78_c_from_sp);
  * - beyond: the feed's fractional evaporation path (hc_path_state_from_cf)
- *   for density and salinity, and calc's brine conductivity model
- *   (hc_brine_conductivity) for conductivity.
+ *   for density and salinity, and calc's brine conductivity model as the
+ *   daemon inverts it (hc_path_model_conductivity) for conductivity.
  * The rest is simple on purpose (a test tool, no source): evaporation 6 mm a
  * day on average, by season and by day, slowed by salinity; rain events;
  * pumps move depth from a pond to its next, mixing by water mass. */
@@ -45,7 +45,7 @@ static void properties(const sim *s, int pond, double cf, double t_c, brine_prop
         return;
     out->density_kg_m3 = st.density_kg_m3;
     out->salinity_g_kg = st.salinity_g_kg;
-    (void)hc_brine_conductivity(st.salinity_g_kg, t_c, &out->conductivity_ms_cm);
+    (void)hc_path_model_conductivity(path, cf, t_c, &out->conductivity_ms_cm);
 }
 
 static double noise(sim *s, double amplitude)
