@@ -1,10 +1,13 @@
 /* History store: opening, schema migrations, prepared statements, batching.
  * Ownership: hs_store owns its sqlite3 connection, statements and caches. */
 #include <errno.h>
+#include <fcntl.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
 
 #include "hs_store_private.h"
 
@@ -430,6 +433,22 @@ static int migrate(hs_store *st)
     return 0;
 }
 
+/* A new history file is created 0640 whatever the umask (SQLite would
+ * take 0644 & ~umask): it holds the site's operations record. The WAL and
+ * shared-memory files take their mode from it. */
+static int create_private(hs_store *st)
+{
+    int fd = open(st->path, O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC | O_NOFOLLOW, 0600);
+    if (fd < 0)
+        return errno == EEXIST ? 0 : hs_store_fail(st, "cannot create: %s", strerror(errno));
+    int rc = fchmod(fd, 0640);
+    int saved = errno;
+    close(fd);
+    if (rc != 0)
+        return hs_store_fail(st, "cannot set mode 0640: %s", strerror(saved));
+    return 0;
+}
+
 hs_store *hs_store_open(const char *path, hs_store_mode mode, const hs_store_options *opt,
                         char *err, size_t errlen)
 {
@@ -449,8 +468,11 @@ hs_store *hs_store_open(const char *path, hs_store_mode mode, const hs_store_opt
     if (st->opt.batch_rows < 1)
         st->opt.batch_rows = 1;
     int flags = SQLITE_OPEN_READWRITE | SQLITE_OPEN_NOMUTEX;
-    if (mode == HS_STORE_WRITE)
+    if (mode == HS_STORE_WRITE) {
         flags |= SQLITE_OPEN_CREATE;
+        if (create_private(st) != 0)
+            goto fail;
+    }
     if (sqlite3_open_v2(path, &st->db, flags, NULL) != SQLITE_OK) {
         hs_store_fail(st, "cannot open: %s", st->db ? sqlite3_errmsg(st->db) : strerror(ENOMEM));
         goto fail;
