@@ -77,6 +77,8 @@ for p, s in status.items():
         bad.append("%s: status %s, forecast %s, chain %s, mqtt %s" % ((p,) + stages))
     if not (mqtt[p]["density_uncertainty_kg_m3"] or 0) > 0:
         bad.append("%s: no density uncertainty on MQTT" % p)
+    if not isinstance(mqtt[p].get("uncertain_alarms"), list):
+        bad.append("%s: MQTT lacks the uncertain_alarms list" % p)
 print("; ".join(bad) if bad else "ok %d ponds" % len(status))
 PY
 check "status, forecast, chain and MQTT give every pond the same stage ($(cat "$HS_TMP/agree.txt"))" \
@@ -103,4 +105,5 @@ assert dm['stopped_cleanly'] is True, dm
 for p in d['ponds']:
     assert p['age_s'] > 3 and p['stale'] is True, p
 " "$HS_TMP/status2.json" "$dpid"
+[ "$hs_failed" = 0 ] || cat "$HS_TMP/status.json" "$HS_TMP/forecast.err" "$HS_TMP/chain.err" >&2
 hs_finish
