@@ -60,6 +60,22 @@ static void add_alarm_rules(hs_runtime *rt)
     }
 }
 
+/* Each actuated transfer's output alarms; the alarm's "pond" is the
+ * transfer's name (names of ponds and transfers never collide). */
+static void add_transfer_alarm_rules(hs_runtime *rt)
+{
+    for (size_t i = 0; i < rt->site.n_transfers; i++) {
+        const hs_transfer_conf *t = &rt->site.transfers[i];
+        if (!t->actuate)
+            continue;
+        add_rule(rt, t->name, HS_RULE_OUTPUT_UNCONFIRMED, "output-unconfirmed", NAN, NAN);
+        if (t->feedback_index >= 0 && t->lockout_after > 0)
+            add_rule(rt, t->name, HS_RULE_FEEDBACK_LOCKOUT, "feedback-lockout", NAN, NAN);
+        if (t->manual_index >= 0)
+            add_rule(rt, t->name, HS_RULE_MANUAL_UNKNOWN, "manual-unknown", NAN, NAN);
+    }
+}
+
 static void restore_alarm(void *ctx, const hs_journal_row *row)
 {
     hs_runtime *rt = ctx;
@@ -84,6 +100,7 @@ static int alarms_open(hs_runtime *rt)
         return -1;
     hs_conf_alarms_apply(&rt->site, rt->alarms); /* first: a configured rule wins */
     add_alarm_rules(rt);
+    add_transfer_alarm_rules(rt);
     hs_store_journal_latest(rt->store, restore_alarm, rt);
     return 0;
 }
@@ -335,16 +352,21 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
     hs_rt_age_readings(rt, now);
     hs_rt_calib_refresh(rt, mono);
     int periodic = mono >= rt->next_eval_ms, evaluated = 0;
+    int fresh_input = 0; /* a pond of a transfer has new samples: decide now, not later */
     for (size_t i = 0; i < rt->site.n_ponds; i++)
         if (rt->ponds[i].dirty || periodic) {
+            for (size_t k = 0; k < rt->site.n_transfers && rt->ponds[i].dirty; k++)
+                fresh_input |= rt->site.transfers[k].source_index == (int)i ||
+                               rt->site.transfers[k].dest_index == (int)i;
             evaluate_pond(rt, i, now, mono);
             evaluated = 1;
         }
+    /* no transfer decides on a site that has not been read yet */
+    if (rt->warm && (periodic || fresh_input))
+        hs_rt_transfers_run(rt, mono, now);
+    hs_rt_outputs_tick(rt, hs_rt_mono_ms());
     if (periodic) {
         hs_alarm_tick(rt->alarms, now, alarm_emit, rt);
-        /* no transfer decides on a site that has not been read yet */
-        if (rt->warm)
-            hs_rt_transfers_run(rt, mono, now);
         rt->next_eval_ms = mono + EVAL_EVERY_MS;
         rt->cycles++;
         hs_rt_scada_beat(rt, now);
@@ -397,6 +419,10 @@ int hs_runtime_reload(hs_runtime *rt, const char *config_path)
                                            strcmp(om->password_file, nm->password_file) != 0 ||
                                            strcmp(om->ca_file, nm->ca_file) != 0 ||
                                            om->enabled != nm->enabled));
+    /* outputs belong to the site, not to a configuration: one the new file
+     * no longer drives (another address, removed, actuate = no) is stopped
+     * and confirmed before the new file takes over */
+    hs_rt_transfers_release(rt, &fresh);
     /* keep each transfer's timing memory across the reload, by name, so a
      * reload never restarts a pump's minimum off time */
     size_t n_old = rt->site.n_transfers;
@@ -407,7 +433,7 @@ int hs_runtime_reload(hs_runtime *rt, const char *config_path)
     rt->transfers = NULL;
     hs_rt_scada_close(rt); /* its map has the old site's shape */
     site_parts_free(rt);
-    hs_site_free(&rt->site);
+    hs_site old_site = rt->site; /* freed once the outputs are taken over */
     rt->site = fresh;
     hs_store_set_retention(rt->store, rt->site.site.raw_retention_ms,
                            rt->site.site.minute_retention_ms, rt->site.site.hour_retention_ms);
@@ -425,8 +451,11 @@ int hs_runtime_reload(hs_runtime *rt, const char *config_path)
         for (size_t j = 0; j < n_old; j++)
             if (strcmp(old_names[j], rt->site.transfers[i].name) == 0) {
                 rt->transfers[i].state = old[j].state;
-                rt->transfers[i].last_write = old[j].last_write;
+                rt->transfers[i].lockout_checked = old[j].lockout_checked;
             }
+    if (ok)
+        hs_rt_transfers_adopt(rt, &old_site, old, n_old);
+    hs_site_free(&old_site);
     free(old);
     free(old_names);
     rt->commands.engine = rt->alarms;

@@ -10,6 +10,7 @@
 #include <sys/socket.h>
 
 #include "hp_bus.h"
+#include "hp_outcmd.h"
 #include "hp_plan.h"
 #include "hp_time.h"
 
@@ -17,17 +18,6 @@
 #define PROBE_INTERVAL_DEFAULT_MS 30000
 #define UNITS 256
 #define STALE_CHECK_MS 1000
-#define WRITES_MAX 32          /* distinct outputs with a write waiting */
-#define WRITE_MAX_AGE_MS 10000 /* an output write older than this is dropped, never
-                                * carried out late (a pump command must be current) */
-
-typedef struct {
-    uint8_t unit_id;
-    bool coil;
-    uint16_t address;
-    uint16_t value;
-    int64_t queued_ms; /* monotonic */
-} pending_write;
 
 /* Health of one device (unit id) of the bus; see the policy in hp_bus.h. */
 typedef struct {
@@ -48,8 +38,7 @@ struct hp_bus {
     pthread_cond_t wake;
     bool stop;                   /* under mu */
     hp_bus_stats stats;          /* under mu */
-    pending_write writes[WRITES_MAX]; /* under mu: latest value per output */
-    size_t n_writes;             /* under mu */
+    hp_outcmd *cmds;             /* output commands, ahead of reads (own lock) */
     /* worker-owned */
     hp_point *points;            /* owned copy, n */
     size_t n;
@@ -88,7 +77,7 @@ static void sleep_until(hp_bus *b, int64_t mono_ms)
     pthread_mutex_lock(&b->mu);
     /* waiting writes wake a connected worker; a disconnected one keeps its
      * reconnect schedule (the writes wait or expire) */
-    while (!b->stop && !(b->connected && b->n_writes > 0) && hp_mono_ms() < mono_ms)
+    while (!b->stop && !(b->connected && hp_outcmd_pending(b->cmds)) && hp_mono_ms() < mono_ms)
         if (pthread_cond_timedwait(&b->wake, &b->mu, &ts) == ETIMEDOUT)
             break;
     pthread_mutex_unlock(&b->mu);
@@ -346,6 +335,8 @@ static void fail_points(hp_bus *b, const uint32_t *which, size_t n, int err)
         emit_failure(b, which[i], err, 0);
 }
 
+static void do_writes(hp_bus *b);
+
 static void run_cycle(hp_bus *b, size_t n_due, int64_t started)
 {
     long nr = hp_plan(b->points, b->which, n_due, b->conf.max_registers, b->conf.max_gap,
@@ -359,6 +350,14 @@ static void run_cycle(hp_bus *b, size_t n_due, int64_t started)
     bool timed_out = false;
     for (long r = 0; r < nr; r++) {
         const hp_read *rd = &b->reads[r];
+        do_writes(b); /* output commands go ahead of every queued read */
+        if (!b->connected) {
+            /* a command found the link broken: this read and the rest fail
+             * now (the reconnect is already scheduled) */
+            for (long q = r; q < nr; q++)
+                not_asked(b, &b->reads[q], ECONNRESET);
+            break;
+        }
         device_health *d = &b->dev[rd->unit_id];
         bool probe = d->down;
         if (d->silent || (d->down && hp_mono_ms() < d->probe_at)) {
@@ -392,41 +391,23 @@ static void run_cycle(hp_bus *b, size_t n_due, int64_t started)
     pthread_mutex_unlock(&b->mu);
 }
 
-/* Carries out the waiting output writes (Modbus Application Protocol v1.1b
- * §6.5 Write Single Coil, §6.6 Write Single Register), oldest first. */
+/* Carries out the waiting output commands (hp_outcmd.h) before anything
+ * else on the bus: called before every read transaction. */
 static void do_writes(hp_bus *b)
 {
-    pending_write w[WRITES_MAX];
+    if (!b->connected || !hp_outcmd_pending(b->cmds))
+        return;
+    uint64_t transactions = 0, failures = 0;
+    int broken = hp_outcmd_run(b->cmds, b->ctx, &transactions, &failures);
     pthread_mutex_lock(&b->mu);
-    size_t n = b->n_writes;
-    memcpy(w, b->writes, n * sizeof w[0]);
-    b->n_writes = 0;
+    b->stats.transactions += transactions;
+    b->stats.writes += transactions - failures;
+    b->stats.write_failures += failures;
+    if (broken)
+        b->stats.last_errno = broken;
     pthread_mutex_unlock(&b->mu);
-    for (size_t i = 0; i < n; i++) {
-        if (hp_mono_ms() - w[i].queued_ms > WRITE_MAX_AGE_MS) {
-            stat_add(b, &b->stats.failures, 1, ETIMEDOUT);
-            continue;
-        }
-        modbus_set_slave(b->ctx, w[i].unit_id);
-        int rc = w[i].coil ? modbus_write_bit(b->ctx, w[i].address, w[i].value ? 1 : 0)
-                           : modbus_write_register(b->ctx, w[i].address, w[i].value);
-        stat_add(b, &b->stats.transactions, 1, 0);
-        if (rc != 1) {
-            int e = errno;
-            stat_add(b, &b->stats.failures, 1, e);
-            pthread_mutex_lock(&b->mu);
-            b->stats.write_failures++;
-            pthread_mutex_unlock(&b->mu);
-            if (link_error(e)) {
-                schedule_reconnect(b);
-                return; /* the rest are dropped; the owner writes them again */
-            }
-        } else {
-            pthread_mutex_lock(&b->mu);
-            b->stats.writes++;
-            pthread_mutex_unlock(&b->mu);
-        }
-    }
+    if (broken)
+        schedule_reconnect(b);
 }
 
 static void *worker(void *arg)
@@ -489,7 +470,7 @@ static void *worker(void *arg)
      * shutdown): carry out what is waiting before the context closes. */
     if (!b->connected && !b->once) {
         pthread_mutex_lock(&b->mu);
-        bool any = b->n_writes > 0;
+        bool any = hp_outcmd_pending(b->cmds);
         pthread_mutex_unlock(&b->mu);
         if (any)
             (void)connect_bus(b);
@@ -501,30 +482,33 @@ static void *worker(void *arg)
 
 int hp_bus_write(hp_bus *b, uint8_t unit_id, bool coil, uint16_t address, uint16_t value)
 {
+    uint32_t seq;
+    return hp_bus_command(b, unit_id, coil, address, HP_OUTCMD_WRITE, value, &seq);
+}
+
+int hp_bus_command(hp_bus *b, uint8_t unit_id, bool coil, uint16_t address,
+                   hp_outcmd_kind kind, uint16_t value, uint32_t *seq)
+{
     if (!b) {
         errno = EINVAL;
         return -1;
     }
-    int rc = 0;
+    if (hp_outcmd_post(b->cmds, unit_id, coil, address, kind, value, seq) != 0)
+        return -1;
     pthread_mutex_lock(&b->mu);
-    size_t i = 0;
-    while (i < b->n_writes && !(b->writes[i].unit_id == unit_id && b->writes[i].coil == coil &&
-                                b->writes[i].address == address))
-        i++;
-    if (i == b->n_writes) {
-        if (b->n_writes == WRITES_MAX) {
-            errno = ENOBUFS;
-            rc = -1;
-        } else {
-            b->n_writes++;
-        }
-    }
-    if (rc == 0) {
-        b->writes[i] = (pending_write){unit_id, coil, address, value, hp_mono_ms()};
-        pthread_cond_broadcast(&b->wake);
-    }
+    pthread_cond_broadcast(&b->wake);
     pthread_mutex_unlock(&b->mu);
-    return rc;
+    return 0;
+}
+
+int hp_bus_command_result(hp_bus *b, uint8_t unit_id, bool coil, uint16_t address,
+                          hp_outcmd_result *out)
+{
+    if (!b) {
+        errno = EINVAL;
+        return -1;
+    }
+    return hp_outcmd_result_get(b->cmds, unit_id, coil, address, out);
 }
 
 static modbus_t *new_context(const hp_bus_conf *c)
@@ -565,6 +549,7 @@ static void free_bus(hp_bus *b)
     free(b->which);
     free(b->order);
     free(b->reads);
+    hp_outcmd_free(b->cmds);
     pthread_cond_destroy(&b->wake);
     pthread_mutex_destroy(&b->mu);
     free(b);
@@ -606,7 +591,8 @@ hp_bus *hp_bus_start(const hp_bus_conf *conf, const hp_point *points, size_t n,
     b->order = calloc(m, sizeof *b->order);
     b->reads = calloc(m, sizeof *b->reads);
     b->ctx = new_context(conf);
-    if (!b->points || !b->next_due || !b->last_good || !b->last_value || !b->last_wall ||
+    b->cmds = hp_outcmd_new();
+    if (!b->cmds || !b->points || !b->next_due || !b->last_good || !b->last_value || !b->last_wall ||
         !b->stale_sent || !b->which || !b->order || !b->reads || !b->ctx) {
         int e = errno ? errno : ENOMEM;
         free_bus(b);
