@@ -39,6 +39,7 @@ void hs_alarm_site_rules(const hs_site *site, hs_alarm_engine *eng)
         add_rule(eng, p->name, HS_RULE_DENSITY_BAND, "density-band", p->density_in_kg_m3, NAN);
         add_rule(eng, p->name, HS_RULE_SENSOR_STALE, "sensor-stale", NAN, NAN);
         add_rule(eng, p->name, HS_RULE_BUS_DOWN, "bus-down", NAN, NAN);
+        add_rule(eng, p->name, HS_RULE_SENSOR_STUCK, "sensor-stuck", NAN, NAN);
         add_rule(eng, p->name, HS_RULE_DENSITY_FALL, "density-fall", NAN, NAN);
         if (p->role == HS_ROLE_INTAKE || p->role == HS_ROLE_CONCENTRATOR)
             add_rule(eng, p->name, HS_RULE_NEAR_SATURATION, "near-saturation", NAN, NAN);
