@@ -8,6 +8,8 @@
 
 #include "hc_balance.h"
 #include "hc_ion.h"
+#include "hs_alarm_site.h"
+#include "hs_conf_alarm.h"
 #include "hs_chain_json.h"
 #include "hs_hydro.h"
 #include "hs_hydro_brine.h"
@@ -173,9 +175,19 @@ int hs_chain_plan_make(const hs_site *site, hs_store *st, int64_t now_ms,
     for (int d = 0; d < o->days; d++)
         p->rain[d] = o->rain_mm != NULL ? o->rain_mm[d] : 0;
     double modulus = isfinite(site->site.baume_modulus) ? site->site.baume_modulus : 145.0;
+    /* The daemon's rules: configured ones first, so they win over built-ins. */
+    p->alarms = hs_alarm_new(1);
+    if (p->alarms == NULL) {
+        snprintf(err, errlen, "out of memory");
+        hs_chain_plan_free(p);
+        return -1;
+    }
+    hs_conf_alarms_apply(site, p->alarms);
+    hs_alarm_site_rules(site, p->alarms);
     p->in = (struct hs_chain_input){&p->tables.view, p->cs.n_ponds, p->cs.ponds, p->cs.n_links,
                                     p->cs.links, o->days, p->rain, o->relative_humidity,
-                                    o->sea_fill, o->t_ref_c, modulus, HS_CHAIN_HALITE_DENSITY};
+                                    o->sea_fill, o->t_ref_c, modulus, HS_CHAIN_HALITE_DENSITY,
+                                    p->alarms};
     if (hs_chain_run(&p->in, &p->result, err, errlen) != 0) {
         hs_chain_plan_free(p);
         return -1;
@@ -186,6 +198,8 @@ int hs_chain_plan_make(const hs_site *site, hs_store *st, int64_t now_ms,
 void hs_chain_plan_free(struct hs_chain_plan *p)
 {
     hs_chain_result_free(&p->result);
+    hs_alarm_free(p->alarms);
+    p->alarms = NULL;
     hs_chain_site_free(&p->cs);
     hs_chain_tables_free(&p->tables);
     hs_paths_free(&p->paths);

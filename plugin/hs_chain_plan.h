@@ -56,6 +56,7 @@ struct hs_chain_plan {
     struct hs_chain_input in;
     struct hs_chain_result result;
     struct hs_chain_evaporation evaporation;
+    hs_alarm_engine *alarms;     /* the site's rules, to predict the alarms */
     double rain[HS_CHAIN_MAX_DAYS];
 };
 

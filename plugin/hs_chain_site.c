@@ -20,7 +20,9 @@ int hs_chain_tables_from_path(const hc_path *path, double t_ref_c, struct hs_cha
     t->rho_ref = calloc(n ? n : 1, sizeof *t->rho_ref);
     t->aw = calloc(n ? n : 1, sizeof *t->aw);
     t->mol = calloc((n ? n : 1) * HC_ION_COUNT, sizeof *t->mol);
-    if (!t->cf || !t->rho || !t->rho_ref || !t->aw || !t->mol) {
+    t->si_halite = calloc(n ? n : 1, sizeof *t->si_halite);
+    t->si_gypsum = calloc(n ? n : 1, sizeof *t->si_gypsum);
+    if (!t->cf || !t->rho || !t->rho_ref || !t->aw || !t->mol || !t->si_halite || !t->si_gypsum) {
         snprintf(err, errlen, "chain: out of memory");
         hs_chain_tables_free(t);
         return -1;
@@ -39,6 +41,9 @@ int hs_chain_tables_from_path(const hc_path *path, double t_ref_c, struct hs_cha
         t->rho[rows] = p->density_kg_m3;
         t->rho_ref[rows] = rho_ref;
         t->aw[rows] = p->water_activity;
+        /* -HUGE_VAL (an ion absent) is kept as a very low index. */
+        t->si_halite[rows] = fmax(p->saturation_index[HC_MIN_HALITE], -99.0);
+        t->si_gypsum[rows] = fmax(p->saturation_index[HC_MIN_GYPSUM], -99.0);
         for (int k = 0; k < HC_ION_COUNT; k++)
             t->mol[rows * HC_ION_COUNT + (size_t)k] = p->molality[k];
         rows++;
@@ -55,6 +60,8 @@ int hs_chain_tables_from_path(const hc_path *path, double t_ref_c, struct hs_cha
     b->density_kg_m3 = t->rho;
     b->density_ref_kg_m3 = t->rho_ref;
     b->water_activity = t->aw;
+    b->si_halite = t->si_halite;
+    b->si_gypsum = t->si_gypsum;
     b->n_ions = HC_ION_COUNT;
     b->molality = t->mol;
     b->molar_mass_kg_mol = t->molar_mass;
@@ -70,6 +77,8 @@ void hs_chain_tables_free(struct hs_chain_tables *t)
     free(t->rho_ref);
     free(t->aw);
     free(t->mol);
+    free(t->si_halite);
+    free(t->si_gypsum);
     memset(t, 0, sizeof *t);
 }
 

@@ -49,7 +49,7 @@ static double once(int everything, hs_site *site, struct hs_chain_tables *tables
     double rain[DAYS] = {0};
     rain[4] = 15;
     struct hs_chain_input in = {&tables->view, cs->n_ponds, cs->ponds, cs->n_links, cs->links,
-                                DAYS, rain, 0.6, 1, 20.0, 145.0, 2165.0};
+                                DAYS, rain, 0.6, 1, 20.0, 145.0, 2165.0, NULL};
     struct hs_chain_result r;
     int rc = hs_chain_run(&in, &r, err, sizeof err);
     hs_chain_result_free(&r);
