@@ -160,6 +160,19 @@ static void limit_cause(struct run *r, int day, size_t i, unsigned lim, char *wh
         snprintf(why, len, "no %s configured", way);
 }
 
+/* The stage of a brine: the daemon's judgement when the models are given
+ * (what its stage triggers compare), else the path's at the CF. */
+static int stage_of(const struct hs_chain_input *in, const hc_chain_point *pt)
+{
+    if (in->models != NULL) {
+        hc_stage s = hs_stage_at_density_ref(in->models, in->feed_index, pt->density_ref_kg_m3,
+                                             in->t_ref_c);
+        if (s != HC_STAGE_NONE)
+            return s;
+    }
+    return pt->stage;
+}
+
 static int record(struct run *r, int day)
 {
     const struct hs_chain_input *in = r->in;
@@ -179,7 +192,7 @@ static int record(struct run *r, int day)
         d->cf = v.cf;
         d->density_ref_kg_m3 = v.point.density_ref_kg_m3;
         d->baume = baume_of(in, d->density_ref_kg_m3);
-        d->stage = v.point.stage;
+        d->stage = v.volume_m3 > 0 ? stage_of(in, &v.point) : HC_STAGE_NONE;
         if (day == 0 && p->stage_now_known && p->stage_now >= 0 && p->stage_now < HC_STAGE_COUNT)
             d->stage = p->stage_now; /* one stage computation: the daemon's, now */
         double floor_area = 0;
@@ -332,7 +345,7 @@ static int run_link(struct run *r, int day, size_t li)
     struct hs_transfer_inputs xin = {
         .now_ms = (int64_t)day * DAY_MS,
         .source_density = {sv.point.density_ref_kg_m3, HS_XQ_GOOD},
-        .source_stage = sv.point.stage,
+        .source_stage = stage_of(in, &sv.point),
         .source_level = {src_level, HS_XQ_GOOD},
         .dest_level = {dst_level, HS_XQ_GOOD},
         .dest_density_after_mixing = {isfinite(mix_rho) ? mix_rho : dv.point.density_ref_kg_m3,
@@ -341,6 +354,9 @@ static int run_link(struct run *r, int day, size_t li)
         .manual = {0, HS_XQ_ABSENT},
         .run_feedback = {0, HS_XQ_ABSENT},
         .bus_up = 1,
+        /* The prediction stands in for the density the rule decides on. */
+        .source_method = l->rule.density_method >= 0 ? l->rule.density_method
+                                                     : HC_METHOD_COMPOSITION,
     };
     struct hs_transfer_decision d;
     hs_transfer_decide(&l->rule, &r->state[li], &xin, day > 1 ? &r->prev[li] : NULL, &d);

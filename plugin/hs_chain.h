@@ -26,6 +26,7 @@
 
 #include "hc_chain.h"
 #include "hs_alarm.h"
+#include "hs_brine_eval.h"
 #include "hs_site.h"
 #include "hs_transfer.h"
 
@@ -71,6 +72,10 @@ struct hs_chain_input {
                                       hs_conf_alarm.h), fed each day's predicted state to
                                       tell which alarms it would raise; NULL: none. The
                                       caller owns it; the run changes its states. */
+    const hs_brine_models *models; /* optional: stages as the daemon judges them, by density
+                                      at the reference temperature against the onset brines
+                                      (hs_stage_at_density_ref); NULL: from the CF */
+    int feed_index;                /* the feed of the models (-1: built-in seawater) */
 };
 
 /* Per-pond limit flags of a day's end. */

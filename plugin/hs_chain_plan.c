@@ -144,9 +144,9 @@ out:
     return rc;
 }
 
-int hs_chain_plan_make(const hs_site *site, hs_store *st, int64_t now_ms,
-                       const struct hs_chain_options *o, struct hs_chain_plan *p, char *err,
-                       size_t errlen)
+int hs_chain_plan_make(const hs_site *site, const hs_brine_models *models, hs_store *st,
+                       int64_t now_ms, const struct hs_chain_options *o,
+                       struct hs_chain_plan *p, char *err, size_t errlen)
 {
     memset(p, 0, sizeof *p);
     p->evaporation.source = "";
@@ -156,11 +156,15 @@ int hs_chain_plan_make(const hs_site *site, hs_store *st, int64_t now_ms,
         snprintf(err, errlen, "days must be 1..%d", HS_CHAIN_MAX_DAYS);
         return -1;
     }
-    if (hs_paths_build(site, &p->paths) != 0) {
-        snprintf(err, errlen, "out of memory");
-        return -1;
+    if (models == NULL) {
+        if (hs_brine_models_build(site, &p->own_models) != 0) {
+            snprintf(err, errlen, "the brine models of the site's feeds failed");
+            return -1;
+        }
+        models = p->own_models;
     }
-    const hc_path *path = hs_paths_for(&p->paths, site->site.feed_index);
+    int feed = site->site.feed_index;
+    const hc_path *path = hs_brine_models_path(models, feed);
     if (path == NULL) {
         snprintf(err, errlen, "the site feed's evaporation path failed");
         hs_chain_plan_free(p);
@@ -187,7 +191,7 @@ int hs_chain_plan_make(const hs_site *site, hs_store *st, int64_t now_ms,
     p->in = (struct hs_chain_input){&p->tables.view, p->cs.n_ponds, p->cs.ponds, p->cs.n_links,
                                     p->cs.links, o->days, p->rain, o->relative_humidity,
                                     o->sea_fill, o->t_ref_c, modulus, HS_CHAIN_HALITE_DENSITY,
-                                    p->alarms};
+                                    p->alarms, models, feed};
     if (hs_chain_run(&p->in, &p->result, err, errlen) != 0) {
         hs_chain_plan_free(p);
         return -1;
@@ -202,7 +206,8 @@ void hs_chain_plan_free(struct hs_chain_plan *p)
     p->alarms = NULL;
     hs_chain_site_free(&p->cs);
     hs_chain_tables_free(&p->tables);
-    hs_paths_free(&p->paths);
+    hs_brine_models_free(p->own_models);
+    p->own_models = NULL;
 }
 
 json_t *hs_chain_plan_json(const struct hs_chain_plan *p, const char *site_name, int64_t now_ms)

@@ -9,6 +9,7 @@
 #include "hc_ion.h"
 #include "hs_conf_transfer.h"
 #include "hs_hydro_brine.h"
+#include "hs_pond_shape.h"
 
 int hs_chain_tables_from_path(const hc_path *path, double t_ref_c, struct hs_chain_tables *t,
                               char *err, size_t errlen)
@@ -123,27 +124,12 @@ int hs_chain_site_build(const hs_site *site, double default_flow, struct hs_chai
         c->level_m = c->density_ref_kg_m3 = c->evap_fresh_mm_day = NAN;
         c->harvest_depth_m = NAN;
         c->deposit_start_kg = 0;
-        if (p->stage_storage[0] != '\0') {
-            char path[2 * HS_PATH_MAX + 2];
-            if (p->stage_storage[0] == '/')
-                snprintf(path, sizeof path, "%s", p->stage_storage);
-            else
-                snprintf(path, sizeof path, "%s/%s", site->dir, p->stage_storage);
-            if (hs_stage_table_load(path, &out->tables[i], err, errlen) != 0) {
-                hs_chain_site_free(out);
-                return -1;
-            }
-            c->shape.is_table = 1;
-            c->shape.table = out->tables[i].view;
-        } else if (isfinite(p->floor_area_m2) && p->floor_area_m2 > 0) {
-            c->shape.is_table = 0;
-            c->shape.prism.floor_area_m2 = p->floor_area_m2;
-            c->shape.prism.floor_perimeter_m = 0;
-            c->shape.prism.side_slope = isfinite(p->side_slope) ? p->side_slope : 0;
-            c->shape.prism.max_level_m = isfinite(p->freeboard_m) ? p->freeboard_m : 10.0;
-        } else {
-            snprintf(err, errlen, "%s:%d: [pond %s]: the chain needs its area or a stage_storage "
-                     "table", site->path, p->line, p->name);
+        int loaded = 0;
+        int rc = hs_pond_shape_of(p, &out->tables[i], &loaded, &c->shape, err, errlen);
+        if (rc != 0) {
+            if (rc > 0)
+                snprintf(err, errlen, "%s:%d: [pond %s]: the chain needs its area or a "
+                         "stage_storage table", site->path, p->line, p->name);
             hs_chain_site_free(out);
             return -1;
         }

@@ -42,7 +42,8 @@ void hs_rt_schedule_tick(hs_runtime *rt, int64_t mono_ms, int64_t now_ms)
     char err[256], topic[HS_TOPIC_MAX];
     int64_t retry = now_ms - rt->started_ms < SCHEDULE_EARLY_MS ? SCHEDULE_EARLY_RETRY_MS
                                                                 : SCHEDULE_RETRY_MS;
-    if (hs_chain_plan_make(&rt->site, rt->store, now_ms, &o, &plan, err, sizeof err) != 0) {
+    if (hs_chain_plan_make(&rt->site, rt->models, rt->store, now_ms, &o, &plan, err,
+                           sizeof err) != 0) {
         hs_log(HSP_LOG_WARNING, "schedule: %s; trying again in %lld s", err,
                (long long)(retry / 1000));
         rt->next_schedule_ms = mono_ms + retry;

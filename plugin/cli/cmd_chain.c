@@ -312,7 +312,7 @@ int hs_cmd_chain(int argc, char **argv)
     char err[512];
     int64_t now = (int64_t)time(NULL) * 1000;
     rc = 1;
-    if (hs_chain_plan_make(&ctx.site, ctx.store, now, &o, &plan, err, sizeof err) != 0) {
+    if (hs_chain_plan_make(&ctx.site, NULL, ctx.store, now, &o, &plan, err, sizeof err) != 0) {
         fprintf(stderr, "halostage " CMD ": %s\n", err);
         hs_hcli_close(&ctx);
         return 1;

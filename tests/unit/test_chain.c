@@ -80,6 +80,8 @@ static struct hs_chain_input input(struct fixture *f, int days, const double *ra
         .baume_modulus = 145.0,
         .salt_bulk_density_kg_m3 = 2165.0,
         .alarms = NULL,
+        .models = NULL,
+        .feed_index = -1,
     };
     return in;
 }
