@@ -163,22 +163,22 @@ static void print_daemon(const hs_site *site, hs_store *st, int64_t now)
     if (held < 0) {
         printf("daemon: unknown (%s)\n", err);
     } else if (held) {
-        printf("daemon: running, PID %ld holds the site lock", pid > 0 ? pid : (long)m.pid);
+        printf("daemon: PID %ld holds the site lock", pid > 0 ? pid : (long)m.pid);
         if (m.started_ms > 0) {
             hs_iso8601_ms(when, sizeof when, m.started_ms);
-            printf(" (since %s)", when);
+            printf(" (running since %s)", when);
         }
         printf("\n");
     } else if (m.pid > 0) {
         int64_t since = down_since(&m);
         hs_iso8601_ms(when, sizeof when, since);
         age_text(ago, sizeof ago, now - since);
-        printf("daemon: NOT RUNNING since %s (%s ago%s); PID %lld last held the site; "
+        printf("daemon: not running since %s (%s ago%s); PID %lld last held the site; "
                "the states below are its last\n", since > 0 ? when : "an unknown time",
                since > 0 ? ago : "?", m.stopped_ms > 0 ? ", stopped" : ", not stopped cleanly",
                (long long)m.pid);
     } else {
-        printf("daemon: NOT RUNNING (nobody holds the site lock, and none has run on this "
+        printf("daemon: not running (nobody holds the site lock, and none has run on this "
                "history)\n");
     }
 }
