@@ -29,11 +29,11 @@ static const hs_key mqtt_keys[] = {
              "way, alarms never"),
     KEY_DUR("state_heartbeat", M, state_heartbeat_ms, 0, 24 * 3600 * SEC_MS, "5min", 0,
             "an unchanged pond state is published again this often (0: only on new input)"),
-    KEY_DUR("reconnect_min", M, reconnect_min_ms, 1 * SEC_MS, 3600 * SEC_MS, "1s", 0,
+    KEY_DUR("reconnect_min", M, reconnect_min_ms, 100, 3600 * SEC_MS, "500ms", 0,
             "first wait before reconnecting to a lost broker"),
-    KEY_DUR("reconnect_max", M, reconnect_max_ms, 1 * SEC_MS, 3600 * SEC_MS, "1s", 0,
-            "the wait doubles up to this; 1s reconnects within about a second of the broker's "
-            "return"),
+    KEY_DUR("reconnect_max", M, reconnect_max_ms, 100, 3600 * SEC_MS, "500ms", 0,
+            "the wait doubles up to this; 500ms reconnects within about a second of the "
+            "broker's return"),
     KEY_UINT("max_inbound", M, max_inbound, 256, 65536, "4096", 0,
              "largest command payload in bytes; the broker is told the packet limit at "
              "connect (MQTT 5), so nothing much larger is ever read"),

@@ -11,7 +11,7 @@
 #include "hs_conf_mqtt.h"
 #include "hs_log.h"
 #include "hs_runtime_private.h"
-#include "hs_secret.h"
+#include "hs_mqtt_secret.h"
 
 int hs_rt_mqtt_open(hs_runtime *rt)
 {
@@ -37,12 +37,14 @@ int hs_rt_mqtt_open(hs_runtime *rt)
         return -1;
     }
     hs_store_set_outbox_max(rt->store, m->outbox_max);
-    char password[256] = "", pw_err[PATH_MAX + 128];
-    if (m->password_file[0] &&
-        hs_read_secret(m->password_file, password, sizeof password, pw_err, sizeof pw_err) != 0) {
-        hs_log(HSP_LOG_ERR, "[mqtt] password_file %s", pw_err);
+    char password[256] = "", pw_err[PATH_MAX + 1024];
+    if (hs_mqtt_password(m, rt->site.path, password, sizeof password, pw_err,
+                         sizeof pw_err) != 0) {
+        hs_log(HSP_LOG_ERR, "%s", pw_err);
         return -1;
     }
+    if (hs_mqtt_password_in_clear(m, rt->site.path, pw_err, sizeof pw_err))
+        hs_log(HSP_LOG_WARNING, "%s", pw_err);
     char will_topic[HS_TOPIC_MAX], subscribe[HS_TOPIC_MAX + 4], err[256] = "";
     hs_topic(will_topic, sizeof will_topic, &rt->topics, "gateway", NULL, NULL);
     hs_topic(subscribe, sizeof subscribe - 2, &rt->topics, "command", NULL, NULL);
@@ -58,8 +60,8 @@ int hs_rt_mqtt_open(hs_runtime *rt)
         .will_topic = will_topic, .will_payload = will, .will_retained = 1,
         .keepalive_s = (int)m->keepalive_s, .max_inflight = (int)m->window,
         .subscribe = subscribe,
-        .min_retry_s = (int)((m->reconnect_min_ms + 999) / 1000),
-        .max_retry_s = (int)((m->reconnect_max_ms + 999) / 1000),
+        .min_retry_ms = (int)m->reconnect_min_ms,
+        .max_retry_ms = (int)m->reconnect_max_ms,
         .max_inbound = m->max_inbound,
     };
     rt->link = hp_mqtt_new(&opt, err, sizeof err);

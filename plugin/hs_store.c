@@ -1,10 +1,13 @@
 /* History store: opening, schema migrations, prepared statements, batching.
  * Ownership: hs_store owns its sqlite3 connection, statements and caches. */
 #include <errno.h>
+#include <fcntl.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
 
 #include "hs_store_private.h"
 
@@ -72,6 +75,10 @@ static const char *const migrations[] = {
     "CREATE TABLE command_seen(key TEXT PRIMARY KEY, t_ms INTEGER NOT NULL,"
     " ok INTEGER NOT NULL, reply TEXT NOT NULL) STRICT, WITHOUT ROWID;"
     "CREATE INDEX command_seen_t ON command_seen(t_ms);",
+    /* 4 -> 5: why a sample is not good (hp_sample_reason, or flatline) and
+     * the Modbus exception code or errno behind it; NULL for good ones. */
+    "ALTER TABLE sample ADD COLUMN reason TEXT;"
+    "ALTER TABLE sample ADD COLUMN code INTEGER;",
 };
 #define SCHEMA_VERSION ((int)(sizeof migrations / sizeof migrations[0]))
 
@@ -82,7 +89,8 @@ static const char *const stmt_sql[SQL_COUNT] = {
     [SQL_SERIES_ADD] = "INSERT INTO series(name) VALUES(?1)",
     [SQL_POND_GET] = "SELECT id FROM pond WHERE name = ?1",
     [SQL_POND_ADD] = "INSERT INTO pond(name) VALUES(?1)",
-    [SQL_SAMPLE_ADD] = "INSERT INTO sample(series_id, t_ms, value, quality) VALUES(?1,?2,?3,?4)",
+    [SQL_SAMPLE_ADD] = "INSERT INTO sample(series_id, t_ms, value, quality, reason, code)"
+                       " VALUES(?1,?2,?3,?4,?5,?6)",
     [SQL_STATE_ADD] =
         "INSERT INTO pond_state(pond_id, t_ms, quality, density_kg_m3, temperature_c,"
         " practical_salinity, salinity_g_kg, specific_gravity, reference_temperature_c,"
@@ -425,6 +433,22 @@ static int migrate(hs_store *st)
     return 0;
 }
 
+/* A new history file is created 0640 whatever the umask (SQLite would
+ * take 0644 & ~umask): it holds the site's operations record. The WAL and
+ * shared-memory files take their mode from it. */
+static int create_private(hs_store *st)
+{
+    int fd = open(st->path, O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC | O_NOFOLLOW, 0600);
+    if (fd < 0)
+        return errno == EEXIST ? 0 : hs_store_fail(st, "cannot create: %s", strerror(errno));
+    int rc = fchmod(fd, 0640);
+    int saved = errno;
+    close(fd);
+    if (rc != 0)
+        return hs_store_fail(st, "cannot set mode 0640: %s", strerror(saved));
+    return 0;
+}
+
 hs_store *hs_store_open(const char *path, hs_store_mode mode, const hs_store_options *opt,
                         char *err, size_t errlen)
 {
@@ -444,8 +468,11 @@ hs_store *hs_store_open(const char *path, hs_store_mode mode, const hs_store_opt
     if (st->opt.batch_rows < 1)
         st->opt.batch_rows = 1;
     int flags = SQLITE_OPEN_READWRITE | SQLITE_OPEN_NOMUTEX;
-    if (mode == HS_STORE_WRITE)
+    if (mode == HS_STORE_WRITE) {
         flags |= SQLITE_OPEN_CREATE;
+        if (create_private(st) != 0)
+            goto fail;
+    }
     if (sqlite3_open_v2(path, &st->db, flags, NULL) != SQLITE_OK) {
         hs_store_fail(st, "cannot open: %s", st->db ? sqlite3_errmsg(st->db) : strerror(ENOMEM));
         goto fail;

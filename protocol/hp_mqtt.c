@@ -35,8 +35,23 @@ struct hp_mqtt {
     size_t queued;
     uint64_t dropped;
     int connected;        /* under lock */
+    /* Reconnecting is ours, on the owner's thread (paho's own retries are
+     * checked about once a second and say nothing of each attempt): after a
+     * loss or a failed attempt the next one is due at next_attempt_ms
+     * (monotonic; 0: none due), the wait doubling from min_retry_s up to
+     * max_retry_s. */
+    int started;
+    int64_t next_attempt_ms;
+    int64_t retry_ms;
     char err[256];
 };
+
+static int64_t mono_ms(void)
+{
+    struct timespec ts;
+    clock_gettime(CLOCK_MONOTONIC, &ts);
+    return (int64_t)ts.tv_sec * 1000 + ts.tv_nsec / 1000000;
+}
 
 struct pub_ctx {
     hp_mqtt *m;
@@ -204,20 +219,25 @@ hp_mqtt *hp_mqtt_new(const hp_mqtt_options *o, char *err, size_t errlen)
     m->opt.cert_file = keep(m, 5, o->cert_file);
     m->opt.key_file = keep(m, 6, o->key_file);
     m->opt.will_topic = keep(m, 7, o->will_topic);
-    m->opt.will_payload = keep(m, 8, o->will_payload);
+    int binary_will = o->will_payload != NULL && o->will_len > 0;
+    m->opt.will_payload = keep(m, 8, binary_will ? NULL : o->will_payload);
     m->opt.subscribe = keep(m, 9, o->subscribe);
     m->opt.subscribe_extra[0] = keep(m, 10, o->subscribe_extra[0]);
     m->opt.subscribe_extra[1] = keep(m, 11, o->subscribe_extra[1]);
     const char *given[12] = {o->uri, o->client_id, o->username, o->password, o->ca_file,
-                             o->cert_file, o->key_file, o->will_topic, o->will_payload,
-                             o->subscribe, o->subscribe_extra[0], o->subscribe_extra[1]};
-    if (o->will_payload != NULL && o->will_len > 0) {
-        /* a binary will (a Sparkplug NDEATH) may hold NUL bytes */
+                             o->cert_file, o->key_file, o->will_topic,
+                             binary_will ? NULL : o->will_payload, o->subscribe,
+                             o->subscribe_extra[0], o->subscribe_extra[1]};
+    if (binary_will) {
+        /* a binary will (a Sparkplug NDEATH) may hold NUL bytes: copied by length */
         m->will_copy = malloc(o->will_len);
-        if (m->will_copy != NULL)
-            memcpy(m->will_copy, o->will_payload, o->will_len);
-        else
-            given[8] = "", m->copies[8] = NULL;
+        if (m->will_copy == NULL) {
+            fail(err, errlen, "mqtt: out of memory");
+            hp_mqtt_free(m, 0);
+            return NULL;
+        }
+        memcpy(m->will_copy, o->will_payload, o->will_len);
+        m->opt.will_payload = m->will_copy;
     }
     for (int i = 0; i < 12; i++)
         if (given[i] != NULL && m->copies[i] == NULL) {
@@ -254,7 +274,20 @@ hp_mqtt *hp_mqtt_new(const hp_mqtt_options *o, char *err, size_t errlen)
     return m;
 }
 
-int hp_mqtt_start(hp_mqtt *m, char *err, size_t errlen)
+static int64_t retry_min_ms(const hp_mqtt *m)
+{
+    return m->opt.min_retry_ms > 0 ? m->opt.min_retry_ms : (int64_t)m->opt.min_retry_s * 1000;
+}
+
+static int64_t retry_max_ms(const hp_mqtt *m)
+{
+    int64_t max = m->opt.max_retry_ms > 0 ? m->opt.max_retry_ms
+                                          : (int64_t)m->opt.max_retry_s * 1000;
+    return max < retry_min_ms(m) ? retry_min_ms(m) : max;
+}
+
+/* One connect attempt; its outcome comes back as an event. */
+static int connect_once(hp_mqtt *m, char *err, size_t errlen)
 {
     MQTTAsync_connectOptions co = MQTTAsync_connectOptions_initializer5;
     MQTTAsync_willOptions will = MQTTAsync_willOptions_initializer;
@@ -272,9 +305,7 @@ int hp_mqtt_start(hp_mqtt *m, char *err, size_t errlen)
     co.cleanstart = 1;
     co.MQTTVersion = MQTTVERSION_5;
     co.maxInflight = m->opt.max_inflight;
-    co.automaticReconnect = m->opt.no_reconnect ? 0 : 1;
-    co.minRetryInterval = m->opt.min_retry_s;
-    co.maxRetryInterval = m->opt.max_retry_s;
+    co.automaticReconnect = 0; /* see next_attempt_ms */
     co.connectTimeout = 10;
     co.username = m->opt.username;
     co.password = m->opt.password;
@@ -301,11 +332,47 @@ int hp_mqtt_start(hp_mqtt *m, char *err, size_t errlen)
         co.ssl = &ssl;
     }
     int rc = MQTTAsync_connect(m->client, &co);
-    MQTTProperties_free(&props); /* paho keeps its own copy for reconnects */
+    MQTTProperties_free(&props); /* paho copies what it keeps */
     if (rc != MQTTASYNC_SUCCESS)
         return fail(err, errlen, "mqtt: cannot start connecting to %s (code %d)", m->opt.uri,
                     rc);
     return 0;
+}
+
+int hp_mqtt_start(hp_mqtt *m, char *err, size_t errlen)
+{
+    m->started = 1;
+    m->retry_ms = retry_min_ms(m);
+    m->next_attempt_ms = 0;
+    return connect_once(m, err, errlen);
+}
+
+/* After the events of a poll: the next attempt when one is due. */
+static void reconnect_if_due(hp_mqtt *m)
+{
+    if (!m->started || m->opt.no_reconnect || m->next_attempt_ms == 0 ||
+        mono_ms() < m->next_attempt_ms)
+        return;
+    m->next_attempt_ms = 0;
+    char why[160];
+    if (connect_once(m, why, sizeof why) != 0) { /* refused at once: try again later */
+        m->next_attempt_ms = mono_ms() + m->retry_ms;
+        push(m, HP_MQTT_DISCONNECTED, 0, NULL, NULL, 0, 0, 0, why);
+    }
+}
+
+/* Bookkeeping of the link's own events, on the owner's thread. */
+static void track(hp_mqtt *m, const hp_mqtt_event *ev)
+{
+    if (ev->type == HP_MQTT_CONNECTED) {
+        m->retry_ms = retry_min_ms(m);
+        m->next_attempt_ms = 0;
+    } else if (ev->type == HP_MQTT_DISCONNECTED && m->started && !m->opt.no_reconnect &&
+               m->next_attempt_ms == 0) {
+        m->next_attempt_ms = mono_ms() + m->retry_ms;
+        int64_t max = retry_max_ms(m);
+        m->retry_ms = m->retry_ms * 2 > max ? max : m->retry_ms * 2;
+    }
 }
 
 size_t hp_mqtt_packet_limit(const hp_mqtt_options *opt)
@@ -357,6 +424,11 @@ int hp_mqtt_publish(hp_mqtt *m, const char *topic, const void *payload, size_t l
 int hp_mqtt_poll(hp_mqtt *m, int timeout_ms, void (*fn)(void *ctx, const hp_mqtt_event *ev),
                  void *ctx)
 {
+    if (m->next_attempt_ms > 0) { /* do not sleep past a due attempt */
+        int64_t due = m->next_attempt_ms - mono_ms();
+        if (due < timeout_ms)
+            timeout_ms = due > 0 ? (int)due : 0;
+    }
     pthread_mutex_lock(&m->lock);
     if (m->head == NULL && timeout_ms > 0) {
         struct timespec until;
@@ -381,6 +453,7 @@ int hp_mqtt_poll(hp_mqtt *m, int timeout_ms, void (*fn)(void *ctx, const hp_mqtt
         list->ev.topic = list->topic;
         list->ev.payload = list->payload;
         list->ev.reason = list->reason;
+        track(m, &list->ev);
         if (list->ev.type == HP_MQTT_CONNECTED && m->opt.subscribe) {
             /* Renewed at every connect (clean sessions), from the owner's
              * thread rather than paho's callback. */
@@ -402,6 +475,7 @@ int hp_mqtt_poll(hp_mqtt *m, int timeout_ms, void (*fn)(void *ctx, const hp_mqtt
         list = next;
         n++;
     }
+    reconnect_if_due(m);
     return n;
 }
 
@@ -419,6 +493,7 @@ void hp_mqtt_free(hp_mqtt *m, int timeout_ms)
 {
     if (m == NULL)
         return;
+    m->started = 0; /* no reconnect from here on */
     if (m->client) {
         if (MQTTAsync_isConnected(m->client)) {
             MQTTAsync_disconnectOptions d = MQTTAsync_disconnectOptions_initializer5;

@@ -1,5 +1,7 @@
-/* MQTT link on paho-mqtt-c's async API (MQTT 5): connects with automatic reconnect
- * (exponential backoff between min_retry_s and max_retry_s), a last will,
+/* MQTT link on paho-mqtt-c's async API (MQTT 5): connects and reconnects
+ * (exponential backoff between min_retry_s and max_retry_s, each attempt
+ * made from hp_mqtt_poll on the owner's thread and each failure reported
+ * as an event), a last will,
  * TLS with server verification, and a username/password. It knows nothing
  * of ponds or of the outbox: it publishes what it is given and reports,
  * through hp_mqtt_poll() on the owner's thread, what happened.
@@ -35,6 +37,8 @@ typedef struct {
     int max_inflight;       /* QoS 1 messages in flight; default 64 */
     int min_retry_s;        /* reconnect backoff; default 1 */
     int max_retry_s;        /* default 60 */
+    int min_retry_ms;       /* when > 0, these replace min_retry_s and max_retry_s */
+    int max_retry_ms;
     const char *subscribe;  /* topic filter subscribed at every connect; NULL: none */
     const char *subscribe_extra[2]; /* more filters, the same way; NULL: none */
     int no_reconnect;       /* 1: a lost connection stays lost (the owner makes a new

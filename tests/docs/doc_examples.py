@@ -1,7 +1,8 @@
 #!/usr/bin/python3
 """Every example command in the README and the man pages, as a list to run.
 
-Reads README.md (indented or fenced code blocks) and the man pages (.nf/.fi
+Reads README.md (indented or fenced code blocks; a block fenced as ```text is
+output and is not read) and the man pages (.nf/.fi
 blocks), joins continued lines, and prints one JSON object per example:
 {"file", "line", "command", "exit", "shows", "skip"}.
 
@@ -25,7 +26,7 @@ OURS = re.compile(r'^(?:build/)?(halostage|halostaged|halostage-sim)(\s|$)')
 MARK_EXIT = re.compile(r'\(exit ([\d|]+)\)')
 MARK_SKIP = re.compile(r'\(not run: ([^)]*)\)')
 MARK_SHOWS = re.compile(r'shows: ([^;]+)')
-INI = re.compile(r'^(\[[a-z_]+( [^\]]+)?\]|[a-z_]+ *=.*)$')
+INI = re.compile(r'^(\[[a-z_]+( [^\]]+)?\]|[a-z_]+ *=.*|;.*)$')
 
 
 def split_comment(line):
@@ -84,8 +85,11 @@ def readme_code(path):
     numbered, fenced, prev_blank = [], False, True
     for no, text in enumerate(lines, 1):
         if text.startswith('```'):
-            fenced = not fenced
+            # ```text marks shown output, not commands
+            fenced = 'output' if text.strip() == '```text' else (not fenced and 'code')
             numbered.append(None)
+            continue
+        if fenced == 'output':
             continue
         if fenced:
             numbered.append((no, text))
