@@ -299,6 +299,13 @@ static double quantity_value(struct alarm *a, const hs_alarm_input *in, int64_t 
         return density_fall(a, s ? s->density_ref_kg_m3 : NAN, in->state_t_ms, now_ms, margin);
     case HS_QTY_SAMPLE_AGE: return in->sample_age_s;
     case HS_QTY_BUS_DOWN: return in->bus_down < 0 ? NAN : (double)(in->bus_down != 0);
+    case HS_QTY_OUTPUT_UNCONFIRMED:
+        return in->output_unconfirmed < 0 ? NAN : (double)(in->output_unconfirmed != 0);
+    case HS_QTY_FEEDBACK_LOCKOUT:
+        return in->feedback_lockout < 0 ? NAN : (double)(in->feedback_lockout != 0);
+    case HS_QTY_MANUAL_UNKNOWN:
+        return in->manual_unknown < 0 ? NAN : (double)(in->manual_unknown != 0);
+    case HS_QTY_SENSORS_STUCK: return in->sensors_stuck;
     case HS_QTY_COUNT: break;
     }
     return NAN;

@@ -3,6 +3,7 @@
 #include <string.h>
 
 #include "hs_commission.h"
+#include "hs_conf_transfer.h"
 #include "hs_config.h"
 #include "hs_mqtt_secret.h"
 
@@ -30,6 +31,13 @@ int hs_check_run(const char *config_path)
     explicit_bzero(password, sizeof password);
     if (hs_mqtt_password_in_clear(m, config_path, err, sizeof err))
         fprintf(stderr, "warning: %s\n", err);
+    /* advice, not refusal: a site may have no manual signal wired */
+    for (size_t i = 0; i < site.n_transfers; i++)
+        if (site.transfers[i].actuate && site.transfers[i].manual_index < 0)
+            fprintf(stderr, "%s:%d: warning: [transfer %s]: actuate = yes without a manual "
+                    "signal: halostaged cannot tell when an operator runs the pump locally; "
+                    "wire the panel's local/remote switch and name it in manual\n",
+                    config_path, site.transfers[i].line, site.transfers[i].name);
     printf("%s: ok: site %s, %zu buses, %zu ponds, %zu signals, %zu feeds\n", config_path,
            site.site.name, site.n_buses, site.n_ponds, site.n_signals, site.n_feeds);
     hs_site_free(&site);

@@ -61,6 +61,12 @@ static const hs_key transfer_keys[] = {
             "longest continuous run; 0 = no limit"),
     KEY_DUR("feedback_timeout", T, feedback_timeout_ms, SEC_MS, 3600 * SEC_MS, "30s",
             HS_KEY_RELOADABLE, "run feedback must confirm within this, else alarm and stop"),
+    KEY_DUR("confirm_timeout", T, confirm_timeout_ms, 500, 60 * SEC_MS, "3s", HS_KEY_RELOADABLE,
+            "actuate: the device must confirm a pump command (read back) within this, else "
+            "alarm and the PLC heartbeat stops"),
+    KEY_I32("lockout_after", lockout_after, 0, 100, "3", HS_KEY_RELOADABLE,
+            "actuate: failed starts in a row (no run feedback) before the transfer locks out "
+            "until an operator acknowledges its feedback-lockout alarm (0 = never)"),
     KEY_BOOL("actuate", T, actuate, "no", 0,
              "yes: WRITE the pump output (opt-in; see the cautions). no: advise only"),
     KEY_NAME("bus", T, bus, 0, "bus of the pump output (needed with actuate = yes)"),
@@ -141,6 +147,46 @@ static void link_signal(hs_site *site, hs_cfg *cfg, size_t index, const char *ke
                      hs_site_signal_hint(site, name, hint, sizeof hint));
 }
 
+/* A signal an actuated transfer decides on must be read more often than it
+ * goes stale, or the pump follows the poll: good, stale, good, ... */
+static void check_poll_vs_stale(const hs_site *site, hs_cfg *cfg, size_t i, int signal)
+{
+    const hs_signal *g = &site->signals[signal];
+    if (g->bus_index < 0)
+        return;
+    const hs_bus *b = &site->buses[g->bus_index];
+    if (g->point.interval_ms > b->conf.stale_after_ms)
+        hs_cfg_error(cfg, where(cfg, i, "actuate"),
+                     "actuate: [signal %s] is polled every %lld ms but goes stale after %lld ms "
+                     "([bus %s] stale_after); an actuated transfer would start and stop with "
+                     "the polls: poll it more often or raise stale_after",
+                     g->name, (long long)g->point.interval_ms, (long long)b->conf.stale_after_ms,
+                     b->name);
+}
+
+/* What an actuated transfer needs before it may write a pump output. */
+static void check_actuated(const hs_site *site, hs_cfg *cfg, size_t i)
+{
+    const hs_transfer_conf *t = &site->transfers[i];
+    if (t->feedback[0] == '\0')
+        hs_cfg_error(cfg, where(cfg, i, "actuate"),
+                     "actuate = yes needs feedback (the pump's run signal): without it a "
+                     "start can never be confirmed");
+    if (t->heartbeat_address < 0)
+        hs_cfg_error(cfg, where(cfg, i, "actuate"),
+                     "actuate = yes needs heartbeat_address: the PLC's watchdog must be able "
+                     "to stop the pump when this daemon cannot");
+    for (size_t s = 0; s < site->n_signals; s++) {
+        const hs_signal *g = &site->signals[s];
+        int used = (g->pond_index >= 0 &&
+                    (g->pond_index == t->source_index || g->pond_index == t->dest_index)) ||
+                   (int)s == t->feedback_index || (int)s == t->manual_index ||
+                   (int)s == t->rain_index;
+        if (used)
+            check_poll_vs_stale(site, cfg, i, (int)s);
+    }
+}
+
 static void link_one(hs_site *site, hs_cfg *cfg, size_t i)
 {
     T *t = &site->transfers[i];
@@ -172,6 +218,11 @@ static void link_one(hs_site *site, hs_cfg *cfg, size_t i)
     link_signal(site, cfg, i, "feedback", t->feedback, &t->feedback_index);
     link_signal(site, cfg, i, "manual", t->manual, &t->manual_index);
     link_signal(site, cfg, i, "rain", t->rain, &t->rain_index);
+    if (hs_site_pond(site, t->name) >= 0)
+        hs_cfg_error(cfg, t->line, "[transfer %s]: a pond has that name too; the transfer's "
+                     "alarms are named after it, so give it another", t->name);
+    if (t->actuate)
+        check_actuated(site, cfg, i);
     if (t->source_index < 0 || t->dest_index < 0)
         return;
     struct hs_transfer_rule rule;
@@ -239,12 +290,34 @@ void hs_conf_transfer_rule(const hs_site *site, const hs_transfer_conf *t,
     rule->has_rain = t->rain_index >= 0;
     rule->has_manual = t->manual_index >= 0;
     rule->has_feedback = t->feedback_index >= 0;
+    rule->lockout_after = t->lockout_after;
+    /* a transfer decides on the best density source its pond is built with
+     * (DESIGN "Where the brine state comes from"); a fallback is not it */
+    rule->density_method = -1;
+    if (src != NULL && hs_site_signal(site, t->source_index, HS_Q_DENSITY) != NULL)
+        rule->density_method = HC_METHOD_DENSITOMETER;
+    else if (src != NULL && hs_site_signal(site, t->source_index, HS_Q_PRESSURE_UPPER) != NULL &&
+             hs_site_signal(site, t->source_index, HS_Q_LEVEL_PRESSURE) != NULL)
+        rule->density_method = HC_METHOD_HYDROSTATIC;
     /* Without a flow figure the mixing cannot be predicted: the band check
      * would block forever on a missing input, so it is left out. */
     if (isnan(t->rated_flow_m3_h)) {
         rule->dest_density_min_kg_m3 = NAN;
         rule->dest_density_max_kg_m3 = NAN;
     }
+}
+
+int hs_conf_transfer_same_output(const hs_site *sa, const hs_transfer_conf *a, const hs_site *sb,
+                                 const hs_transfer_conf *b)
+{
+    if (!a->actuate || !b->actuate || a->bus_index < 0 || b->bus_index < 0 ||
+        a->unit_id != b->unit_id || a->output != b->output ||
+        a->output_address != b->output_address)
+        return 0;
+    const hs_bus *x = &sa->buses[a->bus_index], *y = &sb->buses[b->bus_index];
+    return strcmp(x->name, y->name) == 0 && x->conf.kind == y->conf.kind &&
+           strcmp(x->conf.host, y->conf.host) == 0 && x->conf.port == y->conf.port &&
+           strcmp(x->conf.device, y->conf.device) == 0;
 }
 
 const hs_section_type hs_section_transfer = {

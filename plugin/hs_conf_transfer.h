@@ -33,6 +33,8 @@ typedef struct hs_transfer_conf {
     double rated_flow_m3_h;          /* NaN: unknown (no mixing prediction) */
     int64_t batch_ms;                /* run length the mixing prediction assumes */
     int64_t min_on_ms, min_off_ms, max_run_ms, feedback_timeout_ms;
+    int64_t confirm_timeout_ms;      /* an output command must be confirmed within this */
+    int32_t lockout_after;           /* failed starts in a row before the lockout; 0 never */
     bool actuate;
     /* the pump output (written only with actuate = yes) */
     char bus[HS_NAME_MAX];
@@ -53,6 +55,11 @@ typedef struct hs_transfer_conf {
     int64_t rain_window_ms;          /* gauge: rain counted over this window */
     double rain_threshold_m;         /* gauge: this much within the window blocks */
 } hs_transfer_conf;
+
+/* 1 when transfer a of site sa and transfer b of site sb both actuate the
+ * same output: same bus (name and endpoint), unit, kind and address. */
+int hs_conf_transfer_same_output(const hs_site *sa, const hs_transfer_conf *a, const hs_site *sb,
+                                 const hs_transfer_conf *b);
 
 /* The engine rule for transfer t of site (defaults from its ponds filled). */
 void hs_conf_transfer_rule(const hs_site *site, const hs_transfer_conf *t,

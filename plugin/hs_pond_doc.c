@@ -124,6 +124,13 @@ json_t *hs_pond_doc_json(const struct hs_pond_doc *d)
         rc |= put(o, "calibration_drift", json_null());
     }
     rc |= put(o, "note", text_or_null(d->note));
+    json_t *held = d->uncertain_alarms != NULL ? json_array() : json_null();
+    for (const char *r = d->uncertain_alarms; held != NULL && r != NULL && *r;) {
+        size_t n = strcspn(r, ",");
+        json_array_append_new(held, json_stringn(r, n));
+        r += n + (r[n] == ',');
+    }
+    rc |= put(o, "uncertain_alarms", held);
     rc |= put(o, "level_note", text_or_null(d->level_note));
     if (rc != 0) {
         json_decref(o);

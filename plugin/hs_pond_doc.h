@@ -37,6 +37,9 @@ struct hs_pond_doc {
     struct hs_hydro_report hydro;
     int hydro_known;               /* 0: no balance figures (calibration_drift null) */
     const char *note;              /* why there is no brine state; NULL none */
+    const char *uncertain_alarms;  /* "rule,rule": alarm rules whose limit the state
+                                      crosses only within 2u (uncertain-source);
+                                      NULL: not known to this outlet */
     const char *level_note;        /* why there is no level; NULL none */
 };
 

@@ -7,6 +7,7 @@
 #include <unistd.h>
 
 #include "hc_level.h"
+#include "hs_alarm_site.h"
 #include "hs_conf_alarm.h"
 #include "hs_conf_mqtt.h"
 #include "hs_conf_web.h"
@@ -18,44 +19,25 @@
 #define COMMANDS_EVERY_MS 1000 /* operator commands queued by the CLI */
 #define FLUSH_WAIT_MS 5000     /* at close: how long to wait for the broker */
 
-/* ---- built-in alarm rules: what every pond gets from its own limits ---- */
-
 static void add_rule(hs_runtime *rt, const char *pond, hs_rule_kind kind, const char *name,
                      double low, double high)
 {
-    hs_alarm_rule r;
-    hs_alarm_rule_default(&r, kind);
-    snprintf(r.name, sizeof r.name, "%s", name);
-    if (!isnan(low))
-        r.low = low;
-    if (!isnan(high))
-        r.high = high;
-    if (hs_alarm_rule_check(&r) != NULL)
-        return; /* a limit the pond does not have */
-    hs_alarm_add(rt->alarms, &r, pond);
+    hs_alarm_site_add_rule(rt->alarms, pond, kind, name, low, high);
 }
 
-static void add_alarm_rules(hs_runtime *rt)
+/* Each actuated transfer's output alarms; the alarm's "pond" is the
+ * transfer's name (names of ponds and transfers never collide). */
+static void add_transfer_alarm_rules(hs_runtime *rt)
 {
-    for (size_t i = 0; i < rt->site.n_ponds; i++) {
-        const hs_pond *p = &rt->site.ponds[i];
-        add_rule(rt, p->name, HS_RULE_LEVEL_HIGH, "level-high", NAN, p->level_max_m);
-        add_rule(rt, p->name, HS_RULE_LEVEL_LOW, "level-low", p->level_min_m, NAN);
-        if (isfinite(p->freeboard_m))
-            /* 5 cm below the dike crest: spill is imminent (common practice,
-             * no source) */
-            add_rule(rt, p->name, HS_RULE_LEVEL_HIGH_HIGH, "level-high-high", NAN,
-                     p->freeboard_m - 0.05);
-        add_rule(rt, p->name, HS_RULE_DENSITY_BAND, "density-band", p->density_in_kg_m3, NAN);
-        add_rule(rt, p->name, HS_RULE_SENSOR_STALE, "sensor-stale", NAN, NAN);
-        add_rule(rt, p->name, HS_RULE_BUS_DOWN, "bus-down", NAN, NAN);
-        add_rule(rt, p->name, HS_RULE_DENSITY_FALL, "density-fall", NAN, NAN);
-        if (p->role == HS_ROLE_INTAKE || p->role == HS_ROLE_CONCENTRATOR)
-            add_rule(rt, p->name, HS_RULE_NEAR_SATURATION, "near-saturation", NAN, NAN);
-        if (p->role == HS_ROLE_CRYSTALLISER) {
-            add_rule(rt, p->name, HS_RULE_GYPSUM_IN_FEED, "gypsum-in-feed", NAN, NAN);
-            add_rule(rt, p->name, HS_RULE_BITTERN_LIMIT, "bittern-limit", NAN, NAN);
-        }
+    for (size_t i = 0; i < rt->site.n_transfers; i++) {
+        const hs_transfer_conf *t = &rt->site.transfers[i];
+        if (!t->actuate)
+            continue;
+        add_rule(rt, t->name, HS_RULE_OUTPUT_UNCONFIRMED, "output-unconfirmed", NAN, NAN);
+        if (t->feedback_index >= 0 && t->lockout_after > 0)
+            add_rule(rt, t->name, HS_RULE_FEEDBACK_LOCKOUT, "feedback-lockout", NAN, NAN);
+        if (t->manual_index >= 0)
+            add_rule(rt, t->name, HS_RULE_MANUAL_UNKNOWN, "manual-unknown", NAN, NAN);
     }
 }
 
@@ -82,7 +64,8 @@ static int alarms_open(hs_runtime *rt)
     if (rt->alarms == NULL)
         return -1;
     hs_conf_alarms_apply(&rt->site, rt->alarms); /* first: a configured rule wins */
-    add_alarm_rules(rt);
+    hs_alarm_site_rules(&rt->site, rt->alarms);
+    add_transfer_alarm_rules(rt);
     hs_store_journal_latest(rt->store, restore_alarm, rt);
     return 0;
 }
@@ -300,10 +283,16 @@ static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms, int64_t mono
     in.depth_m = p->view.depth_m;
     in.sample_age_s = p->view.oldest_input_age_s;
     in.bus_down = 0;
-    for (size_t s = 0; s < rt->site.n_signals; s++)
-        if (rt->site.signals[s].pond_index == (int)i && rt->site.signals[s].bus_index >= 0 &&
-            rt->bus_down[rt->site.signals[s].bus_index])
+    in.sensors_stuck = 0.0;
+    for (size_t s = 0; s < rt->site.n_signals; s++) {
+        const hs_signal *g = &rt->site.signals[s];
+        if (g->pond_index != (int)i)
+            continue;
+        if (g->bus_index >= 0 && (rt->bus_down[g->bus_index] || hs_rt_device_down(rt, g)))
             in.bus_down = 1;
+        if (rt->readings[s].flat.stuck)
+            in.sensors_stuck += 1.0;
+    }
     hs_alarm_update(rt->alarms, rt->site.ponds[i].name, &in, now_ms, alarm_emit, rt);
     note_uncertain_alarms(rt, i);
     int changed = p->pub_mono_ms == 0 || p->view.t_ms != p->pub_t_ms ||
@@ -338,14 +327,20 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
     hs_rt_age_readings(rt, now);
     hs_rt_calib_refresh(rt, mono);
     int periodic = mono >= rt->next_eval_ms;
+    int fresh_input = 0; /* a pond of a transfer has new samples: decide now, not later */
     for (size_t i = 0; i < rt->site.n_ponds; i++)
-        if (rt->ponds[i].dirty || periodic)
+        if (rt->ponds[i].dirty || periodic) {
+            for (size_t k = 0; k < rt->site.n_transfers && rt->ponds[i].dirty; k++)
+                fresh_input |= rt->site.transfers[k].source_index == (int)i ||
+                               rt->site.transfers[k].dest_index == (int)i;
             evaluate_pond(rt, i, now, mono);
+        }
+    /* no transfer decides on a site that has not been read yet */
+    if (rt->warm && (periodic || fresh_input))
+        hs_rt_transfers_run(rt, mono, now);
+    hs_rt_outputs_tick(rt, hs_rt_mono_ms());
     if (periodic) {
         hs_alarm_tick(rt->alarms, now, alarm_emit, rt);
-        /* no transfer decides on a site that has not been read yet */
-        if (rt->warm)
-            hs_rt_transfers_run(rt, mono, now);
         rt->next_eval_ms = mono + EVAL_EVERY_MS;
         rt->cycles++;
         hs_rt_scada_beat(rt, now);
@@ -405,6 +400,10 @@ int hs_runtime_reload(hs_runtime *rt, const char *config_path)
                                            strcmp(om->password_file, nm->password_file) != 0 ||
                                            strcmp(om->ca_file, nm->ca_file) != 0 ||
                                            om->enabled != nm->enabled));
+    /* outputs belong to the site, not to a configuration: one the new file
+     * no longer drives (another address, removed, actuate = no) is stopped
+     * and confirmed before the new file takes over */
+    hs_rt_transfers_release(rt, &fresh);
     /* keep each transfer's timing memory across the reload, by name, so a
      * reload never restarts a pump's minimum off time */
     size_t n_old = rt->site.n_transfers;
@@ -415,7 +414,7 @@ int hs_runtime_reload(hs_runtime *rt, const char *config_path)
     rt->transfers = NULL;
     hs_rt_scada_close(rt); /* its map has the old site's shape */
     site_parts_free(rt);
-    hs_site_free(&rt->site);
+    hs_site old_site = rt->site; /* freed once the outputs are taken over */
     rt->site = fresh;
     hs_store_set_retention(rt->store, rt->site.site.raw_retention_ms,
                            rt->site.site.minute_retention_ms, rt->site.site.hour_retention_ms);
@@ -433,8 +432,11 @@ int hs_runtime_reload(hs_runtime *rt, const char *config_path)
         for (size_t j = 0; j < n_old; j++)
             if (strcmp(old_names[j], rt->site.transfers[i].name) == 0) {
                 rt->transfers[i].state = old[j].state;
-                rt->transfers[i].last_write = old[j].last_write;
+                rt->transfers[i].lockout_checked = old[j].lockout_checked;
             }
+    if (ok)
+        hs_rt_transfers_adopt(rt, &old_site, old, n_old);
+    hs_site_free(&old_site);
     free(old);
     free(old_names);
     rt->commands.engine = rt->alarms;

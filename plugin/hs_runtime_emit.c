@@ -50,6 +50,7 @@ void hs_rt_pond_doc(const hs_runtime *rt, size_t pond, struct hs_pond_doc *d)
     d->hydro.depth_m = p->view.depth_m; /* the reading, even when the balance is off */
     d->hydro_known = p->hydro_ok;
     d->note = !p->view.have_state && p->view.note[0] ? p->view.note : NULL;
+    d->uncertain_alarms = p->uncertain;
 }
 
 static json_t *state_object(hs_runtime *rt, size_t pond)

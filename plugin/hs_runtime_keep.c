@@ -47,7 +47,8 @@ static int exception(const hs_runtime *rt, size_t si, int64_t t_ms, double v, hs
     return fabs(v - k->v) > band;
 }
 
-void hs_rt_keep_sample(hs_runtime *rt, size_t si, int64_t t_ms, double v, hs_quality q)
+void hs_rt_keep_sample(hs_runtime *rt, size_t si, int64_t t_ms, double v, hs_quality q,
+                       const char *reason, int code)
 {
     if (rt->store == NULL || rt->keep == NULL)
         return;
@@ -72,7 +73,7 @@ void hs_rt_keep_sample(hs_runtime *rt, size_t si, int64_t t_ms, double v, hs_qua
     int full = rt->site.site.full_rate_window_ms > 0;
     if (!keep && !full)
         return;
-    if (hs_store_add_sample_rolled(rt->store, rt->site.signals[si].name, t_ms, v, q,
+    if (hs_store_add_sample_rolled(rt->store, rt->site.signals[si].name, t_ms, v, q, reason, code,
                                    HS_SAMPLE_ROLLED | (keep ? 0 : HS_SAMPLE_THIN)) != 0)
         hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
     if (keep) {

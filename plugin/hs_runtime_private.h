@@ -18,6 +18,7 @@
 #include "hs_hydro.h"
 #include "hs_lock.h"
 #include "hs_mb_image.h"
+#include "hs_output.h"
 #include "hs_publish.h"
 #include "hs_runtime.h"
 #include "hs_site.h"
@@ -42,8 +43,24 @@ struct hs_rt_transfer {
     struct hs_transfer_state state;
     struct hs_transfer_decision last;
     int have_last;
-    hs_pump_write last_write;     /* what was last written (HS_WRITE_NONE: nothing yet) */
-    int64_t last_write_ms;        /* monotonic time of that write */
+    /* the pump output as a command/feedback pair (hs_output.h); only for
+     * actuated transfers */
+    struct hs_output out;
+    int want;                     /* the decision for the output: -1 none, 0 STOP, 1 RUN */
+    int hands_off;                /* manual or manual unknown: never written */
+    int out_failed;               /* the output's command is not confirmed (alarm) */
+    int out_dropped;              /* a confirmed RUN was undone outside us: tell the engine */
+    /* the PLC heartbeat; the first transfer naming a (bus, unit, register)
+     * owns it, the others point at it */
+    int hb_owner;                 /* index of the owning transfer, -1 no heartbeat */
+    uint16_t hb_confirmed;        /* last value the device acknowledged (0 none) */
+    uint16_t hb_value;            /* value in flight */
+    uint32_t hb_seq;              /* its request, 0 none */
+    int64_t hb_asked_ms, hb_next_ms;
+    int hb_stopped;               /* counting stopped: the PLC watchdog takes over */
+    int lockout_checked;          /* the journal's lockout state was looked at */
+    int64_t still_running_log_ms; /* rate limit of the "still running" line */
+    unsigned still_running_quiet; /* lines left out since */
     int64_t rain_t[HS_RT_RAIN_SLOTS];   /* gauge history for the rain window */
     double rain_v[HS_RT_RAIN_SLOTS];
     unsigned rain_n, rain_head;
@@ -106,11 +123,12 @@ struct hs_runtime {
     hs_reading *readings;         /* per signal */
     struct hs_rt_keep *keep;      /* per signal */
     int *bus_down;                /* per bus: every point of it failing */
+    uint64_t (*units_down)[4];    /* per bus: unit ids down, as last logged */
+    int *slow_logged;             /* per bus: "cannot keep the poll interval" said */
     int warm;                     /* every bus has answered once or is known down */
 
     struct hs_rt_pond *ponds;     /* per pond */
     struct hs_rt_transfer *transfers; /* per transfer */
-    uint16_t heartbeat;
 
     hs_lock *lock;                /* one daemon per site (hs_lock.h) */
     hs_store *store;
@@ -151,6 +169,9 @@ size_t hs_rt_drain(hs_runtime *rt, int64_t now_ms);
 /* Marks readings older than their bus's stale limit stale; bus-down flags. */
 void hs_rt_age_readings(hs_runtime *rt, int64_t now_ms);
 /* Writes one register or coil through the bus's worker. 0 / -1. */
+/* 1 when the device (bus, unit id) that signal g is read from is down
+ * (hp_bus.h: no answer, only probed now). */
+int hs_rt_device_down(const hs_runtime *rt, const hs_signal *g);
 int hs_rt_write(hs_runtime *rt, int bus, uint8_t unit_id, int coil, uint16_t address,
                 uint16_t value);
 
@@ -159,13 +180,25 @@ void hs_rt_schedule_tick(hs_runtime *rt, int64_t mono_ms, int64_t now_ms);
 
 /* hs_runtime_keep.c: one sample to the store, kept raw by exception and
  * counted in its minute's rollup; flush writes the open minutes. */
-void hs_rt_keep_sample(hs_runtime *rt, size_t signal, int64_t t_ms, double value, hs_quality q);
+void hs_rt_keep_sample(hs_runtime *rt, size_t signal, int64_t t_ms, double value, hs_quality q,
+                       const char *reason, int code);
 void hs_rt_keep_flush(hs_runtime *rt);
 
 /* hs_runtime_transfer.c */
 int hs_rt_transfers_init(hs_runtime *rt);
 void hs_rt_transfers_run(hs_runtime *rt, int64_t mono_ms, int64_t now_ms);
 void hs_rt_transfers_safe(hs_runtime *rt);
+/* Every tick: carries each actuated transfer's decision to its output
+ * (confirmed commands, hs_output.h) and counts the PLC heartbeats. */
+void hs_rt_outputs_tick(hs_runtime *rt, int64_t mono_ms);
+/* Before a reload to fresh: every actuated output that fresh no longer
+ * actuates at the same address is driven to STOP and confirmed (manual
+ * outputs are left alone). */
+void hs_rt_transfers_release(hs_runtime *rt, const hs_site *fresh);
+/* After a reload: the output states of outputs that stayed (same bus, unit,
+ * kind and address) are taken over from old (n_old transfers of old_site). */
+void hs_rt_transfers_adopt(hs_runtime *rt, const hs_site *old_site,
+                           const struct hs_rt_transfer *old, size_t n_old);
 
 /* hs_runtime_emit.c: values to the host, state and advice to MQTT */
 void hs_rt_emit_pond(hs_runtime *rt, size_t pond, int64_t now_ms);

@@ -13,7 +13,7 @@
 #include "hs_log.h"
 #include "hs_runtime_private.h"
 
-#define REASSERT_MS 30000 /* an actuated output is written again at least this often */
+#define STILL_RUNNING_LOG_MS 60000 /* a repeated "still running" line at most this often */
 
 int hs_rt_transfers_init(hs_runtime *rt)
 {
@@ -23,7 +23,19 @@ int hs_rt_transfers_init(hs_runtime *rt)
         hs_conf_transfer_rule(&rt->site, &rt->site.transfers[i], &x->rule);
         hs_transfer_state_init(&x->state);
         x->predicted_mix_kg_m3 = NAN;
+        hs_output_init(&x->out);
+        x->want = -1;
         const hs_transfer_conf *t = &rt->site.transfers[i];
+        /* the first transfer naming a heartbeat register owns its count */
+        x->hb_owner = -1;
+        for (size_t j = 0; t->actuate && t->heartbeat_address >= 0 && j <= i; j++) {
+            const hs_transfer_conf *o = &rt->site.transfers[j];
+            if (o->actuate && o->bus_index == t->bus_index && o->unit_id == t->unit_id &&
+                o->heartbeat_address == t->heartbeat_address) {
+                x->hb_owner = (int)j;
+                break;
+            }
+        }
         if (t->actuate)
             hs_log(HSP_LOG_WARNING, "[transfer %s]: actuate = yes: this daemon WRITES the pump "
                    "output (%s %u on [bus %s]); the PLC must keep its own interlocks",
@@ -170,30 +182,68 @@ static int buses_up(const hs_runtime *rt, const hs_transfer_conf *t)
     return 1;
 }
 
-static void write_output(hs_runtime *rt, size_t i, hs_pump_write w, int64_t mono_ms)
+/* The feedback-lockout alarm of a transfer: its journal state after a
+ * restart re-latches the lockout; an operator's acknowledgement resets it
+ * (`halostage ack`, the MQTT command, any client of the command path). */
+static hs_alarm_state lockout_alarm_state(const hs_runtime *rt, const char *transfer, int *found)
+{
+    *found = 0;
+    for (size_t k = 0; k < hs_alarm_count(rt->alarms); k++) {
+        hs_alarm_info info;
+        if (hs_alarm_get(rt->alarms, k, &info) == 0 && strcmp(info.pond, transfer) == 0 &&
+            strcmp(info.rule, "feedback-lockout") == 0) {
+            *found = 1;
+            return info.state;
+        }
+    }
+    return HS_ALARM_NORMAL;
+}
+
+static void lockout_by_operator(hs_runtime *rt, size_t i)
 {
     const hs_transfer_conf *t = &rt->site.transfers[i];
     struct hs_rt_transfer *x = &rt->transfers[i];
-    if (w == HS_WRITE_NONE)
+    int found;
+    hs_alarm_state st = lockout_alarm_state(rt, t->name, &found);
+    if (!found)
         return;
-    if (w == x->last_write && mono_ms - x->last_write_ms < REASSERT_MS)
-        return;
-    int coil = t->output == HS_OUTPUT_COIL;
-    uint16_t value = w == HS_WRITE_ON ? (coil ? 1 : t->on_value) : (coil ? 0 : t->off_value);
-    if (hs_rt_write(rt, t->bus_index, t->unit_id, coil, t->output_address, value) != 0) {
-        hs_log(HSP_LOG_ERR, "[transfer %s]: cannot queue the pump output write", t->name);
+    if (!x->lockout_checked) {
+        x->lockout_checked = 1;
+        if (st == HS_ALARM_UNACKED && !x->state.locked_out) {
+            x->state.locked_out = 1; /* locked before the restart, never reset */
+            hs_log(HSP_LOG_WARNING, "[transfer %s]: still locked out after failed starts "
+                   "(journal); acknowledge its feedback-lockout alarm to reset", t->name);
+        }
         return;
     }
-    if (w != x->last_write)
-        hs_log(HSP_LOG_NOTICE, "[transfer %s]: pump output %s written", t->name,
-               w == HS_WRITE_ON ? "RUN" : "STOP");
-    x->last_write = w;
-    x->last_write_ms = mono_ms;
+    if (x->state.locked_out && st == HS_ALARM_ACKED) {
+        hs_transfer_reset_lockout(&x->state);
+        hs_log(HSP_LOG_NOTICE, "[transfer %s]: feedback lockout reset by an operator's "
+               "acknowledgement", t->name);
+    }
+}
+
+static void emit_alarm(void *ctx, const hs_alarm_event *ev)
+{
+    hs_rt_emit_alarm(ctx, ev);
+}
+
+static void transfer_alarms(hs_runtime *rt, size_t i, int64_t now_ms)
+{
+    const hs_transfer_conf *t = &rt->site.transfers[i];
+    struct hs_rt_transfer *x = &rt->transfers[i];
+    if (!t->actuate)
+        return;
+    hs_alarm_input in;
+    hs_alarm_input_clear(&in);
+    in.output_unconfirmed = x->out_failed;
+    in.feedback_lockout = x->state.locked_out;
+    in.manual_unknown = (x->last.reasons & HS_XR_MANUAL_UNKNOWN) != 0;
+    hs_alarm_update(rt->alarms, t->name, &in, now_ms, emit_alarm, rt);
 }
 
 void hs_rt_transfers_run(hs_runtime *rt, int64_t mono_ms, int64_t now_ms)
 {
-    rt->heartbeat = hs_transfer_heartbeat_next(rt->heartbeat);
     for (size_t i = 0; i < rt->site.n_transfers; i++) {
         const hs_transfer_conf *t = &rt->site.transfers[i];
         struct hs_rt_transfer *x = &rt->transfers[i];
@@ -217,6 +267,12 @@ void hs_rt_transfers_run(hs_runtime *rt, int64_t mono_ms, int64_t now_ms)
         in.manual = from_reading(rt, t->manual_index);
         in.run_feedback = from_reading(rt, t->feedback_index);
         in.bus_up = buses_up(rt, t);
+        in.source_method = sv->have_state ? (int)sv->state.method : -1;
+        in.output_unconfirmed = x->out_failed;
+        in.output_dropped = x->out_dropped;
+        x->out_dropped = 0;
+        if (t->actuate)
+            lockout_by_operator(rt, i);
 
         struct hs_transfer_decision d;
         hs_transfer_decide(&x->rule, &x->state, &in, x->have_last ? &x->last : NULL, &d);
@@ -230,11 +286,23 @@ void hs_rt_transfers_run(hs_runtime *rt, int64_t mono_ms, int64_t now_ms)
                    "[transfer %s]: %s (%s)", t->name, hs_advice_name(d.advice), reasons);
             hs_rt_emit_transfer(rt, i, now_ms);
         }
-        if (d.feedback_alarm)
-            hs_log(HSP_LOG_ERR, "[transfer %s]: %s", t->name,
-                   d.reasons & HS_XR_PUMP_STILL_RUNNING
-                       ? hs_transfer_reason_text(HS_XR_PUMP_STILL_RUNNING)
-                       : hs_transfer_reason_text(HS_XR_NO_RUN_FEEDBACK));
+        if (d.feedback_alarm && (d.reasons & HS_XR_PUMP_STILL_RUNNING)) {
+            /* the same fault every cycle: one line a minute, with a count */
+            if (mono_ms >= x->still_running_log_ms) {
+                hs_log(HSP_LOG_ERR, "[transfer %s]: %s%s", t->name,
+                       hs_transfer_reason_text(HS_XR_PUMP_STILL_RUNNING),
+                       x->still_running_quiet ? " (repeated; lines left out since the last)"
+                                              : "");
+                x->still_running_log_ms = mono_ms + STILL_RUNNING_LOG_MS;
+                x->still_running_quiet = 0;
+            } else {
+                x->still_running_quiet++;
+            }
+        } else if (d.feedback_alarm) {
+            hs_log(HSP_LOG_ERR, "[transfer %s]: %s (%d failed start%s in a row)", t->name,
+                   hs_transfer_reason_text(HS_XR_NO_RUN_FEEDBACK), x->state.failed_starts,
+                   x->state.failed_starts == 1 ? "" : "s");
+        }
         /* say once per run that the pump confirmed: the operator's proof
          * that the command reached the plant */
         if (!d.pump_on) {
@@ -245,30 +313,15 @@ void hs_rt_transfers_run(hs_runtime *rt, int64_t mono_ms, int64_t now_ms)
             hs_log(HSP_LOG_NOTICE, "[transfer %s]: run feedback confirms the pump is running",
                    t->name);
         }
-        write_output(rt, i, d.write, mono_ms);
-        if (t->actuate && t->heartbeat_address >= 0 && t->bus_index >= 0)
-            hs_rt_write(rt, t->bus_index, t->unit_id, 0, (uint16_t)t->heartbeat_address,
-                        rt->heartbeat);
-    }
-}
-
-void hs_rt_transfers_safe(hs_runtime *rt)
-{
-    for (size_t i = 0; rt->transfers != NULL && i < rt->site.n_transfers; i++) {
-        const hs_transfer_conf *t = &rt->site.transfers[i];
-        struct hs_xfer_input manual = from_reading(rt, t->manual_index);
-        if (hs_transfer_safe_write(&rt->transfers[i].rule, &manual) != HS_WRITE_OFF) {
-            if (t->actuate)
-                hs_log(HSP_LOG_NOTICE, "[transfer %s]: pump output left as it is at shutdown: "
-                       "the pump is in manual or its manual signal is unknown", t->name);
-            continue;
+        if (d.lockout_alarm)
+            hs_log(HSP_LOG_ERR, "[transfer %s]: %s after %d failed starts; acknowledge its "
+                   "feedback-lockout alarm to reset", t->name,
+                   hs_transfer_reason_text(HS_XR_LOCKOUT), x->state.failed_starts);
+        if (t->actuate) {
+            x->hands_off = d.write == HS_WRITE_NONE;
+            if (d.write != HS_WRITE_NONE)
+                x->want = d.write == HS_WRITE_ON ? 1 : 0;
         }
-        int coil = t->output == HS_OUTPUT_COIL;
-        if (hs_rt_write(rt, t->bus_index, t->unit_id, coil, t->output_address,
-                        coil ? 0 : t->off_value) == 0)
-            hs_log(HSP_LOG_NOTICE, "[transfer %s]: pump output set to STOP for shutdown", t->name);
-        else
-            hs_log(HSP_LOG_ERR, "[transfer %s]: could not set the pump output to STOP; the "
-                   "PLC heartbeat watchdog must stop it", t->name);
+        transfer_alarms(rt, i, now_ms);
     }
 }

@@ -29,6 +29,8 @@ typedef struct hs_store hs_store;
 
 /* Sample quality, ordered so that a larger number is worse ("worst quality"
  * of a rollup is the maximum). */
+#define HS_REASON_MAX 24
+
 typedef enum {
     HS_QUALITY_GOOD = 0,
     HS_QUALITY_UNCERTAIN = 1, /* e.g. outside the sensor's span, extrapolated */
@@ -105,6 +107,12 @@ int hs_store_commit_due(hs_store *st, int due);
 /* One raw sample of signal "POND.QUANTITY" (the config's signal name). */
 int hs_store_add_sample(hs_store *st, const char *signal, int64_t t_ms, double value,
                         hs_quality quality);
+/* The same with why it is not good: reason ("timeout", "exception",
+ * "out-of-range", "flatline", ...; NULL or "" for none, at most
+ * HS_REASON_MAX - 1 characters kept) and the Modbus exception code or errno
+ * behind it (0 = none). */
+int hs_store_add_sample_why(hs_store *st, const char *signal, int64_t t_ms, double value,
+                            hs_quality quality, const char *reason, int code);
 
 /* The daemon's way: every sample is counted in its minute's rollup as it
  * comes in (hs_store_add_rollup, one call per minute with the minute's n,
@@ -114,7 +122,7 @@ int hs_store_add_sample(hs_store *st, const char *signal, int64_t t_ms, double v
 #define HS_SAMPLE_ROLLED 1 /* already counted in its minute's rollup */
 #define HS_SAMPLE_THIN 2   /* not an exception: deleted once older than the full-rate window */
 int hs_store_add_sample_rolled(hs_store *st, const char *signal, int64_t t_ms, double value,
-                               hs_quality quality, int flags);
+                               hs_quality quality, const char *reason, int code, int flags);
 /* The full-rate window: HS_SAMPLE_THIN rows older than this are deleted by
  * maintenance (0: they are kept as long as the rest). */
 void hs_store_set_full_rate_window(hs_store *st, int64_t window_ms);
@@ -251,6 +259,8 @@ typedef struct {
     int64_t t_ms;        /* start of the bucket, or the raw sample's time */
     double min, mean, max;
     int64_t count;
+    char reason[HS_REASON_MAX]; /* raw sample only: why it is not good, "" none */
+    int code;                   /* raw sample only: exception code or errno, 0 none */
     hs_quality worst;
 } hs_point;
 

@@ -30,7 +30,7 @@ static int step_write(hs_store *st, sqlite3_stmt *s, const char *what)
 int hs_store_add_sample(hs_store *st, const char *signal, int64_t t_ms, double value,
                         hs_quality quality)
 {
-    return hs_store_add_sample_rolled(st, signal, t_ms, value, quality, 0);
+    return hs_store_add_sample_why(st, signal, t_ms, value, quality, NULL, 0);
 }
 
 int hs_store_add_rollup(hs_store *st, const char *signal, int64_t minute_ms, int64_t n,
@@ -64,8 +64,14 @@ int hs_store_add_rollup(hs_store *st, const char *signal, int64_t minute_ms, int
     return rc == SQLITE_DONE ? hs_store_wrote(st) : hs_store_fail_db(st, "adding a rollup");
 }
 
+int hs_store_add_sample_why(hs_store *st, const char *signal, int64_t t_ms, double value,
+                            hs_quality quality, const char *reason, int code)
+{
+    return hs_store_add_sample_rolled(st, signal, t_ms, value, quality, reason, code, 0);
+}
+
 int hs_store_add_sample_rolled(hs_store *st, const char *signal, int64_t t_ms, double value,
-                               hs_quality quality, int flags)
+                               hs_quality quality, const char *reason, int code, int flags)
 {
     if (signal == NULL || *signal == '\0' || (unsigned)quality >= HS_QUALITY_COUNT)
         return hs_store_fail(st, "sample: empty signal name or invalid quality");
@@ -81,8 +87,16 @@ int hs_store_add_sample_rolled(hs_store *st, const char *signal, int64_t t_ms, d
     sqlite3_bind_int64(s, 2, t_ms);
     hs_bind_num(s, 3, value);
     sqlite3_bind_int(s, 4, (int)quality);
-    sqlite3_bind_int(s, 5, (flags & HS_SAMPLE_ROLLED) != 0);
-    sqlite3_bind_int(s, 6, (flags & HS_SAMPLE_THIN) != 0);
+    if (reason != NULL && *reason != '\0')
+        sqlite3_bind_text(s, 5, reason, (int)strnlen(reason, HS_REASON_MAX - 1), SQLITE_TRANSIENT);
+    else
+        sqlite3_bind_null(s, 5);
+    if (code != 0)
+        sqlite3_bind_int(s, 6, code);
+    else
+        sqlite3_bind_null(s, 6);
+    sqlite3_bind_int(s, 7, (flags & HS_SAMPLE_ROLLED) != 0);
+    sqlite3_bind_int(s, 8, (flags & HS_SAMPLE_THIN) != 0);
     return step_write(st, s, "adding a sample");
 }
 

@@ -218,9 +218,11 @@ static unsigned interlocks(const struct hs_transfer_rule *rule, struct hs_transf
 /* Run-feedback supervision, only where we command the pump. */
 static unsigned supervise_feedback(const struct hs_transfer_rule *rule,
                                    struct hs_transfer_state *state,
-                                   const struct hs_transfer_inputs *in, int *alarm,
-                                   int *lockout_alarm)
+                                   const struct hs_transfer_inputs *in, unsigned reasons,
+                                   int *alarm, int *lockout_alarm)
 {
+    if (reasons & (HS_XR_MANUAL_OVERRIDE | HS_XR_MANUAL_UNKNOWN))
+        return 0; /* an operator drives the pump (or we cannot tell): nothing to supervise */
     if (!rule->actuate || !rule->has_feedback || in->run_feedback.quality != HS_XQ_GOOD ||
         !isfinite(in->run_feedback.value))
         return 0;
@@ -267,10 +269,20 @@ void hs_transfer_decide(const struct hs_transfer_rule *rule, struct hs_transfer_
 
     int density_ok;
     unsigned reasons = interlocks(rule, state, in, &density_ok);
-    reasons |= supervise_feedback(rule, state, in, &out->feedback_alarm, &out->lockout_alarm);
+    reasons |= supervise_feedback(rule, state, in, reasons, &out->feedback_alarm,
+                                  &out->lockout_alarm);
     if (in->output_dropped && state->running) {
+        /* the PLC or a panel stopped our pump: not ours to undo, and it
+         * counts as a failed start, so a pump stopped again and again locks
+         * out instead of being restarted after every minimum off time */
         int64_t rest = rule->min_off_ms > 0 ? rule->min_off_ms : rule->feedback_timeout_ms;
         latch(state, HS_XR_OUTPUT_DROPPED, now + rest);
+        state->failed_starts++;
+        if (rule->lockout_after > 0 && state->failed_starts >= rule->lockout_after &&
+            !state->locked_out) {
+            state->locked_out = 1;
+            out->lockout_alarm = 1;
+        }
     }
     if (state->locked_out)
         reasons |= HS_XR_LOCKOUT;

@@ -7,8 +7,10 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/socket.h>
 
 #include "hp_bus.h"
+#include "hp_outcmd.h"
 #include "hp_plan.h"
 #include "hp_time.h"
 
@@ -16,17 +18,6 @@
 #define PROBE_INTERVAL_DEFAULT_MS 30000
 #define UNITS 256
 #define STALE_CHECK_MS 1000
-#define WRITES_MAX 32          /* distinct outputs with a write waiting */
-#define WRITE_MAX_AGE_MS 10000 /* an output write older than this is dropped, never
-                                * carried out late (a pump command must be current) */
-
-typedef struct {
-    uint8_t unit_id;
-    bool coil;
-    uint16_t address;
-    uint16_t value;
-    int64_t queued_ms; /* monotonic */
-} pending_write;
 
 /* Health of one device (unit id) of the bus; see the policy in hp_bus.h. */
 typedef struct {
@@ -47,8 +38,7 @@ struct hp_bus {
     pthread_cond_t wake;
     bool stop;                   /* under mu */
     hp_bus_stats stats;          /* under mu */
-    pending_write writes[WRITES_MAX]; /* under mu: latest value per output */
-    size_t n_writes;             /* under mu */
+    hp_outcmd *cmds;             /* output commands, ahead of reads (own lock) */
     /* worker-owned */
     hp_point *points;            /* owned copy, n */
     size_t n;
@@ -57,6 +47,7 @@ struct hp_bus {
     unsigned backoff_step;
     int64_t reconnect_at;
     unsigned seed;
+    uint16_t tcp_tid;            /* our own transaction ids (tcp_read) */
     device_health dev[UNITS];    /* by unit id */
     unsigned n_present;          /* devices with points */
     int64_t probe_interval_ms;
@@ -86,7 +77,7 @@ static void sleep_until(hp_bus *b, int64_t mono_ms)
     pthread_mutex_lock(&b->mu);
     /* waiting writes wake a connected worker; a disconnected one keeps its
      * reconnect schedule (the writes wait or expire) */
-    while (!b->stop && !(b->connected && b->n_writes > 0) && hp_mono_ms() < mono_ms)
+    while (!b->stop && !(b->connected && hp_outcmd_pending(b->cmds)) && hp_mono_ms() < mono_ms)
         if (pthread_cond_timedwait(&b->wake, &b->mu, &ts) == ETIMEDOUT)
             break;
     pthread_mutex_unlock(&b->mu);
@@ -202,6 +193,64 @@ static bool link_error(int e)
            e == ENOTCONN || e == ECONNABORTED || e == EIO;
 }
 
+/* Read Holding/Input Registers over TCP with our own MBAP header, because
+ * libmodbus 3.1.6 checks a TCP reply's transaction and protocol id but not
+ * its unit id: behind a serial gateway a reply from the wrong unit would
+ * pass. libmodbus still receives the frame (its timeouts and length rules,
+ * modbus_receive_confirmation); every field is checked here against what
+ * was asked (Modbus Messaging on TCP/IP Implementation Guide v1.0b §3.1.3
+ * MBAP header; Modbus Application Protocol v1.1b §6.3/§6.4, §7 exceptions).
+ * Returns the registers read (rd->count), or -1 with errno: the link's,
+ * MODBUS_ENOBASE + exception code, EMBBADSLAVE (wrong unit id) or
+ * EMBBADDATA (anything else that does not match). */
+static int tcp_read(hp_bus *b, const hp_read *rd, uint16_t *regs)
+{
+    uint8_t req[12], rsp[MODBUS_TCP_MAX_ADU_LENGTH];
+    uint8_t fc = rd->table == HP_TABLE_INPUT ? 0x04 : 0x03;
+    uint16_t tid = ++b->tcp_tid;
+    req[0] = (uint8_t)(tid >> 8);
+    req[1] = (uint8_t)tid;
+    req[2] = req[3] = 0;            /* protocol id: Modbus */
+    req[4] = 0;
+    req[5] = 6;                     /* unit id + 5 PDU bytes follow */
+    req[6] = rd->unit_id;
+    req[7] = fc;
+    req[8] = (uint8_t)(rd->start >> 8);
+    req[9] = (uint8_t)rd->start;
+    req[10] = (uint8_t)(rd->count >> 8);
+    req[11] = (uint8_t)rd->count;
+    int fd = modbus_get_socket(b->ctx);
+    if (fd < 0 || send(fd, req, sizeof req, MSG_NOSIGNAL) != (ssize_t)sizeof req) {
+        if (fd < 0 || errno == 0)
+            errno = EBADF;
+        return -1;
+    }
+    int n = modbus_receive_confirmation(b->ctx, rsp);
+    if (n < 0)
+        return -1;
+    if (n < 9 || ((uint16_t)((uint16_t)rsp[0] << 8) | rsp[1]) != tid || rsp[2] != 0 ||
+        rsp[3] != 0) {
+        errno = EMBBADDATA; /* a stale or foreign reply */
+        return -1;
+    }
+    if (rsp[6] != rd->unit_id) {
+        errno = EMBBADSLAVE;
+        return -1;
+    }
+    if (rsp[7] == (fc | 0x80)) {
+        errno = rsp[8] >= 1 && rsp[8] <= MODBUS_EXCEPTION_GATEWAY_TARGET
+                    ? MODBUS_ENOBASE + rsp[8] : EMBBADEXC;
+        return -1;
+    }
+    if (rsp[7] != fc || rsp[8] != 2u * rd->count || n != 9 + 2 * rd->count) {
+        errno = EMBBADDATA;
+        return -1;
+    }
+    for (uint16_t i = 0; i < rd->count; i++)
+        regs[i] = (uint16_t)(((uint16_t)rsp[9 + 2 * i] << 8) | rsp[10 + 2 * i]);
+    return rd->count;
+}
+
 /* One read of a block: 1 + retries attempts, or a single one for a probe of
  * a device that is down. */
 static read_result do_read(hp_bus *b, const hp_read *rd, bool probe)
@@ -216,7 +265,8 @@ static read_result do_read(hp_bus *b, const hp_read *rd, bool probe)
         if (stopping(b))
             break;
         modbus_set_slave(b->ctx, rd->unit_id);
-        int rc = rd->table == HP_TABLE_INPUT
+        int rc = b->conf.kind == HP_BUS_TCP ? tcp_read(b, rd, regs)
+                 : rd->table == HP_TABLE_INPUT
                      ? modbus_read_input_registers(b->ctx, rd->start, rd->count, regs)
                      : modbus_read_registers(b->ctx, rd->start, rd->count, regs);
         err = errno;
@@ -285,6 +335,8 @@ static void fail_points(hp_bus *b, const uint32_t *which, size_t n, int err)
         emit_failure(b, which[i], err, 0);
 }
 
+static void do_writes(hp_bus *b);
+
 static void run_cycle(hp_bus *b, size_t n_due, int64_t started)
 {
     long nr = hp_plan(b->points, b->which, n_due, b->conf.max_registers, b->conf.max_gap,
@@ -298,6 +350,14 @@ static void run_cycle(hp_bus *b, size_t n_due, int64_t started)
     bool timed_out = false;
     for (long r = 0; r < nr; r++) {
         const hp_read *rd = &b->reads[r];
+        do_writes(b); /* output commands go ahead of every queued read */
+        if (!b->connected) {
+            /* a command found the link broken: this read and the rest fail
+             * now (the reconnect is already scheduled) */
+            for (long q = r; q < nr; q++)
+                not_asked(b, &b->reads[q], ECONNRESET);
+            break;
+        }
         device_health *d = &b->dev[rd->unit_id];
         bool probe = d->down;
         if (d->silent || (d->down && hp_mono_ms() < d->probe_at)) {
@@ -331,41 +391,23 @@ static void run_cycle(hp_bus *b, size_t n_due, int64_t started)
     pthread_mutex_unlock(&b->mu);
 }
 
-/* Carries out the waiting output writes (Modbus Application Protocol v1.1b
- * §6.5 Write Single Coil, §6.6 Write Single Register), oldest first. */
+/* Carries out the waiting output commands (hp_outcmd.h) before anything
+ * else on the bus: called before every read transaction. */
 static void do_writes(hp_bus *b)
 {
-    pending_write w[WRITES_MAX];
+    if (!b->connected || !hp_outcmd_pending(b->cmds))
+        return;
+    uint64_t transactions = 0, failures = 0;
+    int broken = hp_outcmd_run(b->cmds, b->ctx, &transactions, &failures);
     pthread_mutex_lock(&b->mu);
-    size_t n = b->n_writes;
-    memcpy(w, b->writes, n * sizeof w[0]);
-    b->n_writes = 0;
+    b->stats.transactions += transactions;
+    b->stats.writes += transactions - failures;
+    b->stats.write_failures += failures;
+    if (broken)
+        b->stats.last_errno = broken;
     pthread_mutex_unlock(&b->mu);
-    for (size_t i = 0; i < n; i++) {
-        if (hp_mono_ms() - w[i].queued_ms > WRITE_MAX_AGE_MS) {
-            stat_add(b, &b->stats.failures, 1, ETIMEDOUT);
-            continue;
-        }
-        modbus_set_slave(b->ctx, w[i].unit_id);
-        int rc = w[i].coil ? modbus_write_bit(b->ctx, w[i].address, w[i].value ? 1 : 0)
-                           : modbus_write_register(b->ctx, w[i].address, w[i].value);
-        stat_add(b, &b->stats.transactions, 1, 0);
-        if (rc != 1) {
-            int e = errno;
-            stat_add(b, &b->stats.failures, 1, e);
-            pthread_mutex_lock(&b->mu);
-            b->stats.write_failures++;
-            pthread_mutex_unlock(&b->mu);
-            if (link_error(e)) {
-                schedule_reconnect(b);
-                return; /* the rest are dropped; the owner writes them again */
-            }
-        } else {
-            pthread_mutex_lock(&b->mu);
-            b->stats.writes++;
-            pthread_mutex_unlock(&b->mu);
-        }
-    }
+    if (broken)
+        schedule_reconnect(b);
 }
 
 static void *worker(void *arg)
@@ -428,7 +470,7 @@ static void *worker(void *arg)
      * shutdown): carry out what is waiting before the context closes. */
     if (!b->connected && !b->once) {
         pthread_mutex_lock(&b->mu);
-        bool any = b->n_writes > 0;
+        bool any = hp_outcmd_pending(b->cmds);
         pthread_mutex_unlock(&b->mu);
         if (any)
             (void)connect_bus(b);
@@ -440,30 +482,33 @@ static void *worker(void *arg)
 
 int hp_bus_write(hp_bus *b, uint8_t unit_id, bool coil, uint16_t address, uint16_t value)
 {
+    uint32_t seq;
+    return hp_bus_command(b, unit_id, coil, address, HP_OUTCMD_WRITE, value, &seq);
+}
+
+int hp_bus_command(hp_bus *b, uint8_t unit_id, bool coil, uint16_t address,
+                   hp_outcmd_kind kind, uint16_t value, uint32_t *seq)
+{
     if (!b) {
         errno = EINVAL;
         return -1;
     }
-    int rc = 0;
+    if (hp_outcmd_post(b->cmds, unit_id, coil, address, kind, value, seq) != 0)
+        return -1;
     pthread_mutex_lock(&b->mu);
-    size_t i = 0;
-    while (i < b->n_writes && !(b->writes[i].unit_id == unit_id && b->writes[i].coil == coil &&
-                                b->writes[i].address == address))
-        i++;
-    if (i == b->n_writes) {
-        if (b->n_writes == WRITES_MAX) {
-            errno = ENOBUFS;
-            rc = -1;
-        } else {
-            b->n_writes++;
-        }
-    }
-    if (rc == 0) {
-        b->writes[i] = (pending_write){unit_id, coil, address, value, hp_mono_ms()};
-        pthread_cond_broadcast(&b->wake);
-    }
+    pthread_cond_broadcast(&b->wake);
     pthread_mutex_unlock(&b->mu);
-    return rc;
+    return 0;
+}
+
+int hp_bus_command_result(hp_bus *b, uint8_t unit_id, bool coil, uint16_t address,
+                          hp_outcmd_result *out)
+{
+    if (!b) {
+        errno = EINVAL;
+        return -1;
+    }
+    return hp_outcmd_result_get(b->cmds, unit_id, coil, address, out);
 }
 
 static modbus_t *new_context(const hp_bus_conf *c)
@@ -504,6 +549,7 @@ static void free_bus(hp_bus *b)
     free(b->which);
     free(b->order);
     free(b->reads);
+    hp_outcmd_free(b->cmds);
     pthread_cond_destroy(&b->wake);
     pthread_mutex_destroy(&b->mu);
     free(b);
@@ -545,7 +591,8 @@ hp_bus *hp_bus_start(const hp_bus_conf *conf, const hp_point *points, size_t n,
     b->order = calloc(m, sizeof *b->order);
     b->reads = calloc(m, sizeof *b->reads);
     b->ctx = new_context(conf);
-    if (!b->points || !b->next_due || !b->last_good || !b->last_value || !b->last_wall ||
+    b->cmds = hp_outcmd_new();
+    if (!b->cmds || !b->points || !b->next_due || !b->last_good || !b->last_value || !b->last_wall ||
         !b->stale_sent || !b->which || !b->order || !b->reads || !b->ctx) {
         int e = errno ? errno : ENOMEM;
         free_bus(b);

@@ -39,6 +39,7 @@
 #include <stdint.h>
 
 #include "hp_bus_conf.h"
+#include "hp_outcmd.h"
 #include "hp_point.h"
 #include "hp_queue.h"
 
@@ -81,12 +82,20 @@ void hp_bus_join(hp_bus *bus);
 void hp_bus_stop(hp_bus *bus);
 void hp_bus_get_stats(hp_bus *bus, hp_bus_stats *out);
 
-/* Asks the worker to write one coil (value 0/1) or holding register at its
- * next chance (it wakes for it). A newer write to the same output replaces
- * one still waiting; a write still waiting after 10 s is dropped, never
- * carried out late. Writes waiting when the bus stops are carried out
- * before it closes. Returns 0, or -1 with errno ENOBUFS when 32 distinct
- * outputs are already waiting. Thread-safe. */
+/* Output commands (hp_outcmd.h) go ahead of queued reads: the worker wakes
+ * for them and carries them out before each read block, so a command waits
+ * at most one read (1 + retries response timeouts), never a whole poll
+ * cycle. A newer command to the same output replaces one still waiting; one
+ * still waiting after HP_OUTCMD_MAX_AGE_MS is dropped, never carried out
+ * late. Commands waiting when the bus stops are carried out before it
+ * closes. Returns 0 (*seq numbers the request), or -1 with errno ENOBUFS
+ * when HP_OUTCMD_SLOTS distinct outputs are in use. Thread-safe. */
+int hp_bus_command(hp_bus *bus, uint8_t unit_id, bool coil, uint16_t address,
+                   hp_outcmd_kind kind, uint16_t value, uint32_t *seq);
+/* The latest result for the output (0), or -1 (ENOENT) when none yet. */
+int hp_bus_command_result(hp_bus *bus, uint8_t unit_id, bool coil, uint16_t address,
+                          hp_outcmd_result *out);
+/* A write without read-back (hp_bus_command with HP_OUTCMD_WRITE). */
 int hp_bus_write(hp_bus *bus, uint8_t unit_id, bool coil, uint16_t address, uint16_t value);
 
 #endif

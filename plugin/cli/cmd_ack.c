@@ -17,6 +17,7 @@
 
 #include "cli_number.h"
 #include "commands.h"
+#include "hs_conf_transfer.h"
 #include "store_opts.h"
 
 #define EXIT_PENDING 75 /* sysexits.h EX_TEMPFAIL */
@@ -28,6 +29,8 @@ static void usage(FILE *out)
             "                     [--shelve DURATION | --unshelve] [--operator NAME]\n"
             "                     [--note TEXT] [--wait DURATION]\n"
             "  Without --shelve/--unshelve it acknowledges. --operator defaults to $USER.\n"
+            "  --pond may name an actuated transfer for its own alarms; acknowledging its\n"
+            "  feedback-lockout alarm resets the lockout.\n"
             "  Waits up to --wait (default 10s) for the daemon's answer.\n");
 }
 
@@ -141,7 +144,12 @@ int hs_cmd_ack(int argc, char **argv)
         free(text);
         return rc;
     }
-    rc = hs_cli_known_pond("ack", "--pond", &site, pond);
+    /* an actuated transfer's alarms (output-unconfirmed, feedback-lockout,
+     * manual-unknown) carry the transfer's name where a pond's would be */
+    int transfer = 0;
+    for (size_t i = 0; pond != NULL && i < site.n_transfers; i++)
+        transfer |= site.transfers[i].actuate && strcmp(site.transfers[i].name, pond) == 0;
+    rc = transfer ? 0 : hs_cli_known_pond("ack", "--pond", &site, pond);
     if (rc != 0) {
         free(text);
         hs_store_close(st);

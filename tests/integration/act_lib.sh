@@ -13,9 +13,10 @@ ACT_D="$HS_BUILD/halostaged"
 # act_start_device: starts the device on a free port (ACT_PORT), its log in
 # $HS_TMP/device.log, control FIFO $HS_TMP/ctl; sets the ponds ready to transfer.
 act_start_device() {
+    local dir=${ACT_DIR:-$HS_TMP}
     ACT_PORT=$(hs_free_port)
-    ACT_LOG="$HS_TMP/device.log"
-    ACT_CTL="$HS_TMP/ctl"
+    ACT_LOG="$dir/device.log"
+    ACT_CTL="$dir/ctl"
     rm -f "$ACT_CTL"
     mkfifo "$ACT_CTL"
     "$ACT_DEV" --port "$ACT_PORT" --log "$ACT_LOG" --control "$ACT_CTL" --seconds 600 &
@@ -26,6 +27,7 @@ act_start_device() {
     act_ctl "hr 0 12250"   # feed 1225.0 kg/m3: past the start density
     act_ctl "hr 1 250"
     act_ctl "hr 2 1000"    # feed level 1.0 m
+    act_ctl "hr 3 22000"   # feed conductivity 220 mS/cm (when a site reads it)
     act_ctl "hr 10 12200"
     act_ctl "hr 11 250"
     act_ctl "hr 12 1800"   # crys level 0.2 m
@@ -53,7 +55,7 @@ stale_after = 5s
 type = tcp
 host = 127.0.0.1
 port = $ACT_PORT
-unit_ids = 1
+unit_ids = 1-2
 response_timeout = 300ms
 retries = 0
 backoff_min = 100ms
@@ -87,6 +89,8 @@ address = 0
 type = uint16
 scale = 0.1
 unit = kg/m3
+valid_min = 900
+valid_max = 1400
 [signal feed.temperature]
 bus = plc
 address = 1
@@ -149,3 +153,36 @@ INI
 
 # act_coil_writes VALUE: how many writes of VALUE to coil 5 the device saw.
 act_coil_writes() { grep -c " write coil 5 $1 " "$ACT_LOG"; }
+
+# act_scenario NAME [EXTRA TRANSFER LINES...]: a fresh device, site (in its
+# own folder, so its own history) and daemon (ACT_DPID, log ACT_DLOG), with
+# the pump started and confirmed. Returns non-zero when it did not start.
+act_scenario() {
+    local name=$1
+    shift
+    ACT_DIR="$HS_TMP/$name"
+    mkdir -p "$ACT_DIR"
+    act_start_device || return 1
+    ACT_CFG="$HS_TMP/$name/site.ini"
+    act_config "$ACT_CFG" "$@"
+    ACT_DLOG="$HS_TMP/$name/daemon.log"
+    "$ACT_D" --config "$ACT_CFG" >"$ACT_DLOG" 2>&1 &
+    ACT_DPID=$!
+    HS_PIDS+=("$ACT_DPID")
+    hs_wait_file_line "$ACT_DLOG" 'pump output RUN confirmed' 20
+}
+
+# act_scenario_end: stops the daemon (SIGTERM, waits) and the device.
+act_scenario_end() {
+    kill -TERM "$ACT_DPID" 2>/dev/null
+    wait "$ACT_DPID" 2>/dev/null
+    exec 7>&-
+    kill -TERM "$ACT_DEV_PID" 2>/dev/null
+    wait "$ACT_DEV_PID" 2>/dev/null
+}
+
+# act_mark TEXT: a mark in the device log; waits until it is there.
+act_mark() { act_ctl "mark $1"; hs_wait_file_line "$ACT_LOG" "mark $1\$" 5; }
+
+# act_t PATTERN: wall ms of the first device-log line matching PATTERN (ERE).
+act_t() { grep -E "$1" "$ACT_LOG" | head -1 | cut -d' ' -f1; }

@@ -30,7 +30,7 @@ check "first daemon still runs" kill -0 "$d1"
 
 # the CLI reads the store and names the holder
 "$HS_BUILD/halostage" status --config "$cfg" >"$HS_TMP/status.txt" 2>&1
-check "status names the daemon holding the lock" grep -q "daemon: PID $d1 holds the site lock" "$HS_TMP/status.txt"
+check "status names the daemon holding the lock" grep -q "daemon: running, PID $d1 holds the site lock" "$HS_TMP/status.txt"
 "$HS_BUILD/halostage" status --config "$cfg" --json >"$HS_TMP/status.json" 2>&1
 check "status --json: daemon.pid" /usr/bin/python3 -c 'import json,sys; d=json.load(open(sys.argv[1]))["daemon"]; sys.exit(0 if d["running"] and d["pid"]==int(sys.argv[2]) else 1)' "$HS_TMP/status.json" "$d1"
 
@@ -47,7 +47,7 @@ n_after=$(grep -c ' write coil 5 ' "$ACT_LOG")
 check "shutdown with the pump in manual wrote nothing to coil 5 ($n_before -> $n_after)" test "$n_before" -eq "$n_after"
 check "shutdown says it left the output as it is" grep -q 'left as it is at shutdown' "$HS_TMP/d1.log"
 "$HS_BUILD/halostage" status --config "$cfg" >"$HS_TMP/status2.txt" 2>&1
-check "status after the stop: nobody holds the lock" grep -q "daemon: not running" "$HS_TMP/status2.txt"
+check "status after the stop: nobody holds the lock" grep -q "daemon: NOT RUNNING" "$HS_TMP/status2.txt"
 
 # the manual signal unknown (an invalid value): hands off, also at shutdown
 act_ctl "hr 21 0"

@@ -16,6 +16,9 @@
  *       stall    hold the connection MS ms, then apply and answer (late)
  *   follow COIL REG          the pump: holding register REG (run feedback)
  *                            copies coil COIL whenever the coil changes
+ *                            (follow -1 -1: the feedback stays as it is)
+ *   slow UNIT MS             every request to unit UNIT is answered MS ms late
+ *                            (a slow unit behind a gateway; 0 = off)
  *   mark TEXT                a line in the log
  * Log lines: "WALL_MS KIND ..." with WALL_MS the wall clock in ms:
  *   WALL_MS write coil|hr ADDR VALUE applied|refused|ignored|dropped|stalled
@@ -56,6 +59,7 @@ static FILE *devlog;
 static enum mode coil_mode, hr_mode;
 static int coil_stall_ms, hr_stall_ms;
 static int follow_coil = -1, follow_reg = -1;
+static int slow_unit = -1, slow_ms;
 
 static int64_t wall_ms(void)
 {
@@ -112,6 +116,10 @@ static void control_line(char *line)
             hr_stall_ms = ms;
         }
         fprintf(devlog, "%lld set writes %s %s %d\n", (long long)wall_ms(), b, c, ms);
+    } else if (n == 3 && strcmp(a, "slow") == 0) {
+        slow_unit = (int)strtol(b, NULL, 10);
+        slow_ms = (int)strtol(c, NULL, 10);
+        fprintf(devlog, "%lld set slow %d %d\n", (long long)wall_ms(), slow_unit, slow_ms);
     } else if (n == 3 && strcmp(a, "follow") == 0) {
         follow_coil = (int)strtol(b, NULL, 10);
         follow_reg = (int)strtol(c, NULL, 10);
@@ -163,6 +171,13 @@ static void log_write(int is_coil, int addr, int value, const char *what, int ms
 static int serve(struct client *cl, const uint8_t *q, int len)
 {
     int is_coil, addr, value;
+    int h = modbus_get_header_length(ctx);
+    if (slow_ms > 0 && q[h - 1] == slow_unit) {
+        memcpy(cl->held, q, (size_t)len);
+        cl->held_len = len;
+        cl->busy_until = wall_ms() + slow_ms;
+        return 1;
+    }
     if (!parse_write(q, &is_coil, &addr, &value)) {
         modbus_reply(ctx, q, len, map);
         return 0;
@@ -270,11 +285,12 @@ int main(int argc, char **argv)
                 /* the stall is over: the write lands, the answer goes late */
                 modbus_set_socket(ctx, cl->fd);
                 int is_coil, addr, value;
-                parse_write(cl->held, &is_coil, &addr, &value);
+                int is_write = parse_write(cl->held, &is_coil, &addr, &value);
                 modbus_reply(ctx, cl->held, cl->held_len, map);
-                if (is_coil)
+                if (is_write && is_coil)
                     apply_follow();
-                log_write(is_coil, addr, value, "applied", 0);
+                if (is_write)
+                    log_write(is_coil, addr, value, "applied", 0);
                 cl->held_len = 0;
             }
             p[np] = (struct pollfd){.fd = cl->fd, .events = POLLIN};
