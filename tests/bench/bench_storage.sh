@@ -27,7 +27,9 @@ HS_PIDS+=("$dpid")
 for ((i = 0; i < 600; i++)); do [ -s "$DB" ] && break; sleep 0.1; done
 sleep 20 # warm-up period of the measurement itself, not a wait for a condition
 wb() { awk '/^write_bytes:/ {print $2}' "/proc/$dpid/io"; }
-size() { du -cb "$DB" "$DB-wal" 2>/dev/null | tail -1 | cut -f1; }
+# the history's logical size (pages in use, WAL included), not the files'
+# size: the WAL file grows to its checkpoint size and stays there
+size() { sqlite3 -cmd ".timeout 5000" "$DB" "SELECT page_count * page_size FROM pragma_page_count(), pragma_page_size()"; }
 rows() { sqlite3 "$DB" "SELECT (SELECT count(*) FROM sample) + (SELECT count(*) FROM pond_state)"; }
 w0=$(wb); s0=$(size); t0=$(date +%s)
 sleep "$secs" # the measured period
