@@ -98,6 +98,15 @@ static const struct {
     {HC_WARN_CF_UNCERTAIN, "cf-uncertain",
      "past the halite onset density hardly changes with concentration factor; "
      "the concentration factor is uncertain and no decision uses it"},
+    {HC_WARN_DENSITY_SIGNAL_BELOW_FEED, "density-signal-below-feed",
+     "the density signal reads below the feed water's density (a dead or drifting "
+     "sensor): not used, the state comes from the next source"},
+    {HC_WARN_DENSITY_SIGNAL_BEYOND_PATH, "density-signal-beyond-path",
+     "the density signal reads above the end of the evaporation path: not used, the "
+     "state comes from the next source"},
+    {HC_WARN_DENSITY_SIGNAL_BAD, "density-signal-bad",
+     "the density signal is not good (outside its plausible range, failed, stale or "
+     "stuck): not used, the state comes from the next source"},
 };
 
 const char *hc_warning_name(unsigned bit)

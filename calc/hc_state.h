@@ -46,7 +46,10 @@ enum {
     HC_WARN_DENSITY_PREFERRED     = 1u << 6, /* a density source is preferred for this brine */
     HC_WARN_CALIBRATION_EXTRAPOLATED = 1u << 7, /* outside the site calibration's span */
     HC_WARN_CF_UNCERTAIN          = 1u << 8, /* past halite onset: density barely moves CF */
-    HC_WARN_COUNT_BITS            = 9
+    HC_WARN_DENSITY_SIGNAL_BELOW_FEED = 1u << 9, /* a density signal below the feed's: not used */
+    HC_WARN_DENSITY_SIGNAL_BEYOND_PATH = 1u << 10, /* one past the path's end: not used */
+    HC_WARN_DENSITY_SIGNAL_BAD    = 1u << 11, /* the pond's density signal is not good: not used */
+    HC_WARN_COUNT_BITS            = 12
 };
 
 typedef struct {

@@ -305,6 +305,7 @@ static double quantity_value(struct alarm *a, const hs_alarm_input *in, int64_t 
         return in->feedback_lockout < 0 ? NAN : (double)(in->feedback_lockout != 0);
     case HS_QTY_MANUAL_UNKNOWN:
         return in->manual_unknown < 0 ? NAN : (double)(in->manual_unknown != 0);
+    case HS_QTY_SENSORS_STUCK: return in->sensors_stuck;
     case HS_QTY_COUNT: break;
     }
     return NAN;

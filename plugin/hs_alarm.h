@@ -65,11 +65,12 @@ typedef enum {
     HS_RULE_LEVEL_LOW,
     HS_RULE_DENSITY_FALL,    /* rapid density fall, e.g. rain dilution */
     HS_RULE_SENSOR_STALE,    /* no good sample for too long */
-    HS_RULE_BUS_DOWN,        /* the pond's field bus is down */
+    HS_RULE_BUS_DOWN,        /* the pond's field bus, or a device it reads, is down */
     /* a transfer's pump output (the alarm's "pond" is the transfer's name) */
     HS_RULE_OUTPUT_UNCONFIRMED, /* the device does not confirm the pump command */
     HS_RULE_FEEDBACK_LOCKOUT,   /* failed starts: locked out until an operator acks */
     HS_RULE_MANUAL_UNKNOWN,     /* the manual signal is unknown: hands off */
+    HS_RULE_SENSOR_STUCK,    /* a signal of the pond repeats itself: stuck (flatline) */
     HS_RULE_KIND_COUNT
 } hs_rule_kind;
 
@@ -86,6 +87,7 @@ typedef enum {
     HS_QTY_OUTPUT_UNCONFIRMED, /* 1 when the output is not confirmed, 0 when it is */
     HS_QTY_FEEDBACK_LOCKOUT,   /* 1 locked out, 0 not */
     HS_QTY_MANUAL_UNKNOWN,     /* 1 manual signal unknown, 0 known */
+    HS_QTY_SENSORS_STUCK,  /* signals of the pond that are stuck (flatline) */
     HS_QTY_COUNT
 } hs_alarm_quantity;
 
@@ -143,6 +145,7 @@ typedef struct {
     int bus_down;                /* 1 down, 0 up, -1 unknown */
     /* a transfer's output (1 yes, 0 no, -1 unknown) */
     int output_unconfirmed, feedback_lockout, manual_unknown;
+    double sensors_stuck;        /* stuck signals of the pond; NaN unknown */
 } hs_alarm_input;
 
 void hs_alarm_input_clear(hs_alarm_input *in);

@@ -8,7 +8,7 @@ const char *const hs_rule_kind_names[HS_RULE_KIND_COUNT + 1] = {
     "near-saturation", "gypsum-in-feed", "bittern-limit",   "density-band",
     "level-high",      "level-high-high", "level-low",      "density-fall",
     "sensor-stale",    "bus-down",        "output-unconfirmed", "feedback-lockout",
-    "manual-unknown",  NULL,
+    "manual-unknown",  "sensor-stuck",    NULL,
 };
 #define kind_names hs_rule_kind_names
 
@@ -20,7 +20,7 @@ static const char *const state_names[HS_ALARM_STATE_COUNT] = {
 const char *const hs_alarm_quantity_names[HS_QTY_COUNT + 1] = {
     "halite_si", "gypsum_si", "density_ref_kg_m3", "baume",
     "depth_m",   "density_fall_kg_m3", "sample_age_s", "bus_down",
-    "output_unconfirmed", "feedback_lockout", "manual_unknown", NULL,
+    "output_unconfirmed", "feedback_lockout", "manual_unknown", "sensors_stuck", NULL,
 };
 #define quantity_names hs_alarm_quantity_names
 
@@ -178,6 +178,14 @@ void hs_alarm_rule_default(hs_alarm_rule *r, hs_rule_kind kind)
         r->off_delay_ms = 0;
         r->priority = kind == HS_RULE_OUTPUT_UNCONFIRMED ? HS_PRIORITY_URGENT : HS_PRIORITY_HIGH;
         break;
+    case HS_RULE_SENSOR_STUCK:
+        /* the flatline time (hours) is the delay already */
+        r->quantity = HS_QTY_SENSORS_STUCK;
+        r->high = 0.5;
+        r->on_delay_ms = 0;
+        r->off_delay_ms = 0;
+        r->priority = HS_PRIORITY_MEDIUM;
+        break;
     case HS_RULE_KIND_COUNT:
         break;
     }
@@ -222,4 +230,5 @@ void hs_alarm_input_clear(hs_alarm_input *in)
     in->sample_age_s = NAN;
     in->bus_down = -1;
     in->output_unconfirmed = in->feedback_lockout = in->manual_unknown = -1;
+    in->sensors_stuck = NAN;
 }

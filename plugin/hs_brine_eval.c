@@ -234,6 +234,52 @@ static int state_from_density(const hs_site *site, const hc_path *path, double r
     return 0;
 }
 
+/* A density signal reading below the feed water (by more than this) or past
+ * the end of the evaporation path (by more than the next) is a dead or
+ * drifting sensor, never the
+ * brine: a dead 4-20 mA loop reads 0, a densitometer in air or fresh water
+ * reads ~1000. The margin allows the instrument's tolerance and a
+ * rain-freshened surface over the intake (common practice, no source). */
+#define BELOW_FEED_MARGIN_KG_M3 3.0
+/* Past the end of the path the model itself is least sure (Pitzer at the
+ * highest ionic strengths) and a real bittern may be a little denser: a
+ * reading is set aside only when clearly beyond it (common practice, no
+ * source); closer, it is kept as the measurement it is. */
+#define BEYOND_PATH_MARGIN_KG_M3 20.0
+
+/* 1 when the density source that gave s (from rho [kg/m3] at t_c [degC]) may
+ * be used; else 0 with the reason's warning bit added to *rejected. */
+static int density_signal_used(const hs_site *site, const hc_path *path, double rho, double t_c,
+                               const hc_brine_state *s, unsigned *rejected)
+{
+    const hc_path_point *first = path != NULL ? hc_path_step(path, 0) : NULL;
+    if (first == NULL)
+        return 1; /* seawater only: no feed and no path to compare with */
+    size_t n = hc_path_step_count(path);
+    const hc_path_point *last = n > 0 ? hc_path_step(path, n - 1) : NULL;
+    if ((s->warnings & HC_WARN_BEYOND_PATH) && last != NULL) {
+        hc_brine_state end;
+        if (hc_path_state_from_cf(path, last->concentration_factor, t_c,
+                                  site->site.reference_temperature_c, site->site.baume_modulus,
+                                  &end) != HC_OK ||
+            !(rho <= end.density_kg_m3 + BEYOND_PATH_MARGIN_KG_M3)) {
+            *rejected |= HC_WARN_DENSITY_SIGNAL_BEYOND_PATH;
+            return 0;
+        }
+    }
+    if (s->warnings & HC_WARN_BELOW_FEED) {
+        hc_brine_state feed;
+        if (hc_path_state_from_cf(path, first->concentration_factor, t_c,
+                                  site->site.reference_temperature_c, site->site.baume_modulus,
+                                  &feed) != HC_OK ||
+            !(rho >= feed.density_kg_m3 - BELOW_FEED_MARGIN_KG_M3)) {
+            *rejected |= HC_WARN_DENSITY_SIGNAL_BELOW_FEED;
+            return 0;
+        }
+    }
+    return 1;
+}
+
 /* Density source 2: PSS-78 inside its range; beyond it the site calibration
  * (cal, may be NULL) or the path's brine conductivity model, both flagged
  * by hc_path. Returns 0, or -1 with a reason in note. */
@@ -495,6 +541,7 @@ void hs_pond_evaluate(const hs_site *site, size_t pond, const hs_reading *readin
     const hs_reading *lower = reading_of(site, pond, HS_Q_LEVEL_PRESSURE, readings);
     const hs_reading *upper = reading_of(site, pond, HS_Q_PRESSURE_UPPER, readings);
     const hs_reading *cond = reading_of(site, pond, HS_Q_CONDUCTIVITY, readings);
+    unsigned rejected = 0; /* HC_WARN_DENSITY_SIGNAL_*: why a density signal was not used */
 
     if (!usable(temp)) {
         snprintf(v->note, sizeof v->note, "no usable temperature");
@@ -504,19 +551,26 @@ void hs_pond_evaluate(const hs_site *site, size_t pond, const hs_reading *readin
     double t_c = temp->value;
     struct source_method m = {.site = site, .path = path, .cal = cal, .aids = aids,
                               .g_m_s2 = g_m_s2};
+    /* Density signals below the feed or past the path are set aside (their
+     * warning says so) and the next source is tried. */
+    if (dens != NULL && !usable(dens))
+        rejected |= HC_WARN_DENSITY_SIGNAL_BAD;
+    double rho_pair = NAN;
+    int pair_ok = usable(lower) && usable(upper) && isfinite(p->pressure_spacing_m);
+    if (pair_ok &&
+        hc_density_from_pressure_pair(lower->value, upper->value, p->pressure_spacing_m, g_m_s2,
+                                      &rho_pair) != HC_OK)
+        rho_pair = NAN;
     if (usable(dens) && state_from_density(site, path, dens->value, t_c,
-                                           HC_METHOD_DENSITOMETER, &v->state) == 0) {
+                                           HC_METHOD_DENSITOMETER, &v->state) == 0 &&
+        density_signal_used(site, path, dens->value, t_c, &v->state, &rejected)) {
         take(v, dens, now_ms);
         m.kind = SRC_DENSITY;
         m.method = HC_METHOD_DENSITOMETER;
-    } else if (usable(lower) && usable(upper) && isfinite(p->pressure_spacing_m)) {
-        double rho;
-        if (hc_density_from_pressure_pair(lower->value, upper->value, p->pressure_spacing_m,
-                                          g_m_s2, &rho) != HC_OK ||
-            state_from_density(site, path, rho, t_c, HC_METHOD_HYDROSTATIC, &v->state) != 0) {
-            snprintf(v->note, sizeof v->note, "hydrostatic density out of range");
-            goto no_state;
-        }
+    } else if (isfinite(rho_pair) &&
+               state_from_density(site, path, rho_pair, t_c, HC_METHOD_HYDROSTATIC,
+                                  &v->state) == 0 &&
+               density_signal_used(site, path, rho_pair, t_c, &v->state, &rejected)) {
         take(v, lower, now_ms);
         take(v, upper, now_ms);
         m.kind = SRC_HYDROSTATIC;
@@ -540,9 +594,12 @@ void hs_pond_evaluate(const hs_site *site, size_t pond, const hs_reading *readin
         m.kind = SRC_MANUAL;
     } else {
         if (v->note[0] == '\0')
-            snprintf(v->note, sizeof v->note, "no usable density or conductivity");
+            snprintf(v->note, sizeof v->note, "%s",
+                     pair_ok && !rejected ? "hydrostatic density out of range"
+                                          : "no usable density or conductivity");
         goto no_state;
     }
+    v->state.warnings |= rejected;
     m.method = v->state.method;
     uncertainty_of(site, pond, &m, temp, dens, lower, upper, cond, &v->state);
     v->have_state = 1;
@@ -559,6 +616,9 @@ no_state:
     v->state.temperature_c = usable(temp) ? temp->value : NAN;
     v->state.reference_temperature_c = site->site.reference_temperature_c;
     v->state.baume_modulus = site->site.baume_modulus;
+    v->state.warnings |= rejected;
+    if (rejected && v->note[0] == '\0')
+        snprintf(v->note, sizeof v->note, "density signal not used and no other source");
     v->quality = HS_QUALITY_BAD;
     depth_of(site, pond, readings, g_m_s2, v);
 }

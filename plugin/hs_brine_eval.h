@@ -27,6 +27,7 @@
 #include "hc_onset_table.h"
 #include "hc_path.h"
 #include "hc_state.h"
+#include "hs_flatline.h"
 #include "hs_site.h"
 #include "hs_store.h"
 
@@ -36,6 +37,8 @@ typedef struct {
     int64_t t_ms;       /* wall clock of the sample [ms since the epoch] */
     hs_quality quality; /* as delivered, made STALE by age */
     int have;           /* at least one sample has arrived */
+    hs_flatline flat;   /* stuck-sensor watch (hs_flatline.h); flat.stuck: the
+                         * value repeats itself and quality is BAD */
 } hs_reading;
 
 typedef struct hs_brine_models hs_brine_models;

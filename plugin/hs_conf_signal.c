@@ -8,6 +8,7 @@
 
 #include "hs_accuracy.h"
 #include "hs_conf_keys.h"
+#include "hs_plausible.h"
 
 typedef hs_signal G;
 
@@ -55,6 +56,9 @@ static const hs_key signal_keys[] = {
     KEY_STR("accuracy", G, accuracy, HS_NO_DEFAULT, HS_KEY_RELOADABLE,
             "the instrument's +-limit: N in the signal's unit, or N% of the reading; "
             "default from the quantity's usual instrument class (hs_accuracy.h)"),
+    KEY_DUR("flatline_after", G, flatline_after_ms, 0, 30 * 86400 * SEC_MS, HS_NO_DEFAULT,
+            HS_KEY_RELOADABLE, "exactly the same value this long means a stuck sensor "
+            "(0 = off); default 4h for conductivity and temperature, else off"),
     KEY_DUR("poll_interval", G, point.interval_ms, 100, 86400 * SEC_MS, HS_NO_DEFAULT,
             HS_KEY_RELOADABLE, "default: the bus's poll_interval"),
     {NULL},
@@ -159,6 +163,11 @@ static void signal_finish(hs_site *site, hs_cfg *cfg, size_t index)
         else
             g->accuracy_set = 1;
     }
+    /* A live analyser's reading moves in its last digits within hours; a
+     * frozen one repeats itself (common practice, no source). */
+    if (!hs_cfg_key_line(cfg, &hs_section_signal, index, "flatline_after") &&
+        (g->quantity == HS_Q_CONDUCTIVITY || g->quantity == HS_Q_TEMPERATURE))
+        g->flatline_after_ms = 4 * 3600 * 1000LL;
     if (g->point.valid_min >= g->point.valid_max)
         hs_cfg_error(cfg, where(cfg, index, "valid_max"),
                      "valid_max (%g) must be above valid_min (%g)",
@@ -238,6 +247,15 @@ static void signal_link(hs_site *site, hs_cfg *cfg)
         if (g->quantity == HS_Q_LEVEL_DISTANCE && isnan(p->distance_height_m))
             hs_cfg_error(cfg, g->line, "[signal %s]: [pond %s] needs distance_height for "
                          "a level-distance signal", g->name, p->name);
+        double lo_user = g->point.valid_min, hi_user = g->point.valid_max;
+        if (hs_plausible_narrow(g, p) != 0) {
+            double lo, hi;
+            hs_plausible_limits(g->quantity, p, &lo, &hi);
+            hs_cfg_error(cfg, where(cfg, i, isfinite(lo_user) ? "valid_min" : "valid_max"),
+                         "[signal %s]: valid_min %g .. valid_max %g %s lies outside what the "
+                         "sensor can plausibly read (%g .. %g in SI units)", g->name, lo_user,
+                         hi_user, g->unit, lo, hi);
+        }
     }
     check_overlaps(site, cfg);
 }

@@ -49,6 +49,7 @@ static void add_alarm_rules(hs_runtime *rt)
         add_rule(rt, p->name, HS_RULE_DENSITY_BAND, "density-band", p->density_in_kg_m3, NAN);
         add_rule(rt, p->name, HS_RULE_SENSOR_STALE, "sensor-stale", NAN, NAN);
         add_rule(rt, p->name, HS_RULE_BUS_DOWN, "bus-down", NAN, NAN);
+        add_rule(rt, p->name, HS_RULE_SENSOR_STUCK, "sensor-stuck", NAN, NAN);
         add_rule(rt, p->name, HS_RULE_DENSITY_FALL, "density-fall", NAN, NAN);
         if (p->role == HS_ROLE_INTAKE || p->role == HS_ROLE_CONCENTRATOR)
             add_rule(rt, p->name, HS_RULE_NEAR_SATURATION, "near-saturation", NAN, NAN);
@@ -307,10 +308,16 @@ static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms, int64_t mono
     in.depth_m = p->view.depth_m;
     in.sample_age_s = p->view.oldest_input_age_s;
     in.bus_down = 0;
-    for (size_t s = 0; s < rt->site.n_signals; s++)
-        if (rt->site.signals[s].pond_index == (int)i && rt->site.signals[s].bus_index >= 0 &&
-            rt->bus_down[rt->site.signals[s].bus_index])
+    in.sensors_stuck = 0.0;
+    for (size_t s = 0; s < rt->site.n_signals; s++) {
+        const hs_signal *g = &rt->site.signals[s];
+        if (g->pond_index != (int)i)
+            continue;
+        if (g->bus_index >= 0 && (rt->bus_down[g->bus_index] || hs_rt_device_down(rt, g)))
             in.bus_down = 1;
+        if (rt->readings[s].flat.stuck)
+            in.sensors_stuck += 1.0;
+    }
     hs_alarm_update(rt->alarms, rt->site.ponds[i].name, &in, now_ms, alarm_emit, rt);
     note_uncertain_alarms(rt, i);
     int changed = p->pub_mono_ms == 0 || p->view.t_ms != p->pub_t_ms ||

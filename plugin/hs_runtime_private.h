@@ -109,6 +109,8 @@ struct hs_runtime {
     size_t *bus_n_points;
     hs_reading *readings;         /* per signal */
     int *bus_down;                /* per bus: every point of it failing */
+    uint64_t (*units_down)[4];    /* per bus: unit ids down, as last logged */
+    int *slow_logged;             /* per bus: "cannot keep the poll interval" said */
     int warm;                     /* every bus has answered once or is known down */
 
     struct hs_rt_pond *ponds;     /* per pond */
@@ -152,6 +154,9 @@ size_t hs_rt_drain(hs_runtime *rt, int64_t now_ms);
 /* Marks readings older than their bus's stale limit stale; bus-down flags. */
 void hs_rt_age_readings(hs_runtime *rt, int64_t now_ms);
 /* Writes one register or coil through the bus's worker. 0 / -1. */
+/* 1 when the device (bus, unit id) that signal g is read from is down
+ * (hp_bus.h: no answer, only probed now). */
+int hs_rt_device_down(const hs_runtime *rt, const hs_signal *g);
 int hs_rt_write(hs_runtime *rt, int bus, uint8_t unit_id, int coil, uint16_t address,
                 uint16_t value);
 

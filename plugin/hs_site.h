@@ -116,6 +116,7 @@ typedef struct {
     int accuracy_set;              /* parsed into the two below (hs_accuracy.h) */
     double accuracy_abs_si;        /* +- [SI unit] */
     double accuracy_rel;           /* +- fraction of the reading */
+    int64_t flatline_after_ms;     /* the same value this long: stuck; 0 = off */
 } hs_signal;
 
 /* Major ions of a feed analysis, as the thermodynamics module takes them. */

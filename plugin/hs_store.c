@@ -75,6 +75,10 @@ static const char *const migrations[] = {
     "CREATE TABLE command_seen(key TEXT PRIMARY KEY, t_ms INTEGER NOT NULL,"
     " ok INTEGER NOT NULL, reply TEXT NOT NULL) STRICT, WITHOUT ROWID;"
     "CREATE INDEX command_seen_t ON command_seen(t_ms);",
+    /* 4 -> 5: why a sample is not good (hp_sample_reason, or flatline) and
+     * the Modbus exception code or errno behind it; NULL for good ones. */
+    "ALTER TABLE sample ADD COLUMN reason TEXT;"
+    "ALTER TABLE sample ADD COLUMN code INTEGER;",
 };
 #define SCHEMA_VERSION ((int)(sizeof migrations / sizeof migrations[0]))
 
@@ -85,7 +89,8 @@ static const char *const stmt_sql[SQL_COUNT] = {
     [SQL_SERIES_ADD] = "INSERT INTO series(name) VALUES(?1)",
     [SQL_POND_GET] = "SELECT id FROM pond WHERE name = ?1",
     [SQL_POND_ADD] = "INSERT INTO pond(name) VALUES(?1)",
-    [SQL_SAMPLE_ADD] = "INSERT INTO sample(series_id, t_ms, value, quality) VALUES(?1,?2,?3,?4)",
+    [SQL_SAMPLE_ADD] = "INSERT INTO sample(series_id, t_ms, value, quality, reason, code)"
+                       " VALUES(?1,?2,?3,?4,?5,?6)",
     [SQL_STATE_ADD] =
         "INSERT INTO pond_state(pond_id, t_ms, quality, density_kg_m3, temperature_c,"
         " practical_salinity, salinity_g_kg, specific_gravity, reference_temperature_c,"

@@ -29,6 +29,8 @@ typedef struct hs_store hs_store;
 
 /* Sample quality, ordered so that a larger number is worse ("worst quality"
  * of a rollup is the maximum). */
+#define HS_REASON_MAX 24
+
 typedef enum {
     HS_QUALITY_GOOD = 0,
     HS_QUALITY_UNCERTAIN = 1, /* e.g. outside the sensor's span, extrapolated */
@@ -100,6 +102,12 @@ int hs_store_flush(hs_store *st);
 /* One raw sample of signal "POND.QUANTITY" (the config's signal name). */
 int hs_store_add_sample(hs_store *st, const char *signal, int64_t t_ms, double value,
                         hs_quality quality);
+/* The same with why it is not good: reason ("timeout", "exception",
+ * "out-of-range", "flatline", ...; NULL or "" for none, at most
+ * HS_REASON_MAX - 1 characters kept) and the Modbus exception code or errno
+ * behind it (0 = none). */
+int hs_store_add_sample_why(hs_store *st, const char *signal, int64_t t_ms, double value,
+                            hs_quality quality, const char *reason, int code);
 
 /* Level and balance columns that the hydrology fills; NaN when unknown. */
 typedef struct {
@@ -231,6 +239,8 @@ typedef struct {
     int64_t t_ms;        /* start of the bucket, or the raw sample's time */
     double min, mean, max;
     int64_t count;
+    char reason[HS_REASON_MAX]; /* raw sample only: why it is not good, "" none */
+    int code;                   /* raw sample only: exception code or errno, 0 none */
     hs_quality worst;
 } hs_point;
 

@@ -23,4 +23,10 @@ typedef struct {
 
 int hs_store_latest_transfer(hs_store *st, const char *transfer, hs_transfer_row *out);
 
+/* The newest raw sample of signal "POND.QUANTITY" (with its reason) into
+ * *out, and the time of its newest good sample into *last_good_ms (0: none
+ * in the raw history). */
+int hs_store_latest_sample(hs_store *st, const char *signal, hs_point *out,
+                           int64_t *last_good_ms);
+
 #endif

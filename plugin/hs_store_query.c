@@ -42,12 +42,17 @@ static int emit_points(hs_store *st, sqlite3_stmt *s, int raw, hs_point_fn fn, v
 {
     int rc, n = 0;
     while ((rc = sqlite3_step(s)) == SQLITE_ROW) {
-        hs_point p;
+        hs_point p = {0};
         p.t_ms = sqlite3_column_int64(s, 0);
         if (raw) {
             p.min = p.mean = p.max = hs_col_num(s, 1);
             p.count = 1;
             p.worst = (hs_quality)sqlite3_column_int(s, 2);
+            if (sqlite3_column_count(s) > 4) {
+                const char *why = (const char *)sqlite3_column_text(s, 3);
+                snprintf(p.reason, sizeof p.reason, "%s", why ? why : "");
+                p.code = sqlite3_column_int(s, 4);
+            }
         } else {
             p.min = hs_col_num(s, 1);
             p.mean = hs_col_num(s, 2);
@@ -124,7 +129,7 @@ int hs_store_history(hs_store *st, const char *series, int64_t since_ms, int64_t
                      " AND ps.t_ms >= ?1 AND ps.t_ms < ?2 ORDER BY ps.t_ms",
                      field);
         } else {
-            snprintf(sql, sizeof sql, "SELECT t_ms, value, quality FROM sample"
+            snprintf(sql, sizeof sql, "SELECT t_ms, value, quality, reason, code FROM sample"
                                       " WHERE series_id = ?3 AND t_ms >= ?1 AND t_ms < ?2"
                                       " ORDER BY t_ms");
         }

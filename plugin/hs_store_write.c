@@ -30,6 +30,12 @@ static int step_write(hs_store *st, sqlite3_stmt *s, const char *what)
 int hs_store_add_sample(hs_store *st, const char *signal, int64_t t_ms, double value,
                         hs_quality quality)
 {
+    return hs_store_add_sample_why(st, signal, t_ms, value, quality, NULL, 0);
+}
+
+int hs_store_add_sample_why(hs_store *st, const char *signal, int64_t t_ms, double value,
+                            hs_quality quality, const char *reason, int code)
+{
     if (signal == NULL || *signal == '\0' || (unsigned)quality >= HS_QUALITY_COUNT)
         return hs_store_fail(st, "sample: empty signal name or invalid quality");
     if (hs_store_batch_begin(st) != 0)
@@ -44,6 +50,14 @@ int hs_store_add_sample(hs_store *st, const char *signal, int64_t t_ms, double v
     sqlite3_bind_int64(s, 2, t_ms);
     hs_bind_num(s, 3, value);
     sqlite3_bind_int(s, 4, (int)quality);
+    if (reason != NULL && *reason != '\0')
+        sqlite3_bind_text(s, 5, reason, (int)strnlen(reason, HS_REASON_MAX - 1), SQLITE_TRANSIENT);
+    else
+        sqlite3_bind_null(s, 5);
+    if (code != 0)
+        sqlite3_bind_int(s, 6, code);
+    else
+        sqlite3_bind_null(s, 6);
     return step_write(st, s, "adding a sample");
 }
 

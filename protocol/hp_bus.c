@@ -7,6 +7,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/socket.h>
 
 #include "hp_bus.h"
 #include "hp_outcmd.h"
@@ -47,6 +48,7 @@ struct hp_bus {
     unsigned backoff_step;
     int64_t reconnect_at;
     unsigned seed;
+    uint16_t tcp_tid;            /* our own transaction ids (tcp_read) */
     device_health dev[UNITS];    /* by unit id */
     unsigned n_present;          /* devices with points */
     int64_t probe_interval_ms;
@@ -192,6 +194,64 @@ static bool link_error(int e)
            e == ENOTCONN || e == ECONNABORTED || e == EIO;
 }
 
+/* Read Holding/Input Registers over TCP with our own MBAP header, because
+ * libmodbus 3.1.6 checks a TCP reply's transaction and protocol id but not
+ * its unit id: behind a serial gateway a reply from the wrong unit would
+ * pass. libmodbus still receives the frame (its timeouts and length rules,
+ * modbus_receive_confirmation); every field is checked here against what
+ * was asked (Modbus Messaging on TCP/IP Implementation Guide v1.0b §3.1.3
+ * MBAP header; Modbus Application Protocol v1.1b §6.3/§6.4, §7 exceptions).
+ * Returns the registers read (rd->count), or -1 with errno: the link's,
+ * MODBUS_ENOBASE + exception code, EMBBADSLAVE (wrong unit id) or
+ * EMBBADDATA (anything else that does not match). */
+static int tcp_read(hp_bus *b, const hp_read *rd, uint16_t *regs)
+{
+    uint8_t req[12], rsp[MODBUS_TCP_MAX_ADU_LENGTH];
+    uint8_t fc = rd->table == HP_TABLE_INPUT ? 0x04 : 0x03;
+    uint16_t tid = ++b->tcp_tid;
+    req[0] = (uint8_t)(tid >> 8);
+    req[1] = (uint8_t)tid;
+    req[2] = req[3] = 0;            /* protocol id: Modbus */
+    req[4] = 0;
+    req[5] = 6;                     /* unit id + 5 PDU bytes follow */
+    req[6] = rd->unit_id;
+    req[7] = fc;
+    req[8] = (uint8_t)(rd->start >> 8);
+    req[9] = (uint8_t)rd->start;
+    req[10] = (uint8_t)(rd->count >> 8);
+    req[11] = (uint8_t)rd->count;
+    int fd = modbus_get_socket(b->ctx);
+    if (fd < 0 || send(fd, req, sizeof req, MSG_NOSIGNAL) != (ssize_t)sizeof req) {
+        if (fd < 0 || errno == 0)
+            errno = EBADF;
+        return -1;
+    }
+    int n = modbus_receive_confirmation(b->ctx, rsp);
+    if (n < 0)
+        return -1;
+    if (n < 9 || ((uint16_t)((uint16_t)rsp[0] << 8) | rsp[1]) != tid || rsp[2] != 0 ||
+        rsp[3] != 0) {
+        errno = EMBBADDATA; /* a stale or foreign reply */
+        return -1;
+    }
+    if (rsp[6] != rd->unit_id) {
+        errno = EMBBADSLAVE;
+        return -1;
+    }
+    if (rsp[7] == (fc | 0x80)) {
+        errno = rsp[8] >= 1 && rsp[8] <= MODBUS_EXCEPTION_GATEWAY_TARGET
+                    ? MODBUS_ENOBASE + rsp[8] : EMBBADEXC;
+        return -1;
+    }
+    if (rsp[7] != fc || rsp[8] != 2u * rd->count || n != 9 + 2 * rd->count) {
+        errno = EMBBADDATA;
+        return -1;
+    }
+    for (uint16_t i = 0; i < rd->count; i++)
+        regs[i] = (uint16_t)(((uint16_t)rsp[9 + 2 * i] << 8) | rsp[10 + 2 * i]);
+    return rd->count;
+}
+
 /* One read of a block: 1 + retries attempts, or a single one for a probe of
  * a device that is down. */
 static read_result do_read(hp_bus *b, const hp_read *rd, bool probe)
@@ -206,7 +266,8 @@ static read_result do_read(hp_bus *b, const hp_read *rd, bool probe)
         if (stopping(b))
             break;
         modbus_set_slave(b->ctx, rd->unit_id);
-        int rc = rd->table == HP_TABLE_INPUT
+        int rc = b->conf.kind == HP_BUS_TCP ? tcp_read(b, rd, regs)
+                 : rd->table == HP_TABLE_INPUT
                      ? modbus_read_input_registers(b->ctx, rd->start, rd->count, regs)
                      : modbus_read_registers(b->ctx, rd->start, rd->count, regs);
         err = errno;

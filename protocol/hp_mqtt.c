@@ -219,20 +219,25 @@ hp_mqtt *hp_mqtt_new(const hp_mqtt_options *o, char *err, size_t errlen)
     m->opt.cert_file = keep(m, 5, o->cert_file);
     m->opt.key_file = keep(m, 6, o->key_file);
     m->opt.will_topic = keep(m, 7, o->will_topic);
-    m->opt.will_payload = keep(m, 8, o->will_payload);
+    int binary_will = o->will_payload != NULL && o->will_len > 0;
+    m->opt.will_payload = keep(m, 8, binary_will ? NULL : o->will_payload);
     m->opt.subscribe = keep(m, 9, o->subscribe);
     m->opt.subscribe_extra[0] = keep(m, 10, o->subscribe_extra[0]);
     m->opt.subscribe_extra[1] = keep(m, 11, o->subscribe_extra[1]);
     const char *given[12] = {o->uri, o->client_id, o->username, o->password, o->ca_file,
-                             o->cert_file, o->key_file, o->will_topic, o->will_payload,
-                             o->subscribe, o->subscribe_extra[0], o->subscribe_extra[1]};
-    if (o->will_payload != NULL && o->will_len > 0) {
-        /* a binary will (a Sparkplug NDEATH) may hold NUL bytes */
+                             o->cert_file, o->key_file, o->will_topic,
+                             binary_will ? NULL : o->will_payload, o->subscribe,
+                             o->subscribe_extra[0], o->subscribe_extra[1]};
+    if (binary_will) {
+        /* a binary will (a Sparkplug NDEATH) may hold NUL bytes: copied by length */
         m->will_copy = malloc(o->will_len);
-        if (m->will_copy != NULL)
-            memcpy(m->will_copy, o->will_payload, o->will_len);
-        else
-            given[8] = "", m->copies[8] = NULL;
+        if (m->will_copy == NULL) {
+            fail(err, errlen, "mqtt: out of memory");
+            hp_mqtt_free(m, 0);
+            return NULL;
+        }
+        memcpy(m->will_copy, o->will_payload, o->will_len);
+        m->opt.will_payload = m->will_copy;
     }
     for (int i = 0; i < 12; i++)
         if (given[i] != NULL && m->copies[i] == NULL) {

@@ -1,6 +1,7 @@
-/* halostage export --csv|--json --config FILE [--what states|alarms] [--pond P]
- *                  [--since WHEN] [--until WHEN]
- * The stored pond states (or the alarm journal) as CSV for spreadsheets:
+/* halostage export --csv|--json --config FILE [--what states|alarms|samples]
+ *                  [--pond P] [--since WHEN] [--until WHEN]
+ * The stored pond states (or the alarm journal, or the raw signal samples
+ * with why each is not good) as CSV for spreadsheets:
  * one header line whose names carry their units, times in ISO 8601 UTC,
  * empty cells for unknown values. Reads while the daemon writes (WAL). */
 #include <getopt.h>
@@ -112,6 +113,56 @@ static void state_doc(void *ctx, const hs_state_row *r)
     json_decref(o);
 }
 
+/* Raw samples of every signal (of one pond with --pond): SI value, quality,
+ * reason and the exception code or errno behind it. */
+static const char sample_header[] =
+    "time (UTC ISO 8601),signal,value (SI unit of the quantity),quality,reason,"
+    "exception code,errno\n";
+
+struct sample_ctx {
+    long n;
+    const char *signal;
+};
+
+static void sample_row(void *ctx, const hs_point *p)
+{
+    struct sample_ctx *c = ctx;
+    char when[40];
+    hs_iso8601_ms(when, sizeof when, p->t_ms);
+    int exc = strcmp(p->reason, "exception") == 0;
+    cell(when);
+    textcell(c->signal);
+    numcell(p->mean, 10);
+    textcell(hs_quality_name(p->worst));
+    textcell(p->reason);
+    putchar(',');
+    if (exc && p->code != 0)
+        printf("%d", p->code);
+    putchar(',');
+    if (!exc && p->code != 0)
+        printf("%d", p->code);
+    putchar('\n');
+    c->n++;
+}
+
+static int export_samples(hs_store *st, const hs_site *site, const char *pond, int64_t since,
+                          int64_t until, long *rows)
+{
+    struct sample_ctx c = {0, NULL};
+    for (size_t i = 0; i < site->n_signals; i++) {
+        const hs_signal *g = &site->signals[i];
+        if (pond != NULL && strcmp(g->pond, pond) != 0)
+            continue;
+        c.signal = g->name;
+        /* a signal never stored yet is no error: it has no rows */
+        if (hs_store_history(st, g->name, since, until, 0, sample_row, &c) < 0 &&
+            strstr(hs_store_error(st), "no series") == NULL)
+            return -1;
+    }
+    *rows = c.n;
+    return 0;
+}
+
 static const char state_header[] =
     "time (UTC ISO 8601),pond,quality,density (kg/m3),temperature (degC),"
     "specific gravity (1),reference temperature (degC),baume (deg Be),baume modulus (1),"
@@ -153,10 +204,11 @@ static const char journal_header[] =
 static void usage(FILE *out)
 {
     fprintf(out,
-            "usage: halostage export --csv|--json --config FILE [--what states|alarms]\n"
+            "usage: halostage export --csv|--json --config FILE [--what states|alarms|samples]\n"
             "                        [--pond POND] [--since WHEN] [--until WHEN]\n"
             "  CSV on stdout; the header names carry the units; times are ISO 8601 UTC.\n"
             "  --json: the pond states as pond-state documents, one per line.\n"
+            "  samples: every raw signal sample with its quality and why it is not good.\n"
             "  WHEN: a duration back from now (30d), now, or a UTC time (2026-03-01T06:00Z).\n"
             "  Default: the pond states of the last 30 days.\n");
 }
@@ -189,10 +241,11 @@ int hs_cmd_export(int argc, char **argv)
         }
     }
     if (config == NULL || csv + json != 1 || optind < argc ||
-        (strcmp(what, "states") != 0 && strcmp(what, "alarms") != 0) ||
+        (strcmp(what, "states") != 0 && strcmp(what, "alarms") != 0 &&
+         strcmp(what, "samples") != 0) ||
         (json && strcmp(what, "states") != 0)) {
         fprintf(stderr, "halostage export: need --config and one of --csv or --json; --what is "
-                        "states or alarms, --json exports states (see --help)\n");
+                        "states, alarms or samples, --json exports states (see --help)\n");
         return 2;
     }
     int64_t since, until;
@@ -218,6 +271,9 @@ int hs_cmd_export(int argc, char **argv)
     } else if (strcmp(what, "states") == 0) {
         fputs(state_header, stdout);
         n = hs_store_states(st, pond, since, until, state_row, &rows);
+    } else if (strcmp(what, "samples") == 0) {
+        fputs(sample_header, stdout);
+        n = export_samples(st, &site, pond, since, until, &rows);
     } else {
         fputs(journal_header, stdout);
         n = hs_store_journal_range(st, pond, since, until, journal_row, &rows);

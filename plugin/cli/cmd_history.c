@@ -4,7 +4,9 @@
  * Without --step: every stored state (up to --limit rows). With --step: the
  * min, mean and max per step from the 1-minute or 1-hour rollups, with the
  * sample count and the worst quality in the step. --signal shows one raw
- * signal ("POND.QUANTITY") instead of the pond's computed state. */
+ * signal ("POND.QUANTITY") instead of the pond's computed state; its raw
+ * samples carry why they are not good (timeout, exception N, out-of-range,
+ * flatline, ...). */
 #include <getopt.h>
 #include <jansson.h>
 #include <math.h>
@@ -88,17 +90,31 @@ static void add_point(void *ctx, const hs_point *p)
 
 static json_t *num(double v) { return isfinite(v) ? json_real(v) : json_null(); }
 
+/* "timeout (errno 110)", "exception 2", "out-of-range"; "" for none. */
+static void reason_text(const hs_point *p, char *buf, size_t len)
+{
+    if (p->reason[0] == '\0')
+        snprintf(buf, len, "%s", "");
+    else if (strcmp(p->reason, "exception") == 0)
+        snprintf(buf, len, "exception %d", p->code);
+    else if (p->code != 0)
+        snprintf(buf, len, "%s (errno %d)", p->reason, p->code);
+    else
+        snprintf(buf, len, "%s", p->reason);
+}
+
 static void print_table(const struct table *t, int stepped, const char *signal)
 {
-    char when[40];
+    char when[40], why[64];
     if (signal) {
-        printf("%-24s %12s %12s %12s %7s %s\n", "time (UTC)", "min", "mean", "max", "n",
-               "worst quality");
+        printf("%-24s %12s %12s %12s %7s %-13s %s\n", "time (UTC)", "min", "mean", "max", "n",
+               "worst quality", stepped ? "" : "reason");
         for (size_t i = 0; i < t->n; i++) {
             const hs_point *p = &t->b[i].p[0];
             hs_iso8601_ms(when, sizeof when, t->b[i].t_ms);
-            printf("%-24s %12.4g %12.4g %12.4g %7lld %s\n", when, p->min, p->mean, p->max,
-                   (long long)p->count, hs_quality_name(p->worst));
+            reason_text(p, why, sizeof why);
+            printf("%-24s %12.4g %12.4g %12.4g %7lld %-13s %s\n", when, p->min, p->mean, p->max,
+                   (long long)p->count, hs_quality_name(p->worst), why);
         }
         return;
     }
@@ -165,6 +181,13 @@ static json_t *table_json(const struct table *t, const char *pond, const char *s
                                   num(p->mean), "max", num(p->max), "count",
                                   (json_int_t)p->count, "worst_quality",
                                   hs_quality_name(p->worst));
+            if (p->reason[0] != '\0') {
+                json_object_set_new(v, "reason", json_string(p->reason));
+                if (p->code != 0)
+                    json_object_set_new(v, strcmp(p->reason, "exception") == 0 ? "exception"
+                                                                              : "errno",
+                                        json_integer(p->code));
+            }
             json_object_set_new(o, signal ? "value" : cols[c].field, v);
         }
         json_array_append_new(points, o);

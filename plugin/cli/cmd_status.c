@@ -216,6 +216,59 @@ static void age_text(char *buf, size_t len, int64_t ms)
         snprintf(buf, len, "%.1fd", s / 86400);
 }
 
+/* A device (bus, unit id) is shown down when the newest stored sample of
+ * every signal read from it is a timeout or "not asked" (hp_bus.h). */
+struct device_down {
+    const char *bus;
+    unsigned unit;
+    int64_t last_try_ms, last_good_ms;
+};
+
+static size_t devices_down(const hs_site *site, hs_store *st, struct device_down *out, size_t max)
+{
+    size_t n = 0;
+    for (size_t i = 0; i < site->n_signals && n < max; i++) {
+        const hs_signal *g = &site->signals[i];
+        int seen = 0;
+        for (size_t j = 0; j < i && !seen; j++)
+            seen = site->signals[j].bus_index == g->bus_index &&
+                   site->signals[j].point.unit_id == g->point.unit_id;
+        if (seen || g->bus_index < 0)
+            continue; /* each device once, from its first signal */
+        struct device_down d = {g->bus, g->point.unit_id, 0, 0};
+        int down = 1;
+        for (size_t j = i; j < site->n_signals && down; j++) {
+            const hs_signal *h = &site->signals[j];
+            if (h->bus_index != g->bus_index || h->point.unit_id != g->point.unit_id)
+                continue;
+            hs_point p;
+            int64_t good = 0;
+            down = hs_store_latest_sample(st, h->name, &p, &good) == 0 &&
+                   (strcmp(p.reason, "timeout") == 0 || strcmp(p.reason, "device-down") == 0);
+            if (p.t_ms > d.last_try_ms)
+                d.last_try_ms = p.t_ms;
+            if (good > d.last_good_ms)
+                d.last_good_ms = good;
+        }
+        if (down)
+            out[n++] = d;
+    }
+    return n;
+}
+
+static void print_devices_down(const hs_site *site, hs_store *st)
+{
+    struct device_down d[64];
+    size_t n = devices_down(site, st, d, 64);
+    for (size_t i = 0; i < n; i++) {
+        char last[40] = "never";
+        if (d[i].last_good_ms > 0)
+            hs_iso8601_ms(last, sizeof last, d[i].last_good_ms);
+        printf("%sdevice down: bus %s unit id %u (no answer; last good sample %s)\n",
+               i == 0 ? "\n" : "", d[i].bus, d[i].unit, last);
+    }
+}
+
 static void print_table(const hs_site *site, hs_store *st, const struct alarm_list *alarms,
                         int64_t now)
 {
@@ -264,6 +317,7 @@ static void print_table(const hs_site *site, hs_store *st, const struct alarm_li
                    rc == 0 ? reasons : "no decision yet", t->actuate ? " [ACTUATED]" : "");
         }
     }
+    print_devices_down(site, st);
     printf("\n%zu alarm(s) not back to normal", alarms->n);
     for (size_t i = 0; i < alarms->n; i++)
         printf("%s %s/%s %s", i ? "," : ":", alarms->rows[i].pond, alarms->rows[i].rule,
@@ -310,8 +364,19 @@ static json_t *status_json(const hs_site *site, hs_store *st, const struct alarm
                                             "state", alarms->rows[i].state, "value",
                                             isfinite(alarms->rows[i].value) ? json_real(alarms->rows[i].value) : json_null(),
                                             "time_ms", (json_int_t)alarms->rows[i].t_ms));
-    return json_pack("{s:s, s:o, s:o, s:o, s:o}", "site", site->site.name, "daemon",
-                     daemon_json(site, st), "ponds", ponds, "transfers", transfers, "alarms", al);
+    json_t *down = json_array();
+    struct device_down d[64];
+    size_t nd = devices_down(site, st, d, 64);
+    for (size_t i = 0; i < nd; i++)
+        json_array_append_new(down, json_pack("{s:s, s:i, s:I, s:o}", "bus", d[i].bus,
+                                              "unit_id", (int)d[i].unit, "last_try_ms",
+                                              (json_int_t)d[i].last_try_ms, "last_good_ms",
+                                              d[i].last_good_ms > 0
+                                                  ? json_integer(d[i].last_good_ms)
+                                                  : json_null()));
+    return json_pack("{s:s, s:o, s:o, s:o, s:o, s:o}", "site", site->site.name, "daemon",
+                     daemon_json(site, st), "ponds", ponds, "transfers", transfers, "alarms", al,
+                     "devices_down", down);
 }
 
 static void usage(FILE *out)

@@ -91,13 +91,30 @@ check "... and fresh DBIRTHs" wait_count DBIRTH/gw1/ 18
 mosquitto_pub -h 127.0.0.1 -p "$mport" -q 1 -t spBv1.0/works/DCMD/gw1/x1 -f "$HS_TMP/drebirth.bin"
 check "Device Control/Rebirth gives that pond's DBIRTH" wait_count DBIRTH/gw1/x1 3
 
+# the primary host: an older STATE is ignored; offline ends the session
+# (NDEATH), online again starts a new one with the next bdSeq
+mosquitto_pub -h 127.0.0.1 -p "$mport" -q 1 -r -t spBv1.0/STATE/scada1 \
+    -m '{"online": false, "timestamp": 1000}'
+mosquitto_pub -h 127.0.0.1 -p "$mport" -q 1 -t spBv1.0/works/NCMD/gw1 -f "$HS_TMP/bad.bin"
+# the refused NCMD, sent after the old STATE, marks when that STATE was read
+for ((i = 0; i < 100; i++)); do [ "$(grep -c 'NCMD refused' "$HS_TMP/daemon.log")" -ge 2 ] && break; sleep 0.1; done
+check "an older STATE is ignored" test "$(grep -c '^spBv1.0/works/NDEATH' "$cap")" -eq 0
+mosquitto_pub -h 127.0.0.1 -p "$mport" -q 1 -r -t spBv1.0/STATE/scada1 \
+    -m "{\"online\": false, \"timestamp\": $(date +%s%3N)}"
+check "the host going offline ends the session with NDEATH" wait_count NDEATH/gw1 1
+check "... and the node connects again and waits (bdSeq 1)" \
+    hs_wait_file_line "$HS_TMP/daemon.log" 'connected as spb-gw-spb \(bdSeq 1\), waiting' 15
+mosquitto_pub -h 127.0.0.1 -p "$mport" -q 1 -r -t spBv1.0/STATE/scada1 \
+    -m "{\"online\": true, \"timestamp\": $(date +%s%3N)}"
+check "the host back online gives new births" wait_count NBIRTH/gw1 3
+
 # the field goes silent: ponds die
 kill "$spid"
 check "a silent field kills the ponds (DDEATH)" wait_count DDEATH/gw1/ 1 30
 
 kill -9 "$dpid"
 wait "$dpid" 2>/dev/null
-check "killing the daemon yields the NDEATH will" wait_count NDEATH/gw1 1 15
+check "killing the daemon yields the NDEATH will" wait_count NDEATH/gw1 2 15
 
 /usr/bin/python3 - "$HS_TMP" "$cap" >"$HS_TMP/decode.txt" 2>&1 <<'PY'
 import sys
@@ -131,11 +148,20 @@ for t, p in births:
     if names.get("bdSeq") is None or names["bdSeq"].datatype != 8: fails.append("NBIRTH bdSeq")
     reb = names.get("Node Control/Rebirth")
     if reb is None or reb.datatype != 11 or reb.boolean_value: fails.append("NBIRTH rebirth metric")
-if len(births) < 2: fails.append("%d NBIRTH" % len(births))
+if len(births) < 3: fails.append("%d NBIRTH" % len(births))
 elif bdseq(births[0][1]) != bdseq(births[1][1]): fails.append("rebirth changed bdSeq")
-if len(deaths) != 1 or not births or bdseq(deaths[0][1]) != bdseq(births[-1][1]):
-    fails.append("NDEATH bdSeq %s vs NBIRTH %s" % ([bdseq(p) for _, p in deaths], bdseq(births[-1][1]) if births else None))
-print("bdSeq NBIRTH %s NDEATH %s" % (bdseq(births[0][1]) if births else None, [bdseq(p) for _, p in deaths]))
+# every NDEATH carries the bdSeq of the NBIRTH before it (the first one the
+# node's own on the host going offline, the last one the broker's will)
+pairs = []
+cur = None
+for t, p in msgs:
+    if t[2] == "NBIRTH":
+        cur = bdseq(p)
+    elif t[2] == "NDEATH":
+        pairs.append((cur, bdseq(p)))
+if len(pairs) != 2 or any(b != d for b, d in pairs) or pairs[0][1] == pairs[1][1]:
+    fails.append("NBIRTH/NDEATH bdSeq pairs %s" % pairs)
+print("bdSeq (NBIRTH, NDEATH) pairs %s" % pairs)
 
 # DBIRTH: every metric with datatype, alias, and units on the numbers
 aliases = {}
@@ -198,4 +224,5 @@ check "decoded with protoc's Python: births with every metric and unit, DDATA on
     grep -qx ok "$HS_TMP/decode.txt"
 grep -qx ok "$HS_TMP/decode.txt" || sed 's/^/# /' "$HS_TMP/decode.txt"
 sed 's/^/# /' "$HS_TMP/decode.txt" | grep -E 'bdSeq|messages'
+[ "$hs_failed" -eq 0 ] || grep -m1 -A24 -E 'ERROR: |runtime error' "$HS_TMP/daemon.log" | sed 's/^/# daemon: /'
 hs_finish

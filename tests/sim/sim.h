@@ -23,6 +23,7 @@ typedef enum {
     SIM_FAULT_NAN,        /* float values become NaN, integers their first sentinel */
     SIM_FAULT_SENTINEL,   /* values become their first sentinel (or 0xFFFF) */
     SIM_FAULT_LATENCY,    /* replies are delayed by latency_ms */
+    SIM_FAULT_STUCK,      /* the device's values stop changing (a frozen analyser) */
 } sim_fault_kind;
 
 typedef struct {

@@ -1,7 +1,7 @@
 /* halostage-sim --config FILE [--speed N] [--rtu BUS=PTY]...
  *               [--fault BUS[:UNIT]=KIND[:MS]]...
  *               [--truth FILE] [--faults FILE]
- * KIND: timeout, exception, drop, nan, sentinel, latency:MS. BUS * is every bus.
+ * KIND: timeout, exception, drop, nan, sentinel, stuck, latency:MS. BUS * is every bus.
  * Stops on SIGTERM or SIGINT. SIGHUP reads the faults again (--fault and
  * --faults FILE), so a test can silence a device and bring it back. */
 #include <getopt.h>
@@ -28,7 +28,7 @@ static void usage(FILE *to)
 {
     fprintf(to, "usage: halostage-sim --config FILE [--speed N] [--rtu BUS=PTY]...\n"
                 "                     [--fault BUS[:UNIT]=KIND]... [--truth FILE]\n"
-                "  KIND: timeout, exception, drop, nan, sentinel, latency:MS; BUS * = all\n"
+                "  KIND: timeout, exception, drop, nan, sentinel, stuck, latency:MS; BUS * = all\n"
                 "  --truth FILE: keep the model's true pond values in FILE (JSON)\n"
                 "  --faults FILE: faults from a file, one BUS[:UNIT]=KIND a line, # comments\n"
                 "  SIGHUP reads the faults again\n");
@@ -61,6 +61,7 @@ static int parse_fault(sim *s, const char *text)
     else if (strcmp(kind, "drop") == 0) f.kind = SIM_FAULT_DROP;
     else if (strcmp(kind, "nan") == 0) f.kind = SIM_FAULT_NAN;
     else if (strcmp(kind, "sentinel") == 0) f.kind = SIM_FAULT_SENTINEL;
+    else if (strcmp(kind, "stuck") == 0) f.kind = SIM_FAULT_STUCK;
     else if (strncmp(kind, "latency:", 8) == 0) {
         char *end;
         long ms = strtol(kind + 8, &end, 10);
@@ -96,7 +97,7 @@ static int read_fault_file(sim *s, const char *path)
         *end = '\0';
         if (*p && parse_fault(s, p) != 0) {
             fprintf(stderr, "halostage-sim: %s:%d: '%s' is not BUS[:UNIT]=KIND (KIND timeout, "
-                    "exception, drop, nan, sentinel or latency:MS), or too many faults\n",
+                    "exception, drop, nan, sentinel, stuck or latency:MS), or too many faults\n",
                     path, n, p);
             rc = -1;
         }
@@ -171,7 +172,7 @@ int main(int argc, char **argv)
     for (int i = 0; i < n_faults; i++)
         if (parse_fault(&s, faults[i]) != 0) {
             fprintf(stderr, "halostage-sim: --fault %s: expected BUS[:UNIT]=KIND with KIND "
-                    "timeout, exception, drop, nan, sentinel or latency:MS\n", faults[i]);
+                    "timeout, exception, drop, nan, sentinel, stuck or latency:MS\n", faults[i]);
             goto out;
         }
     if (fault_file && read_fault_file(&s, fault_file) != 0)

@@ -188,6 +188,8 @@ static void write_signal(sim *s, const hs_signal *sg, double g)
     const hp_point *pt = &sg->point;
     double raw = (signal_si(s, sg, g) / sg->si_factor - pt->offset) / pt->scale;
     const sim_fault *f = sim_fault_for(s, sg->bus_index, pt->unit_id);
+    if (f && f->kind == SIM_FAULT_STUCK)
+        return; /* the registers keep their last value */
     if (f && (f->kind == SIM_FAULT_NAN || f->kind == SIM_FAULT_SENTINEL)) {
         bool is_float = pt->type == HP_FLOAT32 || pt->type == HP_FLOAT64;
         if (f->kind == SIM_FAULT_NAN && is_float)

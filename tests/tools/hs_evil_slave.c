@@ -1,4 +1,5 @@
-/* hs_evil_slave --port P [--seed N] [--seconds S]: a Modbus TCP server on
+/* hs_evil_slave --port P [--seed N] [--seconds S] [--only KIND]: a Modbus
+ * TCP server on
  * 127.0.0.1 that answers read requests with garbage, for the robustness
  * test of the bus worker. Requests alternate between a good reply (so a
  * client can tell good from bad) and the next fault in turn (a seed varies
@@ -8,6 +9,7 @@
  * cut short (then the link closed, or left hanging), a huge frame, an
  * exception with any code, random bytes, a close, or silence.
  * Good replies carry register value 0x0BB8 (3000) everywhere.
+ * --only KIND answers every request with that one fault (e.g. wrong-unit).
  * At the end it prints one line "faults: KIND=N ..." on stdout.
  * Loopback only; ends after S seconds (default 60) so it never lingers. */
 #include <arpa/inet.h>
@@ -36,6 +38,7 @@ static const char *const fault_name[F_COUNT] = {
     "wrong-tid", "wrong-unit", "wrong-protocol", "cut-close", "cut-hang",
     "huge", "exception", "random", "close", "silent", "tiny-length"};
 static unsigned long fault_count[F_COUNT];
+static int only_fault = -1; /* --only: every reply is this fault */
 
 static volatile sig_atomic_t stop_flag;
 static void on_signal(int sig) { (void)sig; stop_flag = 1; }
@@ -147,7 +150,8 @@ static int serve(int fd)
     /* Every other reply is good so that the link carries real data between
      * faults; the faults take turns so that a short run meets them all. */
     static unsigned served;
-    enum fault f = served % 2 == 0 ? F_GOOD : (enum fault)(1 + (served / 2) % (F_COUNT - 1));
+    enum fault f = only_fault >= 0 ? (enum fault)only_fault
+                   : served % 2 == 0 ? F_GOOD : (enum fault)(1 + (served / 2) % (F_COUNT - 1));
     served++;
     fault_count[f]++;
     size_t n, m;
@@ -230,6 +234,14 @@ int main(int argc, char **argv)
     long port = 0, seconds = 60;
     for (int i = 1; i + 1 < argc; i += 2) {
         char *end;
+        if (strcmp(argv[i], "--only") == 0) {
+            for (int f = 0; f < F_COUNT; f++)
+                if (strcmp(argv[i + 1], fault_name[f]) == 0)
+                    only_fault = f;
+            if (only_fault < 0)
+                port = -1;
+            continue;
+        }
         long v = strtol(argv[i + 1], &end, 10);
         if (*end != '\0')
             port = -1;
@@ -241,7 +253,8 @@ int main(int argc, char **argv)
             seconds = v;
     }
     if (port <= 0 || port > 65535 || seconds <= 0 || seconds > 600) {
-        fprintf(stderr, "usage: hs_evil_slave --port P [--seed N] [--seconds S<=600]\n");
+        fprintf(stderr, "usage: hs_evil_slave --port P [--seed N] [--seconds S<=600] "
+                        "[--only KIND]\n");
         return 2;
     }
     signal(SIGTERM, on_signal);

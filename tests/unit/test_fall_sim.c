@@ -87,8 +87,10 @@ static double sample(const hc_path *path, const hs_brine_models *models, hs_alar
     assert_int_equal(hc_path_point_at_cf(path, cf, &p, NULL), HC_OK);
     assert_int_equal(hc_brine_conductivity(p.salinity_g_kg, temp, &k), HC_OK);
     int64_t t_ms = (int64_t)(t_s * 1000.0);
-    rd[HS_Q_TEMPERATURE] = (hs_reading){temp, t_ms, HS_QUALITY_GOOD, 1};
-    rd[HS_Q_CONDUCTIVITY] = (hs_reading){k * (1.0 + 0.005 * gauss()), t_ms, HS_QUALITY_GOOD, 1};
+    rd[HS_Q_TEMPERATURE] =
+        (hs_reading){.value = temp, .t_ms = t_ms, .quality = HS_QUALITY_GOOD, .have = 1};
+    rd[HS_Q_CONDUCTIVITY] = (hs_reading){.value = k * (1.0 + 0.005 * gauss()), .t_ms = t_ms,
+                                          .quality = HS_QUALITY_GOOD, .have = 1};
     hs_pond_view v;
     hs_pond_evaluate(&site, 0, rd, models, NULL, 9.80, t_ms, &v);
     assert_true(v.have_state);

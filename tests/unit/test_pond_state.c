@@ -15,6 +15,7 @@
 #include "hc_level.h"
 #include "hc_seawater.h"
 #include "hs_brine_eval.h"
+#include "hs_plausible.h"
 
 #define near(a, b, tol) assert_true(fabs((double)(a) - (double)(b)) <= (tol))
 
@@ -266,6 +267,86 @@ static void beyond_pss78_calibration_or_model(void **unused)
     hs_brine_models_free(models);
 }
 
+/* A density signal is never believed against the brine's own history: one
+ * reading below the feed water (a dead loop, a densitometer in fresh water
+ * or air) or past the end of the evaporation path is set aside, the next
+ * source gives the state, and the state's warnings say why. A zero reading
+ * is already out of its plausible range (hs_plausible.h) when decoded. */
+static void density_signal_below_feed_or_past_path_not_used(void **unused)
+{
+    (void)unused;
+    hs_pond_view r;
+    hs_brine_models *models = NULL;
+    setup_site();
+    assert_int_equal(hs_brine_models_build(&site, &models), 0);
+    const hc_path *path = hs_brine_models_path(models, -1);
+    put(HS_Q_TEMPERATURE, HS_QUALITY_GOOD, 20.0);
+    put(HS_Q_CONDUCTIVITY, HS_QUALITY_GOOD, 50.0);
+
+    /* the zero densitometer: decoded out-of-range, so the runtime marks it
+     * bad; conductivity (PSS-78) gives the state and the warning says why */
+    sig[HS_Q_DENSITY].point.type = HP_UINT16;
+    sig[HS_Q_DENSITY].point.scale = 1.0;
+    sig[HS_Q_DENSITY].point.valid_min = -INFINITY;
+    sig[HS_Q_DENSITY].point.valid_max = INFINITY;
+    assert_int_equal(hs_plausible_narrow(&sig[HS_Q_DENSITY], &pond), 0);
+    uint16_t zero = 0;
+    hp_sample smp;
+    hp_point_decode(&sig[HS_Q_DENSITY].point, &zero, &smp);
+    assert_int_equal(smp.quality, HP_Q_OUT_OF_RANGE);
+    put(HS_Q_DENSITY, HS_QUALITY_BAD, NAN);
+    compute(models, NULL, &r);
+    assert_true(r.have_state);
+    assert_int_equal(r.state.method, HC_METHOD_PSS78);
+    assert_true(r.state.warnings & HC_WARN_DENSITY_SIGNAL_BAD);
+    assert_string_equal(hc_warning_name(HC_WARN_DENSITY_SIGNAL_BAD), "density-signal-bad");
+
+    /* 1000 kg/m3 is plausible for a liquid but below seawater feed at 20 degC */
+    hc_brine_state feed;
+    assert_int_equal(hc_path_state_from_cf(path, 1.0, 20.0, 20.0, 145.0, &feed), HC_OK);
+    put(HS_Q_DENSITY, HS_QUALITY_GOOD, 1000.0);
+    compute(models, NULL, &r);
+    assert_true(r.have_state);
+    assert_int_equal(r.state.method, HC_METHOD_PSS78);
+    assert_true(r.state.warnings & HC_WARN_DENSITY_SIGNAL_BELOW_FEED);
+    assert_false(r.state.warnings & HC_WARN_DENSITY_SIGNAL_BAD);
+    assert_true(fabs(r.state.density_kg_m3 - 1000.0) > 10.0); /* not the dead sensor's */
+
+    /* within the instrument's margin of the feed: still the densitometer */
+    put(HS_Q_DENSITY, HS_QUALITY_GOOD, feed.density_kg_m3 - 1.0);
+    compute(models, NULL, &r);
+    assert_int_equal(r.state.method, HC_METHOD_DENSITOMETER);
+    assert_false(r.state.warnings & HC_WARN_DENSITY_SIGNAL_BELOW_FEED);
+
+    /* clearly past the end of the path (more than 20 kg/m3 beyond its end
+     * brine, checked first against the path itself); a reading just past
+     * it is kept as the measurement it is */
+    hc_brine_state past;
+    assert_int_equal(hc_path_state_from_density(path, 1399.0, 20.0, 20.0, 145.0, &past), HC_OK);
+    assert_true(past.warnings & HC_WARN_BEYOND_PATH);
+    put(HS_Q_DENSITY, HS_QUALITY_GOOD, 1399.0);
+    compute(models, NULL, &r);
+    assert_int_equal(r.state.method, HC_METHOD_PSS78);
+    assert_true(r.state.warnings & HC_WARN_DENSITY_SIGNAL_BEYOND_PATH);
+    hc_path_point end = *hc_path_step(path, hc_path_step_count(path) - 1);
+    hc_brine_state last;
+    assert_int_equal(hc_path_state_from_cf(path, end.concentration_factor, 20.0, 20.0, 145.0,
+                                           &last), HC_OK);
+    put(HS_Q_DENSITY, HS_QUALITY_GOOD, last.density_kg_m3 + 5.0);
+    compute(models, NULL, &r);
+    assert_int_equal(r.state.method, HC_METHOD_DENSITOMETER);
+    assert_false(r.state.warnings & HC_WARN_DENSITY_SIGNAL_BEYOND_PATH);
+
+    /* nothing else to fall back on: no state, and the note and warning say so */
+    put(HS_Q_CONDUCTIVITY, HS_QUALITY_BAD, NAN);
+    put(HS_Q_DENSITY, HS_QUALITY_GOOD, 1000.0);
+    compute(models, NULL, &r);
+    assert_false(r.have_state);
+    assert_true(r.state.warnings & HC_WARN_DENSITY_SIGNAL_BELOW_FEED);
+    assert_non_null(strstr(r.note, "density"));
+    hs_brine_models_free(models);
+}
+
 /* A recent manual reading: used where conductivity is weak or absent and no
  * density signal exists; never over a density signal; never when too old. */
 static void manual_reading_when_conductivity_is_weak(void **unused)
@@ -323,6 +404,7 @@ int main(void)
         cmocka_unit_test(stage_follows_pond_temperature),
         cmocka_unit_test(beyond_pss78_calibration_or_model),
         cmocka_unit_test(manual_reading_when_conductivity_is_weak),
+        cmocka_unit_test(density_signal_below_feed_or_past_path_not_used),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -98,7 +98,8 @@ static void migrates_an_older_file(void **unused)
     hs_store_close(st);
     /* Make it look like a version-1 file: the rollup index that version 2
      * drops, no uncertainty columns (version 3), no command_seen (version
-     * 4), and the old version number. */
+     * 4), no sample reasons (version 5), one sample already stored, and the
+     * old version number. */
     sqlite3 *db;
     assert_int_equal(sqlite3_open(path, &db), SQLITE_OK);
     assert_int_equal(sqlite3_exec(db, "CREATE INDEX rollup_step_t ON rollup(step_s, t_ms);"
@@ -107,6 +108,11 @@ static void migrates_an_older_file(void **unused)
                                       "ALTER TABLE pond_state DROP COLUMN baume_uncertainty;"
                                       "ALTER TABLE pond_state DROP COLUMN cf_uncertainty;"
                                       "DROP TABLE command_seen;"
+                                      "ALTER TABLE sample DROP COLUMN reason;"
+                                      "ALTER TABLE sample DROP COLUMN code;"
+                                      "INSERT INTO series(id, name) VALUES(1, 'a.density');"
+                                      "INSERT INTO sample(series_id, t_ms, value, quality)"
+                                      " VALUES(1, 1000, 1210.5, 0);"
                                       "PRAGMA user_version = 1;", NULL, NULL, NULL), SQLITE_OK);
     sqlite3_close(db);
     char err[256];
@@ -119,7 +125,58 @@ static void migrates_an_older_file(void **unused)
                      0);
     assert_int_equal(scalar("SELECT count(*) FROM pragma_table_info('pond_state')"
                             " WHERE name LIKE '%uncertainty%'"), 4);
+    assert_int_equal(scalar("SELECT count(*) FROM pragma_table_info('sample')"
+                            " WHERE name IN ('reason', 'code')"), 2);
+    /* the old sample is kept, with no reason */
+    assert_int_equal(scalar("SELECT count(*) FROM sample WHERE value = 1210.5 AND quality = 0"
+                            " AND reason IS NULL AND code IS NULL"), 1);
     assert_int_equal(scalar("SELECT count(*) FROM sqlite_master WHERE name = 'command_seen'"), 1);
+}
+
+struct reason_rows {
+    int n;
+    char reason[4][HS_REASON_MAX];
+    int code[4];
+    hs_quality q[4];
+};
+
+static void collect_reason(void *ctx, const hs_point *p)
+{
+    struct reason_rows *r = ctx;
+    if (r->n < 4) {
+        snprintf(r->reason[r->n], sizeof r->reason[0], "%s", p->reason);
+        r->code[r->n] = p->code;
+        r->q[r->n] = p->worst;
+    }
+    r->n++;
+}
+
+/* The quality reason and its code are stored next to the class and come
+ * back with the raw history (history --signal, export --what samples). */
+static void sample_reasons_stored(void **unused)
+{
+    (void)unused;
+    hs_store *st = open_writer(NULL);
+    assert_int_equal(hs_store_add_sample_why(st, "east-1.density", 1000, 1210.0,
+                                             HS_QUALITY_GOOD, NULL, 0), 0);
+    assert_int_equal(hs_store_add_sample_why(st, "east-1.density", 2000, NAN, HS_QUALITY_BAD,
+                                             "timeout", 110), 0);
+    assert_int_equal(hs_store_add_sample_why(st, "east-1.density", 3000, NAN, HS_QUALITY_BAD,
+                                             "exception", 2), 0);
+    assert_int_equal(hs_store_add_sample_why(st, "east-1.density", 4000, 0.0, HS_QUALITY_BAD,
+                                             "out-of-range", 0), 0);
+    struct reason_rows r = {0};
+    assert_int_equal(hs_store_history(st, "east-1.density", 0, 10000, 0, collect_reason, &r), 4);
+    assert_string_equal(r.reason[0], "");
+    assert_int_equal(r.code[0], 0);
+    assert_string_equal(r.reason[1], "timeout");
+    assert_int_equal(r.code[1], 110);
+    assert_int_equal(r.q[1], HS_QUALITY_BAD);
+    assert_string_equal(r.reason[2], "exception");
+    assert_int_equal(r.code[2], 2);
+    assert_string_equal(r.reason[3], "out-of-range");
+    assert_int_equal(r.code[3], 0);
+    hs_store_close(st);
 }
 
 static void wal_and_strict(void **unused)
@@ -137,7 +194,8 @@ static void wal_and_strict(void **unused)
     assert_string_equal((const char *)sqlite3_column_text(s, 0), "wal");
     sqlite3_finalize(s);
     /* STRICT: text in an integer column is refused. */
-    assert_int_not_equal(sqlite3_exec(db, "INSERT INTO sample VALUES(1, 'noon', 1.0, 0)", NULL,
+    assert_int_not_equal(sqlite3_exec(db, "INSERT INTO sample(series_id, t_ms, value, quality)"
+                                          " VALUES(1, 'noon', 1.0, 0)", NULL,
                                       NULL, NULL), SQLITE_OK);
     sqlite3_close(db);
     hs_store_close(st);
@@ -518,6 +576,7 @@ int main(void)
         cmocka_unit_test_setup_teardown(schema_created_and_versioned, setup, teardown),
         cmocka_unit_test_setup_teardown(migrates_an_older_file, setup, teardown),
         cmocka_unit_test_setup_teardown(wal_and_strict, setup, teardown),
+        cmocka_unit_test_setup_teardown(sample_reasons_stored, setup, teardown),
         cmocka_unit_test_setup_teardown(batch_visible_only_when_committed, setup, teardown),
         cmocka_unit_test_setup_teardown(state_round_trip, setup, teardown),
         cmocka_unit_test_setup_teardown(rollups_match_raw, setup, teardown),
