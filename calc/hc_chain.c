@@ -76,6 +76,8 @@ hc_status hc_chain_point_at(const hc_chain_brine *b, double cf, hc_chain_point *
     out->density_kg_m3 = lerp(b->density_kg_m3, lo, f);
     out->density_ref_kg_m3 = lerp(b->density_ref_kg_m3, lo, f);
     out->water_activity = lerp(b->water_activity, lo, f);
+    out->si_halite = b->si_halite != NULL ? lerp(b->si_halite, lo, f) : NAN;
+    out->si_gypsum = b->si_gypsum != NULL ? lerp(b->si_gypsum, lo, f) : NAN;
     for (size_t k = 0; k < b->n_ions; k++) {
         double m0 = b->molality[lo * b->n_ions + k], m1 = b->molality[(lo + 1) * b->n_ions + k];
         out->molality[k] = m0 + f * (m1 - m0);
@@ -181,7 +183,7 @@ hc_status hc_chain_view_of(const hc_chain_brine *b, const hc_chain_pond *p, hc_c
         out->cf = NAN;
         out->point.cf = NAN;
         out->point.density_kg_m3 = out->point.density_ref_kg_m3 = NAN;
-        out->point.water_activity = NAN;
+        out->point.water_activity = out->point.si_halite = out->point.si_gypsum = NAN;
         out->point.stage = HC_STAGE_NONE;
         return HC_OK;
     }

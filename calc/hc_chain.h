@@ -36,6 +36,8 @@ typedef struct {
     const double *density_kg_m3;       /* at the ponds' temperature: for volumes */
     const double *density_ref_kg_m3;   /* at the reference temperature: for decisions */
     const double *water_activity;      /* [1] */
+    const double *si_halite;           /* saturation index log10(IAP/K); NULL: unknown */
+    const double *si_gypsum;           /* the same for gypsum; NULL: unknown */
     size_t n_ions;                     /* <= HC_MIX_MAX_IONS */
     const double *molality;            /* n x n_ions, row-major [mol/kg water] */
     const double *molar_mass_kg_mol;   /* n_ions */
@@ -62,6 +64,7 @@ typedef struct {
 typedef struct {
     double cf;
     double density_kg_m3, density_ref_kg_m3, water_activity;
+    double si_halite, si_gypsum;       /* NaN when the table has none */
     double molality[HC_MIX_MAX_IONS];
     hc_stage stage;
 } hc_chain_point;

@@ -76,6 +76,103 @@ static void totals(const struct hs_chain_input *in, const hc_chain_pond *p, doub
     }
 }
 
+static void no_emit(void *ctx, const hs_alarm_event *ev)
+{
+    (void)ctx;
+    (void)ev;
+}
+
+/* The site's alarm rules on the day's predicted state: which would be
+ * active. Fed twice, half a day apart, so that on-delays elapse. */
+static void predict_alarms(struct run *r, int day, size_t i, const hc_chain_point *pt)
+{
+    const struct hs_chain_input *in = r->in;
+    struct hs_chain_pond_day *d = hs_chain_pd(r->out, day, i);
+    d->alarms[0] = '\0';
+    if (in->alarms == NULL)
+        return;
+    hc_brine_state s;
+    hc_state_clear(&s);
+    s.density_ref_kg_m3 = d->density_ref_kg_m3;
+    s.baume = d->baume;
+    s.concentration_factor = d->cf;
+    s.stage = (hc_stage)d->stage;
+    s.saturation_index[HC_MIN_HALITE] = pt->si_halite;
+    s.saturation_index[HC_MIN_GYPSUM] = pt->si_gypsum;
+    s.reference_temperature_c = in->t_ref_c;
+    hs_alarm_input ai;
+    hs_alarm_input_clear(&ai);
+    ai.state = &s;
+    ai.depth_m = d->level_m;
+    ai.sample_age_s = 0;
+    ai.bus_down = 0;
+    int64_t t = (int64_t)day * DAY_MS + DAY_MS / 2;
+    ai.state_t_ms = t;
+    hs_alarm_update(in->alarms, in->ponds[i].name, &ai, t, no_emit, NULL);
+    hs_alarm_update(in->alarms, in->ponds[i].name, &ai, t + DAY_MS / 2 - 1, no_emit, NULL);
+    size_t used = 0;
+    for (size_t k = 0; k < hs_alarm_count(in->alarms); k++) {
+        hs_alarm_info info;
+        if (hs_alarm_get(in->alarms, k, &info) != 0 || !info.active ||
+            strcmp(info.pond, in->ponds[i].name) != 0)
+            continue;
+        int n = snprintf(d->alarms + used, sizeof d->alarms - used, "%s%s", used ? "," : "",
+                         info.rule);
+        if (n < 0 || (size_t)n >= sizeof d->alarms - used)
+            break;
+        used += (size_t)n;
+    }
+}
+
+/* Why pond i broke a level limit on `day`: its inflows (for low) or
+ * outflows (for high) that day. */
+static void limit_cause(struct run *r, int day, size_t i, unsigned lim, char *why, size_t len)
+{
+    const struct hs_chain_input *in = r->in;
+    why[0] = '\0';
+    if (day < 1 || !(lim & (HS_CHAIN_LEVEL_LOW | HS_CHAIN_LEVEL_HIGH | HS_CHAIN_OVERFLOW)))
+        return;
+    int low = (lim & HS_CHAIN_LEVEL_LOW) != 0;
+    const char *way = low ? "inflow" : "outflow";
+    int any = 0;
+    for (size_t l = 0; l < in->n_links; l++) {
+        const struct hs_chain_link *k = &in->links[l];
+        if ((low ? k->dest : k->source) != (int)i)
+            continue;
+        const struct hs_chain_link_day *x = hs_chain_ld(r->out, day, l);
+        char reasons[128];
+        hs_transfer_reasons_format(x->reasons & ~(unsigned)HS_XR_TRIGGER_MET, reasons,
+                                   sizeof reasons);
+        int n;
+        if (x->advice == HS_ADVICE_RUN && x->hours >= 24 - 1e-6)
+            n = snprintf(why, len, "%s %s at its pump's capacity", way, k->name);
+        else if (x->advice == HS_ADVICE_RUN)
+            n = snprintf(why, len, "%s %s at the other pond's limit", way, k->name);
+        else
+            n = snprintf(why, len, "%s %s %s: %s", way, k->name, hs_advice_name(x->advice),
+                         reasons);
+        if (n < 0 || (size_t)n >= len)
+            why[len - 1] = '\0'; /* cut short: still a sentence's start */
+        any = 1;
+        break;
+    }
+    if (!any)
+        snprintf(why, len, "no %s configured", way);
+}
+
+/* The stage of a brine: the daemon's judgement when the models are given
+ * (what its stage triggers compare), else the path's at the CF. */
+static int stage_of(const struct hs_chain_input *in, const hc_chain_point *pt)
+{
+    if (in->models != NULL) {
+        hc_stage s = hs_stage_at_density_ref(in->models, in->feed_index, pt->density_ref_kg_m3,
+                                             in->t_ref_c);
+        if (s != HC_STAGE_NONE)
+            return s;
+    }
+    return pt->stage;
+}
+
 static int record(struct run *r, int day)
 {
     const struct hs_chain_input *in = r->in;
@@ -95,7 +192,7 @@ static int record(struct run *r, int day)
         d->cf = v.cf;
         d->density_ref_kg_m3 = v.point.density_ref_kg_m3;
         d->baume = baume_of(in, d->density_ref_kg_m3);
-        d->stage = v.point.stage;
+        d->stage = v.volume_m3 > 0 ? stage_of(in, &v.point) : HC_STAGE_NONE;
         if (day == 0 && p->stage_now_known && p->stage_now >= 0 && p->stage_now < HC_STAGE_COUNT)
             d->stage = p->stage_now; /* one stage computation: the daemon's, now */
         double floor_area = 0;
@@ -115,6 +212,8 @@ static int record(struct run *r, int day)
         if (p->role == HS_ROLE_CRYSTALLISER && d->stage < HC_STAGE_HALITE && v.volume_m3 > 0)
             lim |= HS_CHAIN_GYPSUM_IN_CRYSTALLISER;
         d->limits = lim;
+        limit_cause(r, day, i, lim, d->why, sizeof d->why);
+        predict_alarms(r, day, i, &v.point);
         if (r->out->harvest_day[i] < 0 && isfinite(p->harvest_depth_m) &&
             d->salt_depth_m >= p->harvest_depth_m)
             r->out->harvest_day[i] = day;
@@ -246,7 +345,7 @@ static int run_link(struct run *r, int day, size_t li)
     struct hs_transfer_inputs xin = {
         .now_ms = (int64_t)day * DAY_MS,
         .source_density = {sv.point.density_ref_kg_m3, HS_XQ_GOOD},
-        .source_stage = sv.point.stage,
+        .source_stage = stage_of(in, &sv.point),
         .source_level = {src_level, HS_XQ_GOOD},
         .dest_level = {dst_level, HS_XQ_GOOD},
         .dest_density_after_mixing = {isfinite(mix_rho) ? mix_rho : dv.point.density_ref_kg_m3,
@@ -255,6 +354,9 @@ static int run_link(struct run *r, int day, size_t li)
         .manual = {0, HS_XQ_ABSENT},
         .run_feedback = {0, HS_XQ_ABSENT},
         .bus_up = 1,
+        /* The prediction stands in for the density the rule decides on. */
+        .source_method = l->rule.density_method >= 0 ? l->rule.density_method
+                                                     : HC_METHOD_COMPOSITION,
     };
     struct hs_transfer_decision d;
     hs_transfer_decide(&l->rule, &r->state[li], &xin, day > 1 ? &r->prev[li] : NULL, &d);

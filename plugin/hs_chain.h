@@ -25,6 +25,8 @@
 #include <stddef.h>
 
 #include "hc_chain.h"
+#include "hs_alarm.h"
+#include "hs_brine_eval.h"
 #include "hs_site.h"
 #include "hs_transfer.h"
 
@@ -66,6 +68,14 @@ struct hs_chain_input {
     int sea_fill;                  /* top intake ponds up from the sea */
     double t_ref_c, baume_modulus;
     double salt_bulk_density_kg_m3;/* to turn deposits into a depth */
+    hs_alarm_engine *alarms;       /* optional: the site's alarm rules (hs_alarm_site.h,
+                                      hs_conf_alarm.h), fed each day's predicted state to
+                                      tell which alarms it would raise; NULL: none. The
+                                      caller owns it; the run changes its states. */
+    const hs_brine_models *models; /* optional: stages as the daemon judges them, by density
+                                      at the reference temperature against the onset brines
+                                      (hs_stage_at_density_ref); NULL: from the CF */
+    int feed_index;                /* the feed of the models (-1: built-in seawater) */
 };
 
 /* Per-pond limit flags of a day's end. */
@@ -82,6 +92,8 @@ struct hs_chain_pond_day {
     int stage;                     /* hc_stage */
     double evaporated_mm, salt_depth_m;
     unsigned limits;               /* HS_CHAIN_* */
+    char why[96];                  /* what kept the schedule from a limit ("" none) */
+    char alarms[160];              /* alarm rules active at the day's end, comma-separated */
 };
 
 struct hs_chain_link_day {

@@ -2,6 +2,7 @@
 #include "hs_chain_json.h"
 
 #include <math.h>
+#include <string.h>
 
 #include "hc_state.h"
 
@@ -19,6 +20,19 @@ static json_t *names(unsigned bits, const char *(*name)(unsigned), unsigned nbit
             if (n != NULL)
                 json_array_append_new(a, json_string(n));
         }
+    return a;
+}
+
+/* "a,b" -> ["a", "b"]. */
+static json_t *split(const char *list)
+{
+    json_t *a = json_array();
+    const char *p = list;
+    while (a != NULL && *p != '\0') {
+        size_t n = strcspn(p, ",");
+        json_array_append_new(a, json_stringn(p, n));
+        p += n + (p[n] == ',');
+    }
     return a;
 }
 
@@ -51,13 +65,13 @@ static json_t *pond_day(const struct hs_chain_input *in, const struct hs_chain_r
                         size_t i)
 {
     const struct hs_chain_pond_day *p = hs_chain_pd(r, d, i);
-    return json_pack("{s:s, s:o, s:o, s:o, s:o, s:o, s:s, s:o, s:o, s:o}", "pond",
+    return json_pack("{s:s, s:o, s:o, s:o, s:o, s:o, s:s, s:o, s:o, s:o, s:o, s:s}", "pond",
                      in->ponds[i].name, "level_m", num(p->level_m), "volume_m3",
                      num(p->volume_m3), "density_ref_kg_m3", num(p->density_ref_kg_m3), "baume",
                      num(p->baume), "concentration_factor", num(p->cf), "stage",
                      hc_stage_name((hc_stage)p->stage), "evaporated_mm", num(p->evaporated_mm),
                      "salt_depth_m", num(p->salt_depth_m), "limits",
-                     names(p->limits, limit_name, 8));
+                     names(p->limits, limit_name, 8), "alarms", split(p->alarms), "why", p->why);
 }
 
 static json_t *link_day(const struct hs_chain_input *in, const struct hs_chain_result *r, int d,
@@ -89,9 +103,10 @@ json_t *hs_chain_to_json(const struct hs_chain_input *in, const struct hs_chain_
             unsigned lim = hs_chain_pd(r, d, i)->limits;
             for (unsigned b = 0; b < 8; b++)
                 if (lim & (1u << b))
-                    json_array_append_new(broken, json_pack("{s:i, s:s, s:s}", "day", d, "pond",
-                                                            in->ponds[i].name, "limit",
-                                                            limit_name(1u << b)));
+                    json_array_append_new(broken, json_pack("{s:i, s:s, s:s, s:s}", "day", d,
+                                                            "pond", in->ponds[i].name, "limit",
+                                                            limit_name(1u << b), "why",
+                                                            hs_chain_pd(r, d, i)->why));
         }
         for (size_t l = 0; links && l < r->n_links; l++)
             json_array_append_new(links, link_day(in, r, d, l));

@@ -8,6 +8,8 @@
 
 #include "hc_balance.h"
 #include "hc_ion.h"
+#include "hs_alarm_site.h"
+#include "hs_conf_alarm.h"
 #include "hs_chain_json.h"
 #include "hs_hydro.h"
 #include "hs_hydro_brine.h"
@@ -142,9 +144,9 @@ out:
     return rc;
 }
 
-int hs_chain_plan_make(const hs_site *site, hs_store *st, int64_t now_ms,
-                       const struct hs_chain_options *o, struct hs_chain_plan *p, char *err,
-                       size_t errlen)
+int hs_chain_plan_make(const hs_site *site, const hs_brine_models *models, hs_store *st,
+                       int64_t now_ms, const struct hs_chain_options *o,
+                       struct hs_chain_plan *p, char *err, size_t errlen)
 {
     memset(p, 0, sizeof *p);
     p->evaporation.source = "";
@@ -154,11 +156,15 @@ int hs_chain_plan_make(const hs_site *site, hs_store *st, int64_t now_ms,
         snprintf(err, errlen, "days must be 1..%d", HS_CHAIN_MAX_DAYS);
         return -1;
     }
-    if (hs_paths_build(site, &p->paths) != 0) {
-        snprintf(err, errlen, "out of memory");
-        return -1;
+    if (models == NULL) {
+        if (hs_brine_models_build(site, &p->own_models) != 0) {
+            snprintf(err, errlen, "the brine models of the site's feeds failed");
+            return -1;
+        }
+        models = p->own_models;
     }
-    const hc_path *path = hs_paths_for(&p->paths, site->site.feed_index);
+    int feed = site->site.feed_index;
+    const hc_path *path = hs_brine_models_path(models, feed);
     if (path == NULL) {
         snprintf(err, errlen, "the site feed's evaporation path failed");
         hs_chain_plan_free(p);
@@ -173,9 +179,19 @@ int hs_chain_plan_make(const hs_site *site, hs_store *st, int64_t now_ms,
     for (int d = 0; d < o->days; d++)
         p->rain[d] = o->rain_mm != NULL ? o->rain_mm[d] : 0;
     double modulus = isfinite(site->site.baume_modulus) ? site->site.baume_modulus : 145.0;
+    /* The daemon's rules: configured ones first, so they win over built-ins. */
+    p->alarms = hs_alarm_new(1);
+    if (p->alarms == NULL) {
+        snprintf(err, errlen, "out of memory");
+        hs_chain_plan_free(p);
+        return -1;
+    }
+    hs_conf_alarms_apply(site, p->alarms);
+    hs_alarm_site_rules(site, p->alarms);
     p->in = (struct hs_chain_input){&p->tables.view, p->cs.n_ponds, p->cs.ponds, p->cs.n_links,
                                     p->cs.links, o->days, p->rain, o->relative_humidity,
-                                    o->sea_fill, o->t_ref_c, modulus, HS_CHAIN_HALITE_DENSITY};
+                                    o->sea_fill, o->t_ref_c, modulus, HS_CHAIN_HALITE_DENSITY,
+                                    p->alarms, models, feed};
     if (hs_chain_run(&p->in, &p->result, err, errlen) != 0) {
         hs_chain_plan_free(p);
         return -1;
@@ -186,9 +202,12 @@ int hs_chain_plan_make(const hs_site *site, hs_store *st, int64_t now_ms,
 void hs_chain_plan_free(struct hs_chain_plan *p)
 {
     hs_chain_result_free(&p->result);
+    hs_alarm_free(p->alarms);
+    p->alarms = NULL;
     hs_chain_site_free(&p->cs);
     hs_chain_tables_free(&p->tables);
-    hs_paths_free(&p->paths);
+    hs_brine_models_free(p->own_models);
+    p->own_models = NULL;
 }
 
 json_t *hs_chain_plan_json(const struct hs_chain_plan *p, const char *site_name, int64_t now_ms)

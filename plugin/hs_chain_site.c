@@ -9,6 +9,7 @@
 #include "hc_ion.h"
 #include "hs_conf_transfer.h"
 #include "hs_hydro_brine.h"
+#include "hs_pond_shape.h"
 
 int hs_chain_tables_from_path(const hc_path *path, double t_ref_c, struct hs_chain_tables *t,
                               char *err, size_t errlen)
@@ -20,7 +21,9 @@ int hs_chain_tables_from_path(const hc_path *path, double t_ref_c, struct hs_cha
     t->rho_ref = calloc(n ? n : 1, sizeof *t->rho_ref);
     t->aw = calloc(n ? n : 1, sizeof *t->aw);
     t->mol = calloc((n ? n : 1) * HC_ION_COUNT, sizeof *t->mol);
-    if (!t->cf || !t->rho || !t->rho_ref || !t->aw || !t->mol) {
+    t->si_halite = calloc(n ? n : 1, sizeof *t->si_halite);
+    t->si_gypsum = calloc(n ? n : 1, sizeof *t->si_gypsum);
+    if (!t->cf || !t->rho || !t->rho_ref || !t->aw || !t->mol || !t->si_halite || !t->si_gypsum) {
         snprintf(err, errlen, "chain: out of memory");
         hs_chain_tables_free(t);
         return -1;
@@ -39,6 +42,9 @@ int hs_chain_tables_from_path(const hc_path *path, double t_ref_c, struct hs_cha
         t->rho[rows] = p->density_kg_m3;
         t->rho_ref[rows] = rho_ref;
         t->aw[rows] = p->water_activity;
+        /* -HUGE_VAL (an ion absent) is kept as a very low index. */
+        t->si_halite[rows] = fmax(p->saturation_index[HC_MIN_HALITE], -99.0);
+        t->si_gypsum[rows] = fmax(p->saturation_index[HC_MIN_GYPSUM], -99.0);
         for (int k = 0; k < HC_ION_COUNT; k++)
             t->mol[rows * HC_ION_COUNT + (size_t)k] = p->molality[k];
         rows++;
@@ -55,6 +61,8 @@ int hs_chain_tables_from_path(const hc_path *path, double t_ref_c, struct hs_cha
     b->density_kg_m3 = t->rho;
     b->density_ref_kg_m3 = t->rho_ref;
     b->water_activity = t->aw;
+    b->si_halite = t->si_halite;
+    b->si_gypsum = t->si_gypsum;
     b->n_ions = HC_ION_COUNT;
     b->molality = t->mol;
     b->molar_mass_kg_mol = t->molar_mass;
@@ -70,6 +78,8 @@ void hs_chain_tables_free(struct hs_chain_tables *t)
     free(t->rho_ref);
     free(t->aw);
     free(t->mol);
+    free(t->si_halite);
+    free(t->si_gypsum);
     memset(t, 0, sizeof *t);
 }
 
@@ -114,27 +124,12 @@ int hs_chain_site_build(const hs_site *site, double default_flow, struct hs_chai
         c->level_m = c->density_ref_kg_m3 = c->evap_fresh_mm_day = NAN;
         c->harvest_depth_m = NAN;
         c->deposit_start_kg = 0;
-        if (p->stage_storage[0] != '\0') {
-            char path[2 * HS_PATH_MAX + 2];
-            if (p->stage_storage[0] == '/')
-                snprintf(path, sizeof path, "%s", p->stage_storage);
-            else
-                snprintf(path, sizeof path, "%s/%s", site->dir, p->stage_storage);
-            if (hs_stage_table_load(path, &out->tables[i], err, errlen) != 0) {
-                hs_chain_site_free(out);
-                return -1;
-            }
-            c->shape.is_table = 1;
-            c->shape.table = out->tables[i].view;
-        } else if (isfinite(p->floor_area_m2) && p->floor_area_m2 > 0) {
-            c->shape.is_table = 0;
-            c->shape.prism.floor_area_m2 = p->floor_area_m2;
-            c->shape.prism.floor_perimeter_m = 0;
-            c->shape.prism.side_slope = isfinite(p->side_slope) ? p->side_slope : 0;
-            c->shape.prism.max_level_m = isfinite(p->freeboard_m) ? p->freeboard_m : 10.0;
-        } else {
-            snprintf(err, errlen, "%s:%d: [pond %s]: the chain needs its area or a stage_storage "
-                     "table", site->path, p->line, p->name);
+        int loaded = 0;
+        int rc = hs_pond_shape_of(p, &out->tables[i], &loaded, &c->shape, err, errlen);
+        if (rc != 0) {
+            if (rc > 0)
+                snprintf(err, errlen, "%s:%d: [pond %s]: the chain needs its area or a "
+                         "stage_storage table", site->path, p->line, p->name);
             hs_chain_site_free(out);
             return -1;
         }

@@ -20,7 +20,7 @@
 
 struct hs_chain_tables {
     hc_chain_brine view;
-    double *cf, *rho, *rho_ref, *aw, *mol;
+    double *cf, *rho, *rho_ref, *aw, *mol, *si_halite, *si_gypsum;
     double molar_mass[HC_MIX_MAX_IONS];
 };
 

@@ -7,6 +7,7 @@
 #include <unistd.h>
 
 #include "hc_level.h"
+#include "hs_alarm_site.h"
 #include "hs_conf_alarm.h"
 #include "hs_conf_mqtt.h"
 #include "hs_conf_web.h"
@@ -18,46 +19,10 @@
 #define COMMANDS_EVERY_MS 1000 /* operator commands queued by the CLI */
 #define FLUSH_WAIT_MS 5000     /* at close: how long to wait for the broker */
 
-/* ---- built-in alarm rules: what every pond gets from its own limits ---- */
-
 static void add_rule(hs_runtime *rt, const char *pond, hs_rule_kind kind, const char *name,
                      double low, double high)
 {
-    hs_alarm_rule r;
-    hs_alarm_rule_default(&r, kind);
-    snprintf(r.name, sizeof r.name, "%s", name);
-    if (!isnan(low))
-        r.low = low;
-    if (!isnan(high))
-        r.high = high;
-    if (hs_alarm_rule_check(&r) != NULL)
-        return; /* a limit the pond does not have */
-    hs_alarm_add(rt->alarms, &r, pond);
-}
-
-static void add_alarm_rules(hs_runtime *rt)
-{
-    for (size_t i = 0; i < rt->site.n_ponds; i++) {
-        const hs_pond *p = &rt->site.ponds[i];
-        add_rule(rt, p->name, HS_RULE_LEVEL_HIGH, "level-high", NAN, p->level_max_m);
-        add_rule(rt, p->name, HS_RULE_LEVEL_LOW, "level-low", p->level_min_m, NAN);
-        if (isfinite(p->freeboard_m))
-            /* 5 cm below the dike crest: spill is imminent (common practice,
-             * no source) */
-            add_rule(rt, p->name, HS_RULE_LEVEL_HIGH_HIGH, "level-high-high", NAN,
-                     p->freeboard_m - 0.05);
-        add_rule(rt, p->name, HS_RULE_DENSITY_BAND, "density-band", p->density_in_kg_m3, NAN);
-        add_rule(rt, p->name, HS_RULE_SENSOR_STALE, "sensor-stale", NAN, NAN);
-        add_rule(rt, p->name, HS_RULE_BUS_DOWN, "bus-down", NAN, NAN);
-        add_rule(rt, p->name, HS_RULE_SENSOR_STUCK, "sensor-stuck", NAN, NAN);
-        add_rule(rt, p->name, HS_RULE_DENSITY_FALL, "density-fall", NAN, NAN);
-        if (p->role == HS_ROLE_INTAKE || p->role == HS_ROLE_CONCENTRATOR)
-            add_rule(rt, p->name, HS_RULE_NEAR_SATURATION, "near-saturation", NAN, NAN);
-        if (p->role == HS_ROLE_CRYSTALLISER) {
-            add_rule(rt, p->name, HS_RULE_GYPSUM_IN_FEED, "gypsum-in-feed", NAN, NAN);
-            add_rule(rt, p->name, HS_RULE_BITTERN_LIMIT, "bittern-limit", NAN, NAN);
-        }
-    }
+    hs_alarm_site_add_rule(rt->alarms, pond, kind, name, low, high);
 }
 
 /* Each actuated transfer's output alarms; the alarm's "pond" is the
@@ -99,7 +64,7 @@ static int alarms_open(hs_runtime *rt)
     if (rt->alarms == NULL)
         return -1;
     hs_conf_alarms_apply(&rt->site, rt->alarms); /* first: a configured rule wins */
-    add_alarm_rules(rt);
+    hs_alarm_site_rules(&rt->site, rt->alarms);
     add_transfer_alarm_rules(rt);
     hs_store_journal_latest(rt->store, restore_alarm, rt);
     return 0;

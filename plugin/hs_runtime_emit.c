@@ -92,6 +92,7 @@ void hs_rt_emit_pond(hs_runtime *rt, size_t pond, int64_t now_ms)
     } while (0)
     NUM("density_kg_m3", s->density_kg_m3, "kg/m3");
     NUM("density_ref_kg_m3", s->density_ref_kg_m3, "kg/m3");
+    NUM("density_uncertainty_kg_m3", s->density_uncertainty_kg_m3, "kg/m3");
     NUM("baume", s->baume, "degBe");
     NUM("specific_gravity", s->specific_gravity, "");
     NUM("temperature_c", s->temperature_c, "degC");

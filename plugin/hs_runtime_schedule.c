@@ -3,7 +3,9 @@
  * (hs_chain_plan.h) is published retained on <prefix>/<site>/schedule.
  * Advice only: the daemon never acts on it. A schedule that cannot be made
  * (no achieved evaporation yet, a pond without a state) is retried every
- * SCHEDULE_RETRY_MS and the reason logged. */
+ * SCHEDULE_RETRY_MS (every SCHEDULE_EARLY_RETRY_MS in the first
+ * SCHEDULE_EARLY_MS after a start, while the first states settle) and the
+ * reason logged. */
 #include <math.h>
 #include <stdio.h>
 
@@ -13,6 +15,8 @@
 
 #define SCHEDULE_DAYS 7
 #define SCHEDULE_RETRY_MS (10 * 60000LL)  /* after a failure */
+#define SCHEDULE_EARLY_RETRY_MS 30000LL   /* ... in the first minutes, while states settle */
+#define SCHEDULE_EARLY_MS (15 * 60000LL)
 #define SCHEDULE_LOOK_MS 60000LL          /* for the next UTC day */
 #define DAY_MS 86400000LL
 
@@ -36,10 +40,13 @@ void hs_rt_schedule_tick(hs_runtime *rt, int64_t mono_ms, int64_t now_ms)
     o.days = SCHEDULE_DAYS;
     struct hs_chain_plan plan;
     char err[256], topic[HS_TOPIC_MAX];
-    if (hs_chain_plan_make(&rt->site, rt->store, now_ms, &o, &plan, err, sizeof err) != 0) {
-        hs_log(HSP_LOG_WARNING, "schedule: %s; trying again in %lld min", err,
-               (long long)(SCHEDULE_RETRY_MS / 60000));
-        rt->next_schedule_ms = mono_ms + SCHEDULE_RETRY_MS;
+    int64_t retry = now_ms - rt->started_ms < SCHEDULE_EARLY_MS ? SCHEDULE_EARLY_RETRY_MS
+                                                                : SCHEDULE_RETRY_MS;
+    if (hs_chain_plan_make(&rt->site, rt->models, rt->store, now_ms, &o, &plan, err,
+                           sizeof err) != 0) {
+        hs_log(HSP_LOG_WARNING, "schedule: %s; trying again in %lld s", err,
+               (long long)(retry / 1000));
+        rt->next_schedule_ms = mono_ms + retry;
         return;
     }
     json_t *doc = hs_chain_plan_json(&plan, rt->site.site.name, now_ms);
@@ -52,9 +59,9 @@ void hs_rt_schedule_tick(hs_runtime *rt, int64_t mono_ms, int64_t now_ms)
         rt->schedule_day = day;
         rt->next_schedule_ms = mono_ms + SCHEDULE_LOOK_MS;
     } else {
-        hs_log(HSP_LOG_WARNING, "schedule: could not queue it; trying again in %lld min",
-               (long long)(SCHEDULE_RETRY_MS / 60000));
-        rt->next_schedule_ms = mono_ms + SCHEDULE_RETRY_MS;
+        hs_log(HSP_LOG_WARNING, "schedule: could not queue it; trying again in %lld s",
+               (long long)(retry / 1000));
+        rt->next_schedule_ms = mono_ms + retry;
     }
     hs_chain_plan_free(&plan);
 }

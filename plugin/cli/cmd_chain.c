@@ -249,10 +249,23 @@ static void print_text(const struct hs_chain_input *in, const struct hs_chain_re
                    p->level_m, p->density_ref_kg_m3, p->baume, hc_stage_name((hc_stage)p->stage));
             if (in->ponds[i].role == HS_ROLE_CRYSTALLISER)
                 printf(" salt %.3f m", p->salt_depth_m);
-            printf("%s%s\n", lim[0] ? "  LIMIT " : "", lim);
+            printf("%s%s", lim[0] ? "  LIMIT " : "", lim);
+            printf("%s%s\n", p->alarms[0] ? "  alarms " : "", p->alarms);
         }
     }
     printf("\n");
+    int broken = 0;
+    for (int d = 1; d <= r->days; d++)
+        for (size_t i = 0; i < r->n_ponds; i++) {
+            const struct hs_chain_pond_day *p = hs_chain_pd(r, d, i);
+            if (!p->limits)
+                continue;
+            char lim[128];
+            hs_chain_limits_format(p->limits, lim, sizeof lim);
+            if (!broken++)
+                printf("limits the schedule does not keep:\n");
+            printf("  day %-3d %-10s %-16s %s\n", d, in->ponds[i].name, lim, p->why);
+        }
     for (size_t i = 0; i < r->n_ponds; i++)
         if (in->ponds[i].role == HS_ROLE_CRYSTALLISER) {
             if (r->harvest_day[i] >= 0)
@@ -299,7 +312,7 @@ int hs_cmd_chain(int argc, char **argv)
     char err[512];
     int64_t now = (int64_t)time(NULL) * 1000;
     rc = 1;
-    if (hs_chain_plan_make(&ctx.site, ctx.store, now, &o, &plan, err, sizeof err) != 0) {
+    if (hs_chain_plan_make(&ctx.site, NULL, ctx.store, now, &o, &plan, err, sizeof err) != 0) {
         fprintf(stderr, "halostage " CMD ": %s\n", err);
         hs_hcli_close(&ctx);
         return 1;

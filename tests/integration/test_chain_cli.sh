@@ -42,6 +42,14 @@ print(t['advice'] == 'blocked' and 'rain' in t['reasons'])")" = True
 check "hours = volume / rated flow, within a day" test "$($PY -c "
 import json; d=json.load(open('$out'))
 print(all(0 <= t['hours'] <= 24 and (t['volume_m3'] == 0 or t['hours'] > 0) for x in d['days'] for t in x['transfers']))")" = True
+check "the engine gets every input it needs (no bad, stale, bus or density-source reasons)" \
+    test "$($PY - "$out" <<'PY'
+import json, sys
+d = json.load(open(sys.argv[1]))
+bad = {"bad-input", "stale-input", "bus-down", "density-source", "manual-unknown"}
+print(not any(bad & set(t["reasons"]) for x in d["days"] for t in x["transfers"]))
+PY
+)" = True
 check "the store-to-x1 rule (stage trigger, halite) is followed" test "$($PY -c "
 import json; d=json.load(open('$out'))
 ok=True

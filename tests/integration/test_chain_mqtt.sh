@@ -33,7 +33,9 @@ hs_wait_port "$dikes" 10 && hs_wait_port "$analysers" 10 || not_ok "simulator di
 "$D" --config "$cfg" >"$HS_TMP/daemon.out" 2>"$HS_TMP/daemon.log" &
 HS_PIDS+=($!)
 check "the daemon logs a published schedule" \
-    hs_wait_file_line "$HS_TMP/daemon.log" "schedule: 7 days published" 60
+    hs_wait_file_line "$HS_TMP/daemon.log" "schedule: 7 days published" 120
+grep -q "schedule: 7 days published" "$HS_TMP/daemon.log" ||
+    echo "# daemon log: $(tail -5 "$HS_TMP/daemon.log")"
 # A subscriber that comes later still gets it: retained.
 mosquitto_sub -h 127.0.0.1 -p "$mport" -t 'halostage/demo-works/schedule' -C 1 -W 20 \
     >"$HS_TMP/schedule.json" 2>"$HS_TMP/sub.err"

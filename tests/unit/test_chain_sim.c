@@ -162,7 +162,7 @@ static void schedule_follows_simulator_for_7_days(void **state)
     /* The simulator's shower of hour 240 (8 mm) falls on day 7. */
     double rain[7] = {0, 0, 0, 0, 0, 0, 8.0};
     struct hs_chain_input in = {&f->tables.view, n, f->cs.ponds, f->cs.n_links, f->cs.links,
-                                7, rain, NAN, 0, 20.0, 145.0, 2165.0};
+                                7, rain, NAN, 0, 20.0, 145.0, 2165.0, NULL, NULL, -1};
     struct hs_chain_result r;
     char err[256];
     assert_int_equal(hs_chain_run(&in, &r, err, sizeof err), 0);
