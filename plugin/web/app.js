@@ -383,7 +383,7 @@ function timeChart(box, rows, opt) {
     if (opt.limitNames) g.append(sv('text', { x: W - R - 4, y: Y(v) - 4, 'text-anchor': 'end', class: 'limitname' }, opt.limitNames[i]));
   });
   if (opt.band && opt.bandNames) opt.band.forEach((v, i) => {
-    if (fin(v)) g.append(sv('text', { x: W - R - 4, y: Y(v) + (i ? -4 : 14), 'text-anchor': 'end', class: 'limitname' }, opt.bandNames[i]));
+    if (fin(v)) g.append(sv('text', { x: W - R - 4, y: Y(v) - 4, 'text-anchor': 'end', class: 'limitname' }, opt.bandNames[i]));
   });
   const top = pts.map((r) => `${X(r[0]).toFixed(1)},${Y(fin(r[3]) ? r[3] : r[2]).toFixed(1)}`);
   const bot = pts.slice().reverse().map((r) => `${X(r[0]).toFixed(1)},${Y(fin(r[1]) ? r[1] : r[2]).toFixed(1)}`);
@@ -430,7 +430,7 @@ function pathChart(box, path) {
   if (now && fin(now.concentration_factor) && fin(nv)) {
     const x = X(now.concentration_factor), y = Y(nv);
     g.append(sv('circle', { cx: x, cy: y, r: 9, class: 'here' }));
-    g.append(sv('text', { x: x + (x > W - 200 ? -14 : 14), y: y - 12, 'text-anchor': x > W - 200 ? 'end' : 'start', 'font-weight': 'bold' },
+    g.append(sv('text', { x: x + (x > W - 200 ? -14 : 14), y: y - 12, 'text-anchor': x > W - 200 ? 'end' : 'start', class: 'herelabel' },
       `${path.pond} now: ${densityText(now)}, ${now.concentration_factor.toFixed(2)}×`));
   }
   g.append(sv('line', { x1: L, x2: L, y1: T, y2: H - B, class: 'axis' }));

@@ -186,6 +186,10 @@ for t, p in msgs:
         if aliases.setdefault(m.alias, (dev, m.name)) != (dev, m.name):
             fails.append("alias %d used twice" % m.alias)
 print("DBIRTH messages", n_dbirth, "aliases", len(aliases))
+# the document's numbers flow through: a density at the reference temperature
+ref = [value(m) for t, p in msgs if t[2] == "DBIRTH" for m in p.metrics
+       if m.name == "density_ref_kg_m3" and value(m) is not None]
+if not ref or not all(990 < v < 1400 for v in ref): fails.append("density_ref_kg_m3 %s" % ref[:3])
 
 # DDATA only on change; seq consecutive after each NBIRTH
 last = {}

@@ -46,7 +46,7 @@ for ((i = 0; i < 300; i++)); do all_states && break; sleep 0.1; done
 check "a state with a stage for every pond reached MQTT" all_states
 "$H" status --config "$cfg" >"$HS_TMP/running.txt" 2>&1
 check "status while running: the daemon's PID holds the site" \
-    grep -qE "^daemon: running, PID $dpid holds the site lock" "$HS_TMP/running.txt"
+    grep -qE "^daemon: running, PID $dpid holds the site lock \(since " "$HS_TMP/running.txt"
 
 # Stop the daemon: every outlet then holds its last state, so they can agree.
 kill -TERM "$dpid"
@@ -86,7 +86,7 @@ check "status, forecast, chain and MQTT give every pond the same stage ($(cat "$
 
 # Not running: said, with since when and the last PID; ages; stale after 3 s.
 "$H" status --config "$cfg" >"$HS_TMP/stopped.txt" 2>&1
-check "status after the stop: NOT RUNNING, since when, PID $dpid last held the site" \
+check "status after the stop: not running, since when, PID $dpid last held the site" \
     grep -qE "^daemon: NOT RUNNING since 20[0-9-]+T[0-9:.]+Z \(.* ago, stopped\); PID $dpid last held the site" "$HS_TMP/stopped.txt"
 check "status has an AGE column" grep -qE '^POND .* QUALITY +AGE +ALARMS' "$HS_TMP/stopped.txt"
 stale_all() {

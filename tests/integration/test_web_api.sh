@@ -12,7 +12,7 @@ H=$HS_BUILD/halostage
 
 # --check refuses what must not run
 conf=$HS_TMP/check.ini
-sed '/^\[web\]/,$d' config/reference.ini >"$conf"
+cp config/demo.ini "$conf"
 printf '\n[web]\nlisten = 0.0.0.0:8480\n' >>"$conf"
 out=$("$D" --config "$conf" --check 2>&1); rc=$?
 check "--check refuses a non-loopback listen without users_file (78, names listen)" \
@@ -26,7 +26,7 @@ check "--check refuses a listen that is not a numeric address" test "$rc" -eq 78
 
 # halostage user
 conf=$HS_TMP/users.ini
-sed '/^\[web\]/,$d' config/reference.ini >"$conf"
+cp config/demo.ini "$conf"
 printf '\n[web]\nlisten = 127.0.0.1:8480\nusers_file = people\n' >>"$conf"
 check "user add reads the password from stdin" sh -c "printf 'a-long-secret\n' | '$H' user --config '$conf' add mara --role operator >/dev/null"
 check "the users file holds a yescrypt hash, never the password" \

@@ -20,6 +20,7 @@
 #include "hc_path.h"
 #include "hs_alarm.h"
 #include "hs_brine_eval.h"
+#include "pond_fixture.h"
 
 static hs_site site;
 static hs_pond pond;
@@ -28,25 +29,8 @@ static hs_reading rd[HS_QUANTITY_COUNT];
 
 static void setup_site(void)
 {
-    memset(&site, 0, sizeof site);
-    memset(&pond, 0, sizeof pond);
-    snprintf(site.site.name, sizeof site.site.name, "t");
-    site.site.latitude_deg = 40.0;
-    site.site.reference_temperature_c = 20.0;
-    site.site.baume_modulus = 145.0;
-    pond.feed_index = -1;
+    pond_fixture(&site, &pond, sig, rd);
     pond.role = HS_ROLE_CRYSTALLISER;
-    site.ponds = &pond;
-    site.n_ponds = 1;
-    for (int q = 0; q < HS_QUANTITY_COUNT; q++) {
-        memset(&sig[q], 0, sizeof sig[q]);
-        sig[q].quantity = (hs_quantity)q;
-        sig[q].pond_index = 0;
-        sig[q].si_factor = 1.0;
-        rd[q] = (hs_reading){.value = NAN, .quality = HS_QUALITY_BAD};
-    }
-    site.signals = sig;
-    site.n_signals = HS_QUANTITY_COUNT;
 }
 
 static unsigned rng = 20261202u;

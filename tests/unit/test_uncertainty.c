@@ -16,6 +16,7 @@
 #include "hc_level.h"
 #include "hc_uncertainty.h"
 #include "hs_brine_eval.h"
+#include "pond_fixture.h"
 
 #define near(a, b, tol) assert_true(fabs((double)(a) - (double)(b)) <= (tol))
 
@@ -43,26 +44,7 @@ static void compute(const hs_brine_models *models, const hs_pond_aids *aids, hs_
 
 static void setup_site(void)
 {
-    memset(&site, 0, sizeof site);
-    memset(&pond, 0, sizeof pond);
-    snprintf(site.site.name, sizeof site.site.name, "t");
-    site.site.latitude_deg = 40.0;
-    site.site.reference_temperature_c = 20.0;
-    site.site.baume_modulus = 145.0;
-    pond.pressure_spacing_m = 0.5;
-    pond.pressure_height_m = 0.1;
-    pond.feed_index = -1;
-    site.ponds = &pond;
-    site.n_ponds = 1;
-    for (int q = 0; q < HS_QUANTITY_COUNT; q++) {
-        memset(&sig[q], 0, sizeof sig[q]);
-        sig[q].quantity = (hs_quantity)q;
-        sig[q].pond_index = 0;
-        sig[q].si_factor = 1.0;
-        rd[q] = (hs_reading){.value = NAN, .quality = HS_QUALITY_BAD};
-    }
-    site.signals = sig;
-    site.n_signals = HS_QUANTITY_COUNT;
+    pond_fixture(&site, &pond, sig, rd);
 }
 
 /* accuracy = +-abs on signal q (0: a perfect instrument). */
