@@ -61,6 +61,9 @@ static const hs_key signal_keys[] = {
             "(0 = off); default 4h for conductivity and temperature, else off"),
     KEY_DUR("poll_interval", G, point.interval_ms, 100, 86400 * SEC_MS, HS_NO_DEFAULT,
             HS_KEY_RELOADABLE, "default: the bus's poll_interval"),
+    KEY_DBL("store_deadband", G, store_deadband, NULL, 0, 1e9, HS_NO_DEFAULT, HS_KEY_RELOADABLE,
+            "raw sample kept when it moved more than this (signal unit); default: [site] "
+            "store_deadband percent"),
     {NULL},
 };
 
@@ -95,6 +98,7 @@ static int signal_add(hs_site *site, hs_cfg *cfg, const char *name)
     g->pond_index = g->bus_index = -1;
     g->point.valid_min = -INFINITY;
     g->point.valid_max = INFINITY;
+    g->store_deadband = NAN; /* the [site] percent */
     return i;
 }
 

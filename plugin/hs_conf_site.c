@@ -28,6 +28,17 @@ static const hs_key site_keys[] = {
             "400d", HS_KEY_RELOADABLE, "1-minute rollups older than this are deleted"),
     KEY_DUR("hour_retention", S, hour_retention_ms, 86400 * SEC_MS, 36500.0 * 86400 * SEC_MS,
             "3650d", HS_KEY_RELOADABLE, "1-hour rollups older than this are deleted"),
+    KEY_DUR("commit_interval", S, commit_interval_ms, 1 * SEC_MS, 3600 * SEC_MS, "5min",
+            HS_KEY_RELOADABLE, "samples and pond states are written to disk in one batch this "
+            "often (alarms, commands and messages at once); a power cut loses at most this"),
+    KEY_DBL("store_deadband", S, store_deadband_pct, NULL, 0, 100, "0.5", HS_KEY_RELOADABLE,
+            "a raw sample is kept when it moved more than this percent of the last kept value "
+            "(each sample still counts in the rollups)"),
+    KEY_DUR("store_max_interval", S, store_max_interval_ms, 1 * SEC_MS, 86400 * SEC_MS, "15min",
+            HS_KEY_RELOADABLE, "... or when this long has passed since the last kept one"),
+    KEY_DUR("full_rate_window", S, full_rate_window_ms, 0, 30 * 86400 * SEC_MS, "0s",
+            HS_KEY_RELOADABLE, "every raw sample is kept this long, then only the kept ones "
+            "(0: off)"),
     {NULL},
 };
 

@@ -292,7 +292,7 @@ void hs_conf_transfer_rule(const hs_site *site, const hs_transfer_conf *t,
     rule->has_feedback = t->feedback_index >= 0;
     rule->lockout_after = t->lockout_after;
     /* a transfer decides on the best density source its pond is built with
-     * (DESIGN "Where the brine state comes from"); a fallback is not it */
+     * (the order in hs_brine_eval.h); a fallback is not it */
     rule->density_method = -1;
     if (src != NULL && hs_site_signal(site, t->source_index, HS_Q_DENSITY) != NULL)
         rule->density_method = HC_METHOD_DENSITOMETER;

@@ -195,6 +195,29 @@ static void level_volume(const hs_pond *pd, double depth_m, struct hs_hydro_repo
         hs_stage_table_free(&table);
 }
 
+/* On stderr, one line per device (bus, unit id) that did not answer at all:
+ * every one of its signals timed out or was not asked (hp_bus.h). */
+static void say_silent_devices(const hs_site *site, const latest *got)
+{
+    for (size_t i = 0; i < site->n_signals; i++) {
+        const hs_signal *g = &site->signals[i];
+        int first = 1, silent = 1;
+        for (size_t j = 0; j < site->n_signals; j++) {
+            const hs_signal *h = &site->signals[j];
+            if (h->bus_index != g->bus_index || h->point.unit_id != g->point.unit_id)
+                continue;
+            if (j < i)
+                first = 0; /* said from its first signal */
+            const char *why = got[j].seen ? hp_sample_reason(&got[j].sample) : "";
+            silent &= strcmp(why, "timeout") == 0 || strcmp(why, "device-down") == 0;
+        }
+        if (first && silent && g->bus_index >= 0)
+            fprintf(stderr, "halostaged: [bus %s] device (unit id) %u did not answer; its "
+                    "signals are comm-fail, the other devices were read\n", g->bus,
+                    g->point.unit_id);
+    }
+}
+
 static void print_ponds(const hs_site *site, const latest *got, const hs_brine_models *models,
                         bool json)
 {
@@ -289,6 +312,7 @@ int hs_once_run(const char *config_path, bool json)
         return 1;
     }
     if (got && poll_once(&site, got) == 0) {
+        say_silent_devices(&site, got);
         if (!json)
             print_text(&site, got);
         print_ponds(&site, got, models, json);

@@ -78,6 +78,10 @@ static void site_parts_free(hs_runtime *rt)
     hs_rt_hydro_free(rt);
     hs_brine_models_free(rt->models);
     rt->models = NULL;
+    if (rt->keep != NULL)
+        hs_rt_keep_flush(rt); /* the open minutes of the signals going away */
+    free(rt->keep);
+    rt->keep = NULL;
     free(rt->readings);
     free(rt->ponds);
     free(rt->transfers);
@@ -94,6 +98,11 @@ static int site_parts_open(hs_runtime *rt, hs_brine_models *models)
     if (hc_gravity(site->site.latitude_deg, site->site.elevation_m, &rt->gravity_m_s2) != HC_OK)
         rt->gravity_m_s2 = HC_STANDARD_GRAVITY;
     rt->readings = calloc(site->n_signals ? site->n_signals : 1, sizeof *rt->readings);
+    rt->keep = calloc(site->n_signals ? site->n_signals : 1, sizeof *rt->keep);
+    if (rt->keep == NULL)
+        return -1;
+    if (rt->store != NULL)
+        hs_store_set_full_rate_window(rt->store, site->site.full_rate_window_ms);
     rt->ponds = calloc(site->n_ponds ? site->n_ponds : 1, sizeof *rt->ponds);
     rt->transfers = calloc(site->n_transfers ? site->n_transfers : 1, sizeof *rt->transfers);
     if (!rt->readings || !rt->ponds || !rt->transfers)
@@ -187,6 +196,7 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
     rt->next_eval_ms = mono;
     rt->next_maintain_ms = mono + HS_RT_MAINTAIN_MS;
     rt->next_command_ms = mono;
+    rt->next_commit_ms = mono + rt->site.site.commit_interval_ms;
     rt->next_schedule_ms = mono;
     rt->schedule_day = -1;
     /* the page is an outlet: without it the ponds are still watched */
@@ -316,7 +326,7 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
     hs_rt_drain(rt, now);
     hs_rt_age_readings(rt, now);
     hs_rt_calib_refresh(rt, mono);
-    int periodic = mono >= rt->next_eval_ms, evaluated = 0;
+    int periodic = mono >= rt->next_eval_ms;
     int fresh_input = 0; /* a pond of a transfer has new samples: decide now, not later */
     for (size_t i = 0; i < rt->site.n_ponds; i++)
         if (rt->ponds[i].dirty || periodic) {
@@ -324,7 +334,6 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
                 fresh_input |= rt->site.transfers[k].source_index == (int)i ||
                                rt->site.transfers[k].dest_index == (int)i;
             evaluate_pond(rt, i, now, mono);
-            evaluated = 1;
         }
     /* no transfer decides on a site that has not been read yet */
     if (rt->warm && (periodic || fresh_input))
@@ -342,13 +351,20 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
         hs_store_command_take(rt->store, command_from_queue, rt);
         rt->next_command_ms = mono + COMMANDS_EVERY_MS;
     }
-    if (hs_store_flush(rt->store) != 0)
+    /* Samples and states reach the disk every commit_interval (flash wear);
+     * alarms, decisions, messages and replies at once. */
+    int due = mono >= rt->next_commit_ms;
+    int committed = hs_store_commit_due(rt->store, due);
+    if (committed < 0)
         hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
-    if (evaluated)
-        hs_web_notify(rt->web); /* after the flush: the page reads committed rows */
+    if (due)
+        rt->next_commit_ms = mono + rt->site.site.commit_interval_ms;
+    if (committed > 0)
+        hs_web_notify(rt->web); /* after the commit: the page reads committed rows */
     hs_rt_schedule_tick(rt, mono, now);
     hs_rt_mqtt_pump(rt, 0);
     if (mono >= rt->next_maintain_ms) {
+        hs_rt_keep_flush(rt); /* the open minutes join the fold */
         if (hs_store_maintain(rt->store, now) != 0)
             hs_log(HSP_LOG_WARNING, "store maintenance: %s", hs_store_error(rt->store));
         if (hs_store_meta_set(rt->store, "daemon_seen_ms", now) != 0)

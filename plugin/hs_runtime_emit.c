@@ -72,6 +72,8 @@ int hs_rt_enqueue_state(hs_runtime *rt, size_t pond, int64_t now_ms)
     json_t *o = state_object(rt, pond);
     if (o == NULL)
         return -1;
+    /* Through the outbox, which keeps only the pond's latest state; a state
+     * is not urgent, so it does not make the batch commit early. */
     int rc = hs_enqueue_json(rt->store, HS_MSG_STATE, topic, o, 1);
     json_decref(o);
     return rc < 0 ? -1 : 0;

@@ -187,10 +187,8 @@ size_t hs_rt_drain(hs_runtime *rt, int64_t now_ms)
             }
             if (r->t_ms == 0)
                 r->t_ms = smp->time_ms;
-            if (rt->store != NULL)
-                hs_store_add_sample_why(rt->store, sig->name, smp->time_ms,
-                                        isfinite(v) ? v : NAN, q, reason,
-                                        hp_sample_code(smp));
+            hs_rt_keep_sample(rt, si, smp->time_ms, isfinite(v) ? v : NAN, q, reason,
+                              hp_sample_code(smp));
             if (sig->pond_index >= 0)
                 rt->ponds[sig->pond_index].dirty = 1;
         }

@@ -30,7 +30,8 @@
 
 #define HS_RT_QUEUE_CAPACITY 4096
 #define HS_RT_TICK_MS 100          /* how often the main loop looks at the queue */
-#define HS_RT_MAINTAIN_MS 60000    /* store rollups, retention, checkpoint */
+#define HS_RT_MAINTAIN_MS 300000   /* store rollups, retention, checkpoint: a fold of
+                                    * several minutes writes each series' page once */
 #define HS_RT_CALIB_EVERY_MS 10000 /* re-read the hydrometer readings */
 #define HS_RT_RAIN_SLOTS 64        /* gauge readings kept per transfer for its window */
 #define HS_RT_TREND_SLOTS 120      /* 1/CF points kept per pond for the short-term trend */
@@ -66,6 +67,18 @@ struct hs_rt_transfer {
     double predicted_mix_kg_m3;   /* last mixing prediction, NaN unknown */
     int64_t flow_ms;              /* wall time up to which pumping is in the balances */
     int feedback_seen;            /* this run's feedback has confirmed the pump (logged) */
+};
+
+/* Per-signal storage by exception (hs_runtime_keep.c): the last kept raw
+ * sample, and the running 1-minute rollup of every sample. */
+struct hs_rt_keep {
+    int have;
+    double v;
+    int q;
+    int64_t t_ms;
+    int64_t minute_ms, n;
+    double vmin, vsum, vmax;
+    int worst;
 };
 
 /* Per-pond memory between cycles. */
@@ -108,6 +121,7 @@ struct hs_runtime {
     uint32_t **bus_signals;       /* per bus: point index -> signal index */
     size_t *bus_n_points;
     hs_reading *readings;         /* per signal */
+    struct hs_rt_keep *keep;      /* per signal */
     int *bus_down;                /* per bus: every point of it failing */
     uint64_t (*units_down)[4];    /* per bus: unit ids down, as last logged */
     int *slow_logged;             /* per bus: "cannot keep the poll interval" said */
@@ -134,6 +148,7 @@ struct hs_runtime {
     int64_t next_maintain_ms;
     int64_t next_calib_ms;        /* monotonic; 0: re-read the readings now */
     int64_t next_command_ms;
+    int64_t next_commit_ms;       /* monotonic: samples and states go to disk then */
     int64_t next_schedule_ms;     /* monotonic: when to look at the schedule again */
     int64_t schedule_day;         /* UTC day of the last published schedule; -1 none */
     int64_t state_heartbeat_ms;   /* republish an unchanged retained state this often; 0 never */
@@ -162,6 +177,12 @@ int hs_rt_write(hs_runtime *rt, int bus, uint8_t unit_id, int coil, uint16_t add
 
 /* hs_runtime_schedule.c: the chain schedule, daily, retained on MQTT */
 void hs_rt_schedule_tick(hs_runtime *rt, int64_t mono_ms, int64_t now_ms);
+
+/* hs_runtime_keep.c: one sample to the store, kept raw by exception and
+ * counted in its minute's rollup; flush writes the open minutes. */
+void hs_rt_keep_sample(hs_runtime *rt, size_t signal, int64_t t_ms, double value, hs_quality q,
+                       const char *reason, int code);
+void hs_rt_keep_flush(hs_runtime *rt);
 
 /* hs_runtime_transfer.c */
 int hs_rt_transfers_init(hs_runtime *rt);

@@ -34,6 +34,10 @@ typedef struct {
     int64_t raw_retention_ms;       /* raw samples and pond states kept this long */
     int64_t minute_retention_ms;    /* 1-minute rollups kept this long */
     int64_t hour_retention_ms;      /* 1-hour rollups kept this long */
+    int64_t commit_interval_ms;     /* samples and states reach the disk this often */
+    double store_deadband_pct;      /* raw kept when it moves more than this % ... */
+    int64_t store_max_interval_ms;  /* ... or this long after the last kept */
+    int64_t full_rate_window_ms;    /* every raw sample kept this long; 0 off */
     int line;                       /* of the [site] header, 0 if absent */
 } hs_site_conf;
 
@@ -112,6 +116,7 @@ typedef struct {
     char unit[HS_UNIT_NAME_MAX];   /* engineering unit of the decoded value */
     double si_factor;              /* SI value = value * si_factor + si_offset */
     double si_offset;
+    double store_deadband;         /* raw kept on a change beyond this (signal unit); NaN: site */
     char accuracy[24];             /* `accuracy` as written; "" = the quantity's default */
     int accuracy_set;              /* parsed into the two below (hs_accuracy.h) */
     double accuracy_abs_si;        /* +- [SI unit] */

@@ -79,6 +79,11 @@ static const char *const migrations[] = {
      * the Modbus exception code or errno behind it; NULL for good ones. */
     "ALTER TABLE sample ADD COLUMN reason TEXT;"
     "ALTER TABLE sample ADD COLUMN code INTEGER;",
+    /* 5 -> 6: a raw sample whose minute the writer rolled up as it came in
+     * (the daemon keeps raw samples by exception but counts them all);
+     * maintenance folds only the others. */
+    "ALTER TABLE sample ADD COLUMN rolled INTEGER NOT NULL DEFAULT 0;"
+    "ALTER TABLE sample ADD COLUMN thin INTEGER NOT NULL DEFAULT 0;",
 };
 #define SCHEMA_VERSION ((int)(sizeof migrations / sizeof migrations[0]))
 
@@ -89,8 +94,8 @@ static const char *const stmt_sql[SQL_COUNT] = {
     [SQL_SERIES_ADD] = "INSERT INTO series(name) VALUES(?1)",
     [SQL_POND_GET] = "SELECT id FROM pond WHERE name = ?1",
     [SQL_POND_ADD] = "INSERT INTO pond(name) VALUES(?1)",
-    [SQL_SAMPLE_ADD] = "INSERT INTO sample(series_id, t_ms, value, quality, reason, code)"
-                       " VALUES(?1,?2,?3,?4,?5,?6)",
+    [SQL_SAMPLE_ADD] = "INSERT INTO sample(series_id, t_ms, value, quality, reason, code,"
+                       " rolled, thin) VALUES(?1,?2,?3,?4,?5,?6,?7,?8)",
     [SQL_STATE_ADD] =
         "INSERT INTO pond_state(pond_id, t_ms, quality, density_kg_m3, temperature_c,"
         " practical_salinity, salinity_g_kg, specific_gravity, reference_temperature_c,"
@@ -236,8 +241,23 @@ int hs_store_batch_begin(hs_store *st)
     return 0;
 }
 
+void hs_store_mark_urgent(hs_store *st) { st->urgent = 1; }
+
+void hs_store_set_full_rate_window(hs_store *st, int64_t window_ms)
+{
+    st->full_rate_window_ms = window_ms > 0 ? window_ms : 0;
+}
+
+int hs_store_commit_due(hs_store *st, int due)
+{
+    if (!st->in_batch || !(due || st->urgent))
+        return 0;
+    return hs_store_flush(st) == 0 ? 1 : -1;
+}
+
 int hs_store_flush(hs_store *st)
 {
+    st->urgent = 0;
     if (!st->in_batch)
         return 0;
     sqlite3_stmt *s = hs_store_stmt(st, SQL_COMMIT);
@@ -482,7 +502,11 @@ hs_store *hs_store_open(const char *path, hs_store_mode mode, const hs_store_opt
     sqlite3_busy_timeout(st->db, st->opt.busy_timeout_ms);
     if (mode == HS_STORE_WRITE) {
         /* WAL lets the CLI read while we write; NORMAL: see the header. */
-        if (hs_store_exec(st, "PRAGMA journal_mode = WAL") != 0 ||
+        /* 1 KiB pages for a new file (no effect on an existing one): a
+         * batch of samples touches a page per series, and smaller pages
+         * write less per batch (flash wear; see make bench). */
+        if (hs_store_exec(st, "PRAGMA page_size = 1024") != 0 ||
+            hs_store_exec(st, "PRAGMA journal_mode = WAL") != 0 ||
             hs_store_exec(st, "PRAGMA synchronous = NORMAL") != 0)
             goto fail;
     } else if (hs_store_exec(st, "PRAGMA synchronous = NORMAL") != 0) {

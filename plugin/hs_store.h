@@ -96,6 +96,11 @@ int hs_store_schema_version(void);
 
 /* Commits the open batch, if any. 0 / -1. */
 int hs_store_flush(hs_store *st);
+/* Commits the open batch when due is set or it holds an urgent row (alarm
+ * journal, transfer decision, hydrometer reading, outbox message, command
+ * reply): samples and states wait for the next due commit. Returns 1 when
+ * it committed, 0 when not, -1 on error. */
+int hs_store_commit_due(hs_store *st, int due);
 
 /* ---- writes (batched) -------------------------------------------------- */
 
@@ -108,6 +113,21 @@ int hs_store_add_sample(hs_store *st, const char *signal, int64_t t_ms, double v
  * behind it (0 = none). */
 int hs_store_add_sample_why(hs_store *st, const char *signal, int64_t t_ms, double value,
                             hs_quality quality, const char *reason, int code);
+
+/* The daemon's way: every sample is counted in its minute's rollup as it
+ * comes in (hs_store_add_rollup, one call per minute with the minute's n,
+ * min, sum, max and worst quality of the values that are known), and only
+ * some are kept raw (by exception), marked rolled so that maintenance does
+ * not count them twice. */
+#define HS_SAMPLE_ROLLED 1 /* already counted in its minute's rollup */
+#define HS_SAMPLE_THIN 2   /* not an exception: deleted once older than the full-rate window */
+int hs_store_add_sample_rolled(hs_store *st, const char *signal, int64_t t_ms, double value,
+                               hs_quality quality, const char *reason, int code, int flags);
+/* The full-rate window: HS_SAMPLE_THIN rows older than this are deleted by
+ * maintenance (0: they are kept as long as the rest). */
+void hs_store_set_full_rate_window(hs_store *st, int64_t window_ms);
+int hs_store_add_rollup(hs_store *st, const char *signal, int64_t minute_ms, int64_t n,
+                        double vmin, double vsum, double vmax, hs_quality worst);
 
 /* Level and balance columns that the hydrology fills; NaN when unknown. */
 typedef struct {

@@ -47,7 +47,7 @@ static int fold_minutes(hs_store *st, int64_t from, int64_t to)
                   "INSERT INTO rollup(series_id, step_s, t_ms, n, vmin, vsum, vmax, worst)"
                   " SELECT series_id, 60, (t_ms / 60000) * 60000, count(value), min(value),"
                   " total(value), max(value), max(quality) FROM sample"
-                  " WHERE t_ms >= ?1 AND t_ms < ?2 AND value IS NOT NULL"
+                  " WHERE t_ms >= ?1 AND t_ms < ?2 AND value IS NOT NULL AND rolled = 0"
                   " GROUP BY series_id, t_ms / 60000" UPSERT_TAIL,
                   from, to) != 0)
         return -1;
@@ -121,6 +121,9 @@ int hs_store_maintain(hs_store *st, int64_t now_ms)
         raw_cut = minute_done;
     if (run_range(st, "DELETE FROM sample WHERE t_ms < ?1 AND ?2 = ?2", raw_cut, 0) != 0 ||
         run_range(st, "DELETE FROM pond_state WHERE t_ms < ?1 AND ?2 = ?2", raw_cut, 0) != 0 ||
+        (st->full_rate_window_ms > 0 &&
+         run_range(st, "DELETE FROM sample WHERE thin = 1 AND t_ms < ?1 AND ?2 = ?2",
+                   now_ms - st->full_rate_window_ms, 0) != 0) ||
         run_range(st, "DELETE FROM command_seen WHERE t_ms < ?1 AND ?2 = ?2",
                   now_ms - INT64_C(30) * 86400000, 0) != 0 ||
         run_range(st, "DELETE FROM rollup WHERE series_id IN (SELECT id FROM series)"

@@ -70,6 +70,21 @@ int hs_store_outbox_put(hs_store *st, hs_msg_kind kind, const char *topic, const
             return 1;
         }
     }
+    if (kind == HS_MSG_STATE) {
+        /* A retained state replaces the pond's previous one: keep only the
+         * latest per topic (the outbox is written less, the reconnect
+         * sends less, the broker keeps the same). */
+        sqlite3_stmt *d = NULL;
+        if (sqlite3_prepare_v2(st->db, "DELETE FROM outbox WHERE kind = 0 AND topic = ?1", -1,
+                               &d, NULL) != SQLITE_OK)
+            return hs_store_fail_db(st, "replacing a queued state");
+        sqlite3_bind_text(d, 1, topic, -1, SQLITE_TRANSIENT);
+        int rc = sqlite3_step(d);
+        sqlite3_finalize(d);
+        if (rc != SQLITE_DONE)
+            return hs_store_fail_db(st, "replacing a queued state");
+        st->outbox_rows -= sqlite3_changes(st->db);
+    }
     sqlite3_stmt *s = hs_store_stmt(st, SQL_OUTBOX_ADD);
     if (s == NULL)
         return -1;
@@ -84,12 +99,14 @@ int hs_store_outbox_put(hs_store *st, hs_msg_kind kind, const char *topic, const
     if (rc != SQLITE_DONE)
         return hs_store_fail_db(st, "queueing an MQTT message");
     st->outbox_rows++;
+    if (kind != HS_MSG_STATE) /* a state may wait for the batch: the next one replaces it */
+        hs_store_mark_urgent(st);
     return hs_store_wrote(st);
 }
 
 int hs_store_outbox_peek(hs_store *st, int64_t after_id, int max, hs_outbox_fn fn, void *ctx)
 {
-    if (hs_store_flush(st) != 0)
+    if (hs_store_commit_due(st, 0) < 0) /* outbox rows are urgent: committed first */
         return -1;
     sqlite3_stmt *s = hs_store_stmt(st, SQL_OUTBOX_PEEK);
     if (s == NULL)

@@ -47,6 +47,9 @@ struct hs_store {
     sqlite3_stmt *stmt[SQL_COUNT];
     int in_batch;          /* a write transaction is open */
     int batch_pending;     /* writes in the open batch */
+    int64_t full_rate_window_ms; /* thin raw samples older than this go; 0 never */
+    int urgent;            /* the open batch holds a row that must reach the disk now
+                            * (journal, decision, outbox, command): see hs_store_commit_due */
     int64_t outbox_rows;   /* cached row count; -1 when unknown */
     int64_t outbox_dropped;
     struct hs_name_map series;
@@ -63,6 +66,8 @@ sqlite3_stmt *hs_store_stmt(hs_store *st, enum hs_stmt_id id);
 /* Opens a batch if none is open, counts one write, commits a full batch
  * after the caller's write (call hs_store_wrote() after the step). */
 int hs_store_batch_begin(hs_store *st);
+/* Marks the open batch as holding a row that must be committed at once. */
+void hs_store_mark_urgent(hs_store *st);
 int hs_store_wrote(hs_store *st);
 /* Id of the named series / pond, creating it; -1 on error. */
 int64_t hs_store_series_id(hs_store *st, const char *name);

@@ -30,6 +30,7 @@ int hs_store_command_seen_add(hs_store *st, const char *key, int64_t t_ms, int o
 {
     if (hs_store_batch_begin(st) != 0)
         return -1;
+    hs_store_mark_urgent(st);
     sqlite3_stmt *s = NULL;
     if (sqlite3_prepare_v2(st->db, "INSERT OR REPLACE INTO command_seen(key, t_ms, ok, reply)"
                                    " VALUES(?1, ?2, ?3, ?4)", -1, &s, NULL) != SQLITE_OK)

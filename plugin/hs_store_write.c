@@ -33,8 +33,45 @@ int hs_store_add_sample(hs_store *st, const char *signal, int64_t t_ms, double v
     return hs_store_add_sample_why(st, signal, t_ms, value, quality, NULL, 0);
 }
 
+int hs_store_add_rollup(hs_store *st, const char *signal, int64_t minute_ms, int64_t n,
+                        double vmin, double vsum, double vmax, hs_quality worst)
+{
+    if (n <= 0)
+        return 0;
+    if (hs_store_batch_begin(st) != 0)
+        return -1;
+    int64_t id = hs_store_series_id(st, signal);
+    if (id < 0)
+        return -1;
+    sqlite3_stmt *s = NULL;
+    if (sqlite3_prepare_v2(st->db,
+                           "INSERT INTO rollup(series_id, step_s, t_ms, n, vmin, vsum, vmax, worst)"
+                           " VALUES(?1, 60, ?2, ?3, ?4, ?5, ?6, ?7)"
+                           " ON CONFLICT(series_id, step_s, t_ms) DO UPDATE SET n = n + excluded.n,"
+                           " vmin = min(vmin, excluded.vmin), vsum = vsum + excluded.vsum,"
+                           " vmax = max(vmax, excluded.vmax), worst = max(worst, excluded.worst)",
+                           -1, &s, NULL) != SQLITE_OK)
+        return hs_store_fail_db(st, "adding a rollup");
+    sqlite3_bind_int64(s, 1, id);
+    sqlite3_bind_int64(s, 2, minute_ms / HS_MINUTE_MS * HS_MINUTE_MS);
+    sqlite3_bind_int64(s, 3, n);
+    hs_bind_num(s, 4, vmin);
+    hs_bind_num(s, 5, vsum);
+    hs_bind_num(s, 6, vmax);
+    sqlite3_bind_int(s, 7, (int)worst);
+    int rc = sqlite3_step(s);
+    sqlite3_finalize(s);
+    return rc == SQLITE_DONE ? hs_store_wrote(st) : hs_store_fail_db(st, "adding a rollup");
+}
+
 int hs_store_add_sample_why(hs_store *st, const char *signal, int64_t t_ms, double value,
                             hs_quality quality, const char *reason, int code)
+{
+    return hs_store_add_sample_rolled(st, signal, t_ms, value, quality, reason, code, 0);
+}
+
+int hs_store_add_sample_rolled(hs_store *st, const char *signal, int64_t t_ms, double value,
+                               hs_quality quality, const char *reason, int code, int flags)
 {
     if (signal == NULL || *signal == '\0' || (unsigned)quality >= HS_QUALITY_COUNT)
         return hs_store_fail(st, "sample: empty signal name or invalid quality");
@@ -58,6 +95,8 @@ int hs_store_add_sample_why(hs_store *st, const char *signal, int64_t t_ms, doub
         sqlite3_bind_int(s, 6, code);
     else
         sqlite3_bind_null(s, 6);
+    sqlite3_bind_int(s, 7, (flags & HS_SAMPLE_ROLLED) != 0);
+    sqlite3_bind_int(s, 8, (flags & HS_SAMPLE_THIN) != 0);
     return step_write(st, s, "adding a sample");
 }
 
@@ -155,6 +194,7 @@ int hs_store_add_journal(hs_store *st, const hs_journal_row *r)
     bind_text_or_null(s, 12, r->note);
     sqlite3_bind_int64(s, 13, (int64_t)r->episode_id);
     sqlite3_bind_int64(s, 14, r->shelved_until_ms);
+    hs_store_mark_urgent(st);
     return step_write(st, s, "adding a journal row");
 }
 
@@ -241,6 +281,7 @@ int hs_store_add_transfer(hs_store *st, const char *transfer, int64_t t_ms, cons
     sqlite3_bind_text(s, 3, advice, -1, SQLITE_TRANSIENT);
     sqlite3_bind_text(s, 4, reasons_json ? reasons_json : "[]", -1, SQLITE_TRANSIENT);
     sqlite3_bind_int(s, 5, actuated != 0);
+    hs_store_mark_urgent(st);
     return step_write(st, s, "adding a transfer decision");
 }
 
@@ -262,6 +303,7 @@ int hs_store_add_calibration(hs_store *st, const hs_calibration_row *r)
     hs_bind_num(s, 7, r->temperature_c);
     bind_text_or_null(s, 8, r->operator_name);
     bind_text_or_null(s, 9, r->note);
+    hs_store_mark_urgent(st);
     return step_write(st, s, "adding a calibration sample");
 }
 
@@ -344,6 +386,7 @@ int hs_store_command_take(hs_store *st, hs_command_fn fn, void *ctx)
     for (int i = 0; i < n; i++) {
         char *reply = ok == 0 ? fn(ctx, ids[i], requests[i]) : NULL;
         if (ok == 0 && hs_store_batch_begin(st) == 0) {
+            hs_store_mark_urgent(st);
             sqlite3_reset(upd);
             sqlite3_bind_int64(upd, 1, ids[i]);
             if (reply)

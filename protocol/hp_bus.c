@@ -39,6 +39,7 @@ struct hp_bus {
     bool stop;                   /* under mu */
     hp_bus_stats stats;          /* under mu */
     hp_outcmd *cmds;             /* output commands, ahead of reads (own lock) */
+    int64_t connect_tried_ms;    /* worker-owned: last connection attempt, monotonic */
     /* worker-owned */
     hp_point *points;            /* owned copy, n */
     size_t n;
@@ -417,9 +418,14 @@ static void *worker(void *arg)
     while (!stopping(b)) {
         int64_t now = hp_mono_ms();
         if (!b->connected) {
-            if (now < b->reconnect_at) {
+            /* a waiting output command does not sit out the whole back-off:
+             * it tries again backoff_min after the last attempt */
+            int64_t at = b->reconnect_at;
+            if (hp_outcmd_pending(b->cmds) && b->connect_tried_ms + b->conf.backoff_min_ms < at)
+                at = b->connect_tried_ms + b->conf.backoff_min_ms;
+            if (now < at) {
                 emit_stale(b, now);
-                int64_t until = b->reconnect_at;
+                int64_t until = at;
                 if (until > now + STALE_CHECK_MS)
                     until = now + STALE_CHECK_MS;
                 sleep_until(b, until);
@@ -428,6 +434,7 @@ static void *worker(void *arg)
             if (!first_connect)
                 stat_add(b, &b->stats.reconnects, 1, 0);
             first_connect = false;
+            b->connect_tried_ms = now;
             if (connect_bus(b) != 0) {
                 int err = errno;
                 stat_add(b, &b->stats.failures, 1, err);

@@ -85,7 +85,9 @@ void hp_bus_get_stats(hp_bus *bus, hp_bus_stats *out);
 /* Output commands (hp_outcmd.h) go ahead of queued reads: the worker wakes
  * for them and carries them out before each read block, so a command waits
  * at most one read (1 + retries response timeouts), never a whole poll
- * cycle. A newer command to the same output replaces one still waiting; one
+ * cycle; on a broken link a waiting command brings the reconnect forward to
+ * backoff_min after the last attempt. A newer command to the same output
+ * replaces one still waiting; one
  * still waiting after HP_OUTCMD_MAX_AGE_MS is dropped, never carried out
  * late. Commands waiting when the bus stops are carried out before it
  * closes. Returns 0 (*seq numbers the request), or -1 with errno ENOBUFS

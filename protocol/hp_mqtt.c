@@ -118,6 +118,17 @@ static void on_connection_lost(void *ctx, char *cause)
     push(ctx, HP_MQTT_DISCONNECTED, 0, NULL, NULL, 0, 0, 0, cause ? cause : "connection lost");
 }
 
+/* MQTT 5: the broker said goodbye (a DISCONNECT packet, e.g. when it shuts
+ * down); paho reports that here, not as a lost connection. */
+static void on_disconnected(void *ctx, MQTTProperties *props, enum MQTTReasonCodes rc)
+{
+    (void)props;
+    char why[96];
+    snprintf(why, sizeof why, "the broker disconnected us (reason %d: %s)", (int)rc,
+             MQTTReasonCode_toString(rc));
+    push(ctx, HP_MQTT_DISCONNECTED, 0, NULL, NULL, 0, 0, 0, why);
+}
+
 static int on_message(void *ctx, char *topic, int topic_len, MQTTAsync_message *msg)
 {
     hp_mqtt *m = ctx;
@@ -271,6 +282,7 @@ hp_mqtt *hp_mqtt_new(const hp_mqtt_options *o, char *err, size_t errlen)
     }
     MQTTAsync_setCallbacks(m->client, m, on_connection_lost, on_message, NULL);
     MQTTAsync_setConnected(m->client, m, on_connected);
+    MQTTAsync_setDisconnected(m->client, m, on_disconnected);
     return m;
 }
 

@@ -41,9 +41,11 @@ for build in "$@"; do
         [ -f "$s" ] || continue
         echo "=== integration $(basename "$s") ($build)"
         out=$(mktemp)
+        t0=$SECONDS
         HS_BUILD="$build" timeout 600 bash "$s" >"$out" 2>&1
         rc=$?
         cat "$out"
+        echo "# $(basename "$s") ($build) took $((SECONDS - t0)) s"
         p=$(grep -c '^ok ' "$out")
         f=$(grep -c '^not ok ' "$out")
         if [ "$rc" -ne 0 ] && [ "$f" -eq 0 ]; then f=1; echo "not ok - $s exited $rc"; fi

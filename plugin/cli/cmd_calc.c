@@ -351,6 +351,8 @@ static void print_table(const struct calc_request *rq, const hc_brine_state *st)
     print_value("salinity", st->salinity_g_kg, "%.3f", " g/kg of brine");
     print_value("density", st->density_kg_m3, "%.3f", " kg/m3 at sample temperature");
     print_value("  uncertainty", st->density_uncertainty_kg_m3, "+-%.3f", " kg/m3 (k = 1)");
+    snprintf(unit, sizeof unit, " kg/m3 at the reference temperature (what bands compare)");
+    print_value("density (reference)", st->density_ref_kg_m3, "%.3f", unit);
     snprintf(unit, sizeof unit, " (%s)", tref);
     print_value("specific gravity", st->specific_gravity, "%.5f", unit);
     print_value("  uncertainty", st->sg_uncertainty, "+-%.5f", "");
@@ -365,6 +367,9 @@ static void print_table(const struct calc_request *rq, const hc_brine_state *st)
         printf("  %-24s %s", "next stage", hc_stage_name(st->next_stage));
         if (isfinite(st->next_stage_density_kg_m3))
             printf(" at %.1f kg/m3 (at sample temperature)", st->next_stage_density_kg_m3);
+        if (isfinite(st->next_stage_density_ref_kg_m3))
+            printf(", %.1f kg/m3 at the reference temperature",
+                   st->next_stage_density_ref_kg_m3);
         printf("\n");
     }
     print_value("water activity", st->water_activity, "%.4f", "");

@@ -196,4 +196,8 @@ ok = q == {"p1": {"comm-fail"}, "p2": {"good"}, "p3": {"comm-fail"}, "p4": {"goo
 ok &= not any("reset" in t for t in texts)
 sys.exit(0 if ok else 1)
 PYEOF
+check "--once names the silent device of each bus on stderr (and only it)" \
+    eval 'grep -q "\[bus line\] device (unit id) 1 did not answer" "$HS_TMP/once.err" &&
+          grep -q "\[bus gw\] device (unit id) 1 did not answer" "$HS_TMP/once.err" &&
+          ! grep -q "unit id) 2" "$HS_TMP/once.err"'
 hs_finish

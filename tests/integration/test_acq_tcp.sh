@@ -114,11 +114,25 @@ check "--once (text) shows every signal with its registers" test "$(grep -c ' go
 $PY - "$P1" <<'PYEOF' >"$HS_TMP/coil.log" 2>&1
 import sys
 from pymodbus.client import ModbusTcpClient
-c = ModbusTcpClient("127.0.0.1", port=int(sys.argv[1]))
-c.connect()
-r = c.write_coil(11, True, slave=1)
-c.close()
-sys.exit(1 if r.isError() else 0)
+import time
+# The simulator may be busy with another client for a moment on a loaded
+# machine: try again for up to 10 s (a bounded wait, not a fixed sleep).
+deadline = time.monotonic() + 10
+while True:
+    c = ModbusTcpClient("127.0.0.1", port=int(sys.argv[1]), timeout=2)
+    ok = False
+    try:
+        if c.connect():
+            r = c.write_coil(11, True, slave=1)
+            ok = not r.isError()
+    except Exception as e:  # connection reset, timeout: try again
+        print("retry:", e)
+    finally:
+        c.close()
+    if ok or time.monotonic() > deadline:
+        break
+    time.sleep(0.1)
+sys.exit(0 if ok else 1)
 PYEOF
 check "a pump coil can be written (pymodbus client)" test $? -eq 0
 ok_run=1

@@ -58,8 +58,6 @@ check "advice run for the due transfer" hs_wait_file_line "$HS_TMP/emit.txt" '^t
 check "pump output RUN written" hs_wait_file_line "$HS_TMP/daemon.log" 'store-to-x1\]: pump output RUN written' 10
 for ((i = 0; i < 100; i++)); do store_pumping 1 && break; sleep 0.1; done
 check "the simulated pump runs (coil written over Modbus)" store_pumping 1
-sleep 3
-check "run feedback confirmed: no feedback alarm" bash -c "! grep -q 'did not confirm running' '$HS_TMP/daemon.log'"
 # the heartbeat: holding register 9 of unit 1, read over Modbus (FC 03) twice
 read_reg() {
     /usr/bin/python3 - "$dikes" <<'PY'
@@ -70,10 +68,17 @@ r = s.recv(64)
 print(struct.unpack(">H", r[9:11])[0])
 PY
 }
+# The daemon's own clock instead of a fixed sleep: the heartbeat advances once
+# a cycle; wait (bounded) for three more cycles, past the run-feedback check.
 hb1=$(read_reg)
-sleep 2.5
-hb2=$(read_reg)
+hb2=$hb1
+for ((i = 0; i < 200; i++)); do
+    hb2=$(read_reg)
+    [ -n "$hb1" ] && [ -n "$hb2" ] && [ $(( (hb2 - hb1 + 65536) % 65536 )) -ge 3 ] && break
+    sleep 0.1
+done
 check "PLC heartbeat register counts ($hb1 -> $hb2)" test -n "$hb1" -a -n "$hb2" -a "$hb1" != 0 -a "$hb1" != "$hb2"
+check "run feedback confirmed: no feedback alarm" bash -c "! grep -q 'did not confirm running' '$HS_TMP/daemon.log'"
 
 kill -TERM "$dpid"
 wait "$dpid"

@@ -2,7 +2,9 @@
 # A broker outage across a daemon restart loses nothing: with mosquitto
 # gone, halostaged keeps queueing in its SQLite outbox; SIGTERM leaves the
 # queue in the file (and says so); once the broker and the daemon are back,
-# the queue drains to a real subscriber.
+# the queue drains to a real subscriber. While the broker is away the outbox
+# keeps each pond's latest state only (a newer one replaces it), and every
+# other message.
 . "$(dirname "$0")/lib.sh"
 
 D="$HS_BUILD/halostaged"
@@ -25,23 +27,30 @@ rows() { sqlite3 -cmd ".timeout 5000" "$HS_TMP/demo.db" "$1" 2>/dev/null; }
 "$D" --config "$cfg" 2>"$HS_TMP/daemon1.log" &
 dpid=$!
 HS_PIDS+=("$dpid")
-check "connected to the broker" hs_wait_file_line "$HS_TMP/daemon1.log" 'MQTT: mqtt://' 10
-sleep 2
+check "connected to the broker" hs_wait_file_line "$HS_TMP/daemon1.log" 'MQTT: connected to the broker' 10
 kill "$first_broker"
 wait "$first_broker" 2>/dev/null
-# states pile up while the broker is away
-for ((i = 0; i < 200; i++)); do [ "$(rows 'SELECT count(*) FROM outbox')" -gt 20 ] 2>/dev/null && break; sleep 0.1; done
-check "outbox grows while the broker is away" test "$(rows 'SELECT count(*) FROM outbox')" -gt 20
+# the ponds' states wait while the broker is away: the latest of each
+states() { rows 'SELECT count(DISTINCT topic) FROM outbox WHERE kind = 0'; }
+for ((i = 0; i < 300; i++)); do [ "$(states)" -ge 9 ] 2>/dev/null && break; sleep 0.1; done
+check "the outbox holds a state of every pond while the broker is away ($(states))" \
+    test "$(states)" -eq 9
+check "and only the latest of each" \
+    test "$(rows 'SELECT count(*) - count(DISTINCT topic) FROM outbox WHERE kind = 0')" -eq 0
 kill -TERM "$dpid"
 wait "$dpid"
 rc=$?
 check "clean stop without a broker (exit $rc)" test "$rc" -eq 0
 check "the daemon says what stays queued" grep -qE 'MQTT: [0-9]+ messages stay in the outbox' "$HS_TMP/daemon1.log"
 queued=$(rows 'SELECT count(*) FROM outbox')
-check "the queue survives the stop ($queued rows)" test "$queued" -gt 20
-# nothing was dropped (far below the outbox bound): every queued row must arrive
-rows "SELECT topic || ' ' || CAST(payload AS TEXT) FROM outbox ORDER BY id" \
+check "the queue survives the stop ($queued rows)" test "$queued" -ge 9
+# nothing was dropped (far below the outbox bound): every queued message that
+# is not a pond state must arrive as it was; a queued state may be replaced
+# by a newer one of its pond before the broker is back, but each pond's
+# state arrives
+rows "SELECT topic || ' ' || CAST(payload AS TEXT) FROM outbox WHERE kind <> 0 ORDER BY id" \
     >"$HS_TMP/must_arrive.txt"
+rows "SELECT DISTINCT topic FROM outbox WHERE kind = 0" >"$HS_TMP/state_topics.txt"
 
 # broker and daemon back: the queue drains to a subscriber
 hs_start_mosquitto "$mport" || not_ok "mosquitto did not restart"
@@ -53,4 +62,8 @@ check "the outbox drained after the broker came back" test "$(rows 'SELECT count
 missing=$(grep -cvxF -f "$HS_TMP/mqtt.txt" "$HS_TMP/must_arrive.txt")
 check "every queued message arrived ($(wc -l <"$HS_TMP/must_arrive.txt") queued, $missing missing)" \
     test "$missing" -eq 0
+no_state=0
+while read -r topic; do grep -q "^$topic " "$HS_TMP/mqtt.txt" || no_state=$((no_state + 1)); done \
+    <"$HS_TMP/state_topics.txt"
+check "a state of every queued pond arrived ($no_state missing)" test "$no_state" -eq 0
 hs_finish

@@ -53,6 +53,17 @@ span=$(sqlite3 "$DB" "SELECT (max(t_ms) - min(t_ms)) / 1000 + 1 FROM pond_state 
 check "c2: $n_rows states in $span s of input at a 1 s and 2 s poll (no more than one per poll)" \
     test "$n_rows" -le $((span * 2 + 2))
 
+# Raw samples by exception, counted in full: the minute rollups of the
+# signals count every poll (at most one a second per signal here), the raw
+# table keeps only the exceptions.
+kept=$(sqlite3 "$DB" "SELECT count(*) FROM sample")
+counted=$(sqlite3 "$DB" "SELECT coalesce(sum(r.n), 0) FROM rollup r JOIN series s ON s.id = r.series_id WHERE r.step_s = 60 AND s.name NOT LIKE '%:%'")
+maxn=$(sqlite3 "$DB" "SELECT coalesce(max(r.n), 0) FROM rollup r JOIN series s ON s.id = r.series_id WHERE r.step_s = 60 AND s.name NOT LIKE '%:%'")
+echo "# $counted samples counted in the rollups, $kept kept raw"
+check "every sample counted in the rollups, fewer kept raw ($kept < $counted)" \
+    test "$kept" -gt 0 -a "$kept" -lt "$counted"
+check "no minute counts more samples than polls ($maxn <= 61)" test "$maxn" -le 61 -a "$maxn" -gt 0
+
 # Heartbeat: slow polls (60 s) and a 1 s heartbeat: the retained state goes
 # out again while no state is stored.
 site 60s 60s 1s >"$HS_TMP/slow.ini"

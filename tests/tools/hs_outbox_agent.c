@@ -47,8 +47,9 @@ static int write_samples(hs_store *st)
                 fprintf(stderr, "%s\n", hs_store_error(st));
                 return 1;
             }
-        if (hs_store_outbox_put(st, HS_MSG_STATE, "halostage/demo/pond/east-1/state", "{}", 2,
-                                1, 1) < 0 ||
+        /* an alarm-kind row: a state would replace the previous one */
+        if (hs_store_outbox_put(st, HS_MSG_ALARM, "halostage/demo/alarm/east-1/band", "{}", 2,
+                                1, 0) < 0 ||
             hs_store_flush(st) != 0) {
             fprintf(stderr, "%s\n", hs_store_error(st));
             return 1;

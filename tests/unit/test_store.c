@@ -108,6 +108,8 @@ static void migrates_an_older_file(void **unused)
                                       "ALTER TABLE pond_state DROP COLUMN baume_uncertainty;"
                                       "ALTER TABLE pond_state DROP COLUMN cf_uncertainty;"
                                       "DROP TABLE command_seen;"
+                                      "ALTER TABLE sample DROP COLUMN rolled;"
+                                      "ALTER TABLE sample DROP COLUMN thin;"
                                       "ALTER TABLE sample DROP COLUMN reason;"
                                       "ALTER TABLE sample DROP COLUMN code;"
                                       "INSERT INTO series(id, name) VALUES(1, 'a.density');"
@@ -131,6 +133,8 @@ static void migrates_an_older_file(void **unused)
     assert_int_equal(scalar("SELECT count(*) FROM sample WHERE value = 1210.5 AND quality = 0"
                             " AND reason IS NULL AND code IS NULL"), 1);
     assert_int_equal(scalar("SELECT count(*) FROM sqlite_master WHERE name = 'command_seen'"), 1);
+    assert_int_equal(scalar("SELECT count(*) FROM pragma_table_info('sample')"
+                            " WHERE name IN ('rolled', 'thin')"), 2);
 }
 
 struct reason_rows {
@@ -570,6 +574,43 @@ static void command_queue(void **unused)
     hs_store_close(st);
 }
 
+/* Samples kept by exception but counted in full: rollups written at ingest
+ * (n = every sample) are not counted again from the kept raw rows; thin
+ * rows go once older than the full-rate window; samples wait for a due
+ * commit, an urgent row (alarm journal) commits at once. */
+static void rollups_count_every_sample(void **unused)
+{
+    (void)unused;
+    hs_store *st = open_writer(NULL);
+    int64_t m0 = T0_MS / 60000 * 60000;
+    /* 6 samples in the minute (a 10 s poll), 2 kept raw, 1 thin */
+    assert_int_equal(hs_store_add_rollup(st, "a.temperature", m0, 6, 20.0, 121.5, 20.5,
+                                         HS_QUALITY_GOOD), 0);
+    assert_int_equal(hs_store_add_sample_rolled(st, "a.temperature", m0, 20.0, HS_QUALITY_GOOD,
+                                                NULL, 0, HS_SAMPLE_ROLLED), 0);
+    assert_int_equal(hs_store_add_sample_rolled(st, "a.temperature", m0 + 50000, 20.5,
+                                                HS_QUALITY_GOOD, NULL, 0, HS_SAMPLE_ROLLED), 0);
+    assert_int_equal(hs_store_add_sample_rolled(st, "a.temperature", m0 + 10000, 20.1,
+                                                HS_QUALITY_GOOD, NULL, 0,
+                                                HS_SAMPLE_ROLLED | HS_SAMPLE_THIN), 0);
+    assert_int_equal(hs_store_commit_due(st, 0), 0); /* samples only: not yet */
+    assert_int_equal(hs_store_commit_due(st, 1), 1); /* due: committed */
+    hs_store_set_full_rate_window(st, 3600000);
+    assert_int_equal(hs_store_maintain(st, m0 + 2 * 3600000), 0);
+    assert_int_equal(scalar("SELECT n FROM rollup r JOIN series s ON s.id = r.series_id"
+                            " WHERE s.name = 'a.temperature' AND r.step_s = 60"), 6);
+    assert_int_equal(scalar("SELECT count(*) FROM sample WHERE thin = 1"), 0); /* window past */
+    assert_int_equal(scalar("SELECT count(*) FROM sample"), 2);
+    hs_journal_row row = {.event_id = 1, .t_ms = m0, .pond = "a", .rule = "r",
+                          .from_state = "normal", .to_state = "unacknowledged",
+                          .cause = "condition", .value = NAN, .limit = NAN};
+    assert_int_equal(hs_store_add_sample(st, "a.temperature", m0 + 7200000, 21.0,
+                                         HS_QUALITY_GOOD), 0);
+    assert_int_equal(hs_store_add_journal(st, &row), 0);
+    assert_int_equal(hs_store_commit_due(st, 0), 1); /* urgent: at once */
+    hs_store_close(st);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -585,6 +626,7 @@ int main(void)
         cmocka_unit_test_setup_teardown(outbox_order_and_policy, setup, teardown),
         cmocka_unit_test_setup_teardown(journal_rows, setup, teardown),
         cmocka_unit_test_setup_teardown(command_queue, setup, teardown),
+        cmocka_unit_test_setup_teardown(rollups_count_every_sample, setup, teardown),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
