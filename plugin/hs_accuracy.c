@@ -54,7 +54,12 @@ double hs_signal_accuracy(const hs_signal *s, double value_si)
 {
     if (s->accuracy_set)
         return s->accuracy_abs_si + s->accuracy_rel * fabs(value_si);
-    switch (s->quantity) {
+    return hs_accuracy_default(s->quantity, value_si);
+}
+
+double hs_accuracy_default(hs_quantity q, double value_si)
+{
+    switch (q) {
     case HS_Q_CONDUCTIVITY: return 0.005 * fabs(value_si);
     case HS_Q_TEMPERATURE: return 0.15 + 0.002 * fabs(value_si); /* IEC 60751 class A [degC] */
     case HS_Q_LEVEL_PRESSURE:

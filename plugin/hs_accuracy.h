@@ -33,6 +33,10 @@
 int hs_accuracy_parse(const char *text, double si_factor, double *abs_si, double *rel,
                       char *why, size_t why_len);
 
+/* The usual class's +-limit for a reading of quantity q [SI unit] (the
+ * defaults above; 0 for quantities without one). */
+double hs_accuracy_default(hs_quantity q, double value_si);
+
 /* The +-limit of one reading of `value_si` on signal s [SI unit]. */
 double hs_signal_accuracy(const hs_signal *s, double value_si);
 

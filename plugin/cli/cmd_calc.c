@@ -298,11 +298,15 @@ static hc_status compute_state(const struct calc_request *rq, hc_brine_state *st
     if (s == HC_ERR_SALINITY_RANGE && ps == HC_ERR_NO_CONVERGENCE)
         s = ps;
     if (s == HC_OK) {
-        /* the instrument classes a daemon assumes (plugin/hs_accuracy.h) */
+        /* the instrument classes a daemon assumes (plugin/hs_accuracy.h);
+         * the daemon's units for these three are calc's: mS/cm, kg/m3, degC */
         double a_value = rq->have_accuracy ? rq->accuracy_abs + rq->accuracy_rel * fabs(value)
-                         : rq->have_conductivity ? 0.005 * fabs(value) : 0.5;
+                         : hs_accuracy_default(rq->have_conductivity ? HS_Q_CONDUCTIVITY
+                                                                     : HS_Q_DENSITY,
+                                               value);
         double a_t = rq->have_t_accuracy ? rq->t_accuracy
-                                         : 0.15 + 0.002 * fabs(rq->temperature_c);
+                                         : hs_accuracy_default(HS_Q_TEMPERATURE,
+                                                               rq->temperature_c);
         double x[3] = {value, rq->temperature_c, 0.0};
         double u[3] = {hc_unc_from_accuracy(a_value), hc_unc_from_accuracy(a_t),
                        st->method == HC_METHOD_BRINE_CONDUCTIVITY ? HC_UNC_BRINE_MODEL_REL : 0.0};

@@ -9,7 +9,8 @@
  *   daemon inverts it (hc_path_model_conductivity) for conductivity.
  * The rest is simple on purpose (a test tool, no source): evaporation 6 mm a
  * day on average, by season and by day, slowed by salinity; rain events;
- * pumps move depth from a pond to its next, mixing by water mass. */
+ * pumps move depth from a pond to its next, mixing by water mass; weather
+ * signals (air temperature, humidity, wind, sunshine) follow the day. */
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -155,6 +156,13 @@ void sim_model_free(sim *s)
     s->ponds = NULL;
 }
 
+/* Sunshine 0..1 at the simulated time of day: a half sine, 6 h to 18 h. */
+static double sun_now(const sim *s)
+{
+    double day = fmod(s->sim_time_s, 86400.0) / 86400.0;
+    return fmax(0.0, sin(2.0 * M_PI * (day - 0.25)));
+}
+
 /* The SI value a signal should show now. */
 static double signal_si(sim *s, const hs_signal *sg, double g)
 {
@@ -176,6 +184,12 @@ static double signal_si(sim *s, const hs_signal *sg, double g)
     case HS_Q_DENSITY: return rho + noise(s, 0.1);
     case HS_Q_RAIN: return q->rain_total_m;
     case HS_Q_PUMP_RUN: return q->pumping ? 1.0 : 0.0;
+    /* Weather at the pond (invented, simple): air a little cooler than the
+     * brine, drier and windier by day, 950 W/m2 at noon. */
+    case HS_Q_AIR_TEMPERATURE: return q->temperature_c - 2.0 + noise(s, 0.1);
+    case HS_Q_HUMIDITY: return 0.75 - 0.3 * sun_now(s) + noise(s, 0.01);
+    case HS_Q_WIND_SPEED: return 2.0 + 2.0 * sun_now(s) + noise(s, 0.2);
+    case HS_Q_SOLAR_RADIATION: return 950.0 * sun_now(s);
     default: return NAN;
     }
 }

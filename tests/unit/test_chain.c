@@ -9,6 +9,7 @@
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
+#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 #include <cmocka.h>
@@ -122,6 +123,13 @@ static void water_and_ions_balance_over_30_days(void **state)
     assert_true(x1 >= 0);
     assert_true(hs_chain_pd(&r, 30, (size_t)x1)->salt_depth_m >
                 hs_chain_pd(&r, 0, (size_t)x1)->salt_depth_m);
+    /* The harvest day is the first day at the harvest depth (5 mm here),
+     * or -1 when no day of the schedule reaches it. */
+    int first = -1;
+    for (int d = 0; d <= r.days && first < 0; d++)
+        if (hs_chain_pd(&r, d, (size_t)x1)->salt_depth_m >= 0.005)
+            first = d;
+    assert_int_equal(r.harvest_day[x1], first);
     /* Pumping hours never exceed a day; volume = hours x rated flow. */
     for (int d = 1; d <= r.days; d++)
         for (size_t l = 0; l < r.n_links; l++) {
@@ -130,6 +138,32 @@ static void water_and_ions_balance_over_30_days(void **state)
             assert_true(fabs(ld->volume_m3 - ld->hours * f->cs.links[l].rated_flow_m3_h) <=
                         1e-9 * (1 + ld->volume_m3));
         }
+    hs_chain_result_free(&r);
+}
+
+/* A closed crystalliser at halite saturation deposits about the salt its
+ * evaporated water held: 6.1 mol NaCl per kg of water at 25 degC (halite
+ * solubility, CRC Handbook, from memory), i.e. about 0.36 kg per kg, less
+ * what the other ions leave (the brine is not pure NaCl). */
+static void closed_crystalliser_deposits_what_it_evaporates(void **state)
+{
+    struct fixture *f = *state;
+    struct hs_chain_input in = input(f, 5, NULL);
+    in.n_links = 0;
+    in.sea_fill = 0;
+    struct hs_chain_result r;
+    char err[256];
+    assert_int_equal(hs_chain_run(&in, &r, err, sizeof err), 0);
+    int x1 = hs_site_pond(&f->site, "x1");
+    double floor_area = 4e4; /* the demo's x1: 4 ha, vertical walls */
+    double salt_kg = hs_chain_pd(&r, 5, (size_t)x1)->salt_depth_m * 2165.0 * floor_area;
+    double water_kg = 0;
+    for (int d = 1; d <= 5; d++)
+        water_kg += hs_chain_pd(&r, d, (size_t)x1)->evaporated_mm * floor_area;
+    printf("closed x1: %.0f kg salt from %.0f kg water (%.3f kg/kg)\n", salt_kg, water_kg,
+           salt_kg / water_kg);
+    assert_true(water_kg > 0);
+    assert_true(salt_kg / water_kg > 0.2 && salt_kg / water_kg < 0.45);
     hs_chain_result_free(&r);
 }
 
@@ -210,6 +244,7 @@ int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(water_and_ions_balance_over_30_days),
+        cmocka_unit_test(closed_crystalliser_deposits_what_it_evaporates),
         cmocka_unit_test(transfers_keep_destination_limits),
         cmocka_unit_test(alarms_and_causes_follow_the_limits),
         cmocka_unit_test(bad_input_is_refused),
