@@ -9,6 +9,7 @@
 
 #include "cli_number.h"
 #include "commands.h"
+#include "store_opts.h"
 #include "hs_config.h"
 #include "hs_store.h"
 
@@ -53,12 +54,8 @@ int hs_cmd_backup(int argc, char **argv)
         return 2;
     }
     hs_site site;
-    hs_diag diag;
-    if (hs_site_load(config, &site, &diag) != 0) {
-        for (unsigned i = 0; i < diag.n; i++)
-            fprintf(stderr, "%s\n", diag.msg[i]);
+    if (hs_cli_load_site(config, &site) != 0)
         return HS_EXIT_CONFIG;
-    }
     hs_store_options opt;
     hs_store_options_default(&opt);
     hs_backup_report rep;

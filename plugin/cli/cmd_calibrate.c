@@ -204,12 +204,8 @@ int hs_cmd_calibrate(int argc, char **argv)
         return 2;
     }
     hs_site site;
-    hs_diag diag;
-    if (hs_site_load(config, &site, &diag) != 0) {
-        for (unsigned i = 0; i < diag.n; i++)
-            fprintf(stderr, "%s\n", diag.msg[i]);
+    if (hs_cli_load_site(config, &site) != 0)
         return HS_EXIT_CONFIG;
-    }
     int rc = 2;
     hs_store *st = NULL;
     if (hs_cli_known_pond("calibrate", "--pond", &site, pond) != 0)

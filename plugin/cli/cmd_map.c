@@ -7,6 +7,7 @@
 #include <string.h>
 
 #include "cli/commands.h"
+#include "cli/store_opts.h"
 #include "hs_conf_scada.h"
 #include "hs_config.h"
 #include "hs_scada_map.h"
@@ -55,12 +56,8 @@ int hs_cmd_map(int argc, char **argv)
         return 2;
     }
     hs_site site;
-    hs_diag diag;
-    if (hs_site_load(config, &site, &diag) != 0) {
-        for (unsigned i = 0; i < diag.n; i++)
-            fprintf(stderr, "%s\n", diag.msg[i]);
+    if (hs_cli_load_site(config, &site) != 0)
         return HS_EXIT_CONFIG;
-    }
     const char *order = "big";
     if (site.modbus_server == NULL)
         fprintf(stderr, "halostage map: note: %s has no [modbus_server] section; the map is "

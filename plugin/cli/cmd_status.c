@@ -13,6 +13,7 @@
 
 #include "cli_number.h"
 #include "commands.h"
+#include "store_opts.h"
 #include "hs_pond_doc.h"
 #include "hs_alarm.h"
 #include "hs_conf_transfer.h"
@@ -411,12 +412,8 @@ int hs_cmd_status(int argc, char **argv)
         return 2;
     }
     hs_site site;
-    hs_diag diag;
-    if (hs_site_load(config, &site, &diag) != 0) {
-        for (unsigned i = 0; i < diag.n; i++)
-            fprintf(stderr, "%s\n", diag.msg[i]);
+    if (hs_cli_load_site(config, &site) != 0)
         return HS_EXIT_CONFIG;
-    }
     char err[512];
     hs_store *st = hs_store_open(site.site.database, HS_STORE_READ, NULL, err, sizeof err);
     if (st == NULL) {

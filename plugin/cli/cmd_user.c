@@ -16,6 +16,7 @@
 
 #include "cli_number.h"
 #include "commands.h"
+#include "store_opts.h"
 #include "hs_conf_web.h"
 #include "hs_config.h"
 #include "hs_web_users.h"
@@ -130,12 +131,8 @@ int hs_cmd_user(int argc, char **argv)
         return 2;
     }
     hs_site site;
-    hs_diag diag;
-    if (hs_site_load(config, &site, &diag) != 0) {
-        for (unsigned i = 0; i < diag.n; i++)
-            fprintf(stderr, "%s\n", diag.msg[i]);
+    if (hs_cli_load_site(config, &site) != 0)
         return HS_EXIT_CONFIG;
-    }
     int rc = 2;
     char msg[600];
     hs_users users = {0};

@@ -12,14 +12,20 @@ int64_t hs_cli_now_ms(void)
     return (int64_t)ts.tv_sec * 1000 + ts.tv_nsec / 1000000;
 }
 
-int hs_cli_open(const char *config, hs_site *site, hs_store **st)
+int hs_cli_load_site(const char *config, hs_site *site)
 {
     hs_diag diag;
-    if (hs_site_load(config, site, &diag) != 0) {
-        for (unsigned i = 0; i < diag.n; i++)
-            fprintf(stderr, "%s\n", diag.msg[i]);
+    if (hs_site_load(config, site, &diag) == 0)
+        return 0;
+    for (unsigned i = 0; i < diag.n; i++)
+        fprintf(stderr, "%s\n", diag.msg[i]);
+    return HS_EXIT_CONFIG;
+}
+
+int hs_cli_open(const char *config, hs_site *site, hs_store **st)
+{
+    if (hs_cli_load_site(config, site) != 0)
         return HS_EXIT_CONFIG;
-    }
     char err[600];
     *st = hs_store_open(site->site.database, HS_STORE_READ, NULL, err, sizeof err);
     if (*st == NULL) {

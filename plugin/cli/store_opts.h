@@ -10,6 +10,10 @@
 #include "hs_config.h"
 #include "hs_store.h"
 
+/* Loads the site file; on failure prints every FILE:LINE: message on stderr
+ * and returns HS_EXIT_CONFIG (78), else 0 (the caller frees the site). */
+int hs_cli_load_site(const char *config, hs_site *site);
+
 /* Loads config and opens its database (HS_STORE_READ). Returns 0, or the
  * exit status to return (78 bad config, 1 no store) after printing why. On
  * success the caller frees with hs_site_free() and hs_store_close(). */
