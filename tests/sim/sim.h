@@ -49,6 +49,15 @@ typedef struct {
 } sim_pond;
 
 #define SIM_FAULTS_MAX 16
+#define SIM_RAINS_MAX 16
+
+/* A scripted shower: mm of rain on one pond (or every pond) within one
+ * simulated hour, starting at_h simulated hours after the start. */
+typedef struct {
+    int pond;              /* index in site.ponds, -1 for every pond */
+    double mm;
+    double at_h;
+} sim_rain;
 
 typedef struct {
     hs_site site;
@@ -64,6 +73,10 @@ typedef struct {
     size_t n_faults;
     const char *rtu_path[16]; /* per bus index < 16: pty for an rtu bus */
     unsigned seed;
+    double noise_scale;    /* 1: the built-in noise of every signal, 0: none */
+    double start_time_s;   /* sim_time_s at the start */
+    sim_rain rains[SIM_RAINS_MAX];
+    size_t n_rains;        /* > 0: only these showers, no built-in rain */
     volatile sig_atomic_t *stop;
 } sim;
 

@@ -8,7 +8,8 @@
  *   for density and salinity, and calc's brine conductivity model as the
  *   daemon inverts it (hc_path_model_conductivity) for conductivity.
  * The rest is simple on purpose (a test tool, no source): evaporation 6 mm a
- * day on average, by season and by day, slowed by salinity; rain events;
+ * day on average, by season and by day, slowed by salinity; rain events
+ * (built-in, or only the showers given with --rain);
  * pumps move depth from a pond to its next, mixing by water mass; weather
  * signals (air temperature, humidity, wind, sunshine) follow the day. */
 #include <math.h>
@@ -51,7 +52,7 @@ static void properties(const sim *s, int pond, double cf, double t_c, brine_prop
 
 static double noise(sim *s, double amplitude)
 {
-    return amplitude * (2.0 * rand_r(&s->seed) / (double)RAND_MAX - 1.0);
+    return amplitude * s->noise_scale * (2.0 * rand_r(&s->seed) / (double)RAND_MAX - 1.0);
 }
 
 sim_device *sim_device_find(sim *s, int bus, uint8_t unit)
@@ -216,6 +217,23 @@ static void write_signal(sim *s, const hs_signal *sg, double g)
     hp_encode(raw, pt->type, pt->byte_order, pt->word_order, table + pt->address);
 }
 
+/* Metres of scripted rain on a pond during the step that ends now: each
+ * shower falls evenly over its hour. */
+static double scripted_rain(const sim *s, int pond, double dt_s)
+{
+    double t1 = s->sim_time_s - s->start_time_s, t0 = t1 - dt_s, m = 0.0;
+    for (size_t k = 0; k < s->n_rains; k++) {
+        const sim_rain *r = &s->rains[k];
+        if (r->pond >= 0 && r->pond != pond)
+            continue;
+        double a = r->at_h * 3600.0, b = a + 3600.0;
+        double overlap = fmin(t1, b) - fmax(t0, a);
+        if (overlap > 0)
+            m += r->mm / 1000.0 * overlap / 3600.0;
+    }
+    return m;
+}
+
 void sim_model_step(sim *s, double dt_s)
 {
     double g = 9.80665;
@@ -228,7 +246,7 @@ void sim_model_step(sim *s, double dt_s)
     double sun = fmax(0.0, sin(2.0 * M_PI * (day - 0.25)));       /* 6 h to 18 h */
     /* Rain: on average one event every ~10 simulated days, lasting ~2 h. */
     static const double rain_rate_m_s = 4e-3 / 3600.0;
-    bool raining = fmod(s->sim_time_s / 3600.0, 240.0) < 2.0 && season < 0.3;
+    bool raining = s->n_rains == 0 && fmod(s->sim_time_s / 3600.0, 240.0) < 2.0 && season < 0.3;
     for (size_t i = 0; i < s->site.n_ponds; i++) {
         sim_pond *q = &s->ponds[i];
         const hs_pond *p = &s->site.ponds[i];
@@ -243,6 +261,9 @@ void sim_model_step(sim *s, double dt_s)
             q->depth_m += rain_rate_m_s * dt_s;
             q->rain_total_m += rain_rate_m_s * dt_s;
         }
+        double shower_m = scripted_rain(s, (int)i, dt_s);
+        q->depth_m += shower_m;
+        q->rain_total_m += shower_m;
         if (q->depth_m < 0.01)
             q->depth_m = 0.01;
         /* Salts stay: the water mass, and so CF, follows the depth. */
@@ -288,11 +309,15 @@ int sim_truth_write(sim *s, const char *path)
         const sim_pond *q = &s->ponds[i];
         brine_props b;
         properties(s, (int)i, q->cf, q->temperature_c, &b);
+        brine_props r;
+        properties(s, (int)i, q->cf, s->site.site.reference_temperature_c, &r);
         fprintf(f, "%s\"%s\": {\"concentration_factor\": %.6f, \"salinity_g_kg\": %.4f, "
                 "\"temperature_c\": %.4f, \"depth_m\": %.6f, \"density_kg_m3\": %.4f, "
+                "\"density_ref_kg_m3\": %.4f, \"rain_total_m\": %.6f, "
                 "\"conductivity_ms_cm\": %.4f, \"pumping\": %s}",
                 i ? ", " : "", s->site.ponds[i].name, q->cf, b.salinity_g_kg, q->temperature_c,
-                q->depth_m, b.density_kg_m3, b.conductivity_ms_cm, q->pumping ? "true" : "false");
+                q->depth_m, b.density_kg_m3, r.density_kg_m3, q->rain_total_m,
+                b.conductivity_ms_cm, q->pumping ? "true" : "false");
     }
     fprintf(f, "}}\n");
     pthread_mutex_unlock(&s->lock);
