@@ -18,6 +18,6 @@
  * dilution still raises within 30 minutes (tests/unit/test_fall_sim.c;
  * found by that test, no source). */
 #define HS_FALL_NOISE_K 10.0
-#define HS_FALL_FILTER_DEFAULT 63 /* samples in the density-fall median (odd) */
+#define HS_FALL_FILTER_DEFAULT 127 /* samples in the density-fall median (odd) */
 
 #endif

@@ -106,7 +106,9 @@ struct hs_rt_pond {
     int table_loaded;
     double rain_last_m;           /* last rain-gauge total fed to the balance, NaN none */
     char uncertain[256];          /* alarm rules of the pond the uncertainty holds back
-                                     ("band,fall"), as last logged */
+                                     now ("band,fall") */
+    char uncertain_told[256];     /* ... as told in the log since uncertain_told_ms */
+    int64_t uncertain_told_ms;    /* monotonic; 0 never */
 };
 
 struct hs_runtime {

@@ -43,6 +43,9 @@ typedef struct {
 typedef struct {
     double depth_m;        /* brine depth above the floor */
     double cf;             /* concentration factor against the feed */
+    double dilution;       /* >= 1: rain water on a brine past halite onset,
+                            * as water mass over the path brine's (its
+                            * deposited salt does not redissolve at once) */
     double temperature_c;
     double rain_total_m;   /* what the rain gauge has counted */
     bool pumping;
@@ -74,6 +77,8 @@ typedef struct {
     const char *rtu_path[16]; /* per bus index < 16: pty for an rtu bus */
     unsigned seed;
     double noise_scale;    /* 1: the built-in noise of every signal, 0: none */
+    double cond_noise_pct; /* > 0: conductivity noise, normal, this standard
+                            * deviation [%] instead of the built-in */
     double start_time_s;   /* sim_time_s at the start */
     sim_rain rains[SIM_RAINS_MAX];
     size_t n_rains;        /* > 0: only these showers, no built-in rain */

@@ -1,7 +1,8 @@
 /* halostage-sim --config FILE [--speed N] [--rtu BUS=PTY]...
  *               [--fault BUS[:UNIT]=KIND[:MS]]...
  *               [--truth FILE] [--faults FILE]
- *               [--noise SCALE] [--seed N] [--rain POND:MM@HOURS]...
+ *               [--noise SCALE] [--conductivity-noise PCT] [--seed N]
+ *               [--rain POND:MM@HOURS]... [--speed-after HOURS:N]
  * KIND: timeout, exception, drop, nan, sentinel, stuck, latency:MS. BUS * is every bus.
  * Stops on SIGTERM or SIGINT. SIGHUP reads the faults again (--fault and
  * --faults FILE), so a test can silence a device and bring it back. */
@@ -34,7 +35,10 @@ static void usage(FILE *to)
                 "  --truth FILE: keep the model's true pond values in FILE (JSON)\n"
                 "  --faults FILE: faults from a file, one BUS[:UNIT]=KIND a line, # comments\n"
                 "  --noise SCALE: times the built-in noise of every signal (1; 0: exact values)\n"
+                "  --conductivity-noise PCT: conductivity noise, normal, of this standard\n"
+                "    deviation in percent (instead of the built-in +-0.2 %% uniform)\n"
                 "  --seed N: the noise's pseudo-random sequence (default: from the clock)\n"
+                "  --speed-after HOURS:N: speed N once HOURS simulated hours have passed\n"
                 "  --rain POND:MM@HOURS: MM mm of rain on POND (* = every pond) within the\n"
                 "    simulated hour that starts HOURS after the start; with any --rain the\n"
                 "    built-in rain events are off\n"
@@ -152,6 +156,8 @@ int main(int argc, char **argv)
         {"faults", required_argument, NULL, 'F'},
         {"noise", required_argument, NULL, 'n'},  {"seed", required_argument, NULL, 'S'},
         {"rain", required_argument, NULL, 'R'},
+        {"conductivity-noise", required_argument, NULL, 'C'},
+        {"speed-after", required_argument, NULL, 'A'},
         {"help", no_argument, NULL, 'h'},         {NULL, 0, NULL, 0},
     };
     static sim s;
@@ -159,6 +165,7 @@ int main(int argc, char **argv)
     const char *rtu[16], *faults[SIM_FAULTS_MAX], *rains[SIM_RAINS_MAX];
     int n_rtu = 0, n_faults = 0, n_rains = 0, c;
     bool seeded = false;
+    double later_h = -1.0, later_speed = 1.0;
     s.speed = 1.0;
     s.noise_scale = 1.0;
     while ((c = getopt_long(argc, argv, "c:s:r:f:h", opts, NULL)) != -1) {
@@ -182,6 +189,29 @@ int main(int argc, char **argv)
             s.noise_scale = strtod(optarg, &end);
             if (*end || !(s.noise_scale >= 0 && s.noise_scale <= 100)) {
                 fprintf(stderr, "halostage-sim: --noise: '%s' is not a number in [0, 100]\n", optarg);
+                return 2;
+            }
+            break;
+        }
+        case 'A': {
+            char *end;
+            later_h = strtod(optarg, &end);
+            if (*end == ':')
+                later_speed = strtod(end + 1, &end);
+            if (*end || !(later_h >= 0 && later_h <= 1e6) ||
+                !(later_speed > 0 && later_speed <= 1e6)) {
+                fprintf(stderr, "halostage-sim: --speed-after: '%s' is not HOURS:N with HOURS "
+                        ">= 0 and N in (0, 1e6]\n", optarg);
+                return 2;
+            }
+            break;
+        }
+        case 'C': {
+            char *end;
+            s.cond_noise_pct = strtod(optarg, &end);
+            if (*end || !(s.cond_noise_pct >= 0 && s.cond_noise_pct <= 20)) {
+                fprintf(stderr, "halostage-sim: --conductivity-noise: '%s' is not a percentage "
+                        "in [0, 20]\n", optarg);
                 return 2;
             }
             break;
@@ -286,6 +316,8 @@ int main(int argc, char **argv)
                    bad ? " (some refused, see above)" : "");
             fflush(stdout);
         }
+        if (later_h >= 0 && s.sim_time_s - s.start_time_s >= later_h * 3600.0)
+            s.speed = later_speed;
         sim_model_step(&s, 0.1 * s.speed);
         if (truth && sim_truth_write(&s, truth) != 0)
             fprintf(stderr, "halostage-sim: cannot write %s\n", truth);
