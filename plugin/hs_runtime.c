@@ -146,6 +146,7 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
         return HSP_ERR_RUNTIME;
     if (sink != NULL)
         rt->sink = *sink;
+    rt->spb_bd_seq_kept = -1;
     snprintf(rt->config_path, sizeof rt->config_path, "%s", config_path);
     hs_brine_models *models = NULL;
     int rc = load_site(config_path, &rt->site, &models);

@@ -145,6 +145,7 @@ struct hs_runtime {
     hp_mbserver *mb_server;       /* its thread; reads mb_image only */
     hs_sparkplug *spb;            /* [sparkplug]: the edge node's thread; NULL off */
     uint64_t spb_bd_seq;          /* the next session's bdSeq, kept across reloads */
+    int64_t spb_bd_seq_kept;      /* as last kept in the store (store_meta), -1 not read */
 
     int64_t next_eval_ms;         /* monotonic */
     int64_t next_maintain_ms;
