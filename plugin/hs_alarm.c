@@ -27,6 +27,7 @@ struct alarm {
     struct {
         int64_t bucket;
         double max;
+        double sigma;         /* noise estimate when that max was taken */
     } fall[FALL_SLOTS];
     double filter[HS_FALL_FILTER_MAX]; /* density-fall: the last samples, a ring */
     unsigned filter_n, filter_next;
@@ -254,22 +255,31 @@ static double density_fall(struct alarm *a, double raw, int64_t t_ms, int64_t no
     double rho = filtered_density(a, raw, t_ms, &sigma_f);
     if (!isfinite(rho))
         return NAN;
-    /* the fall must exceed max(high, K sigma_f): as a margin past `high` */
-    *margin = fmax(0.0, HS_FALL_NOISE_K * sigma_f - a->rule.high);
     int64_t width = a->rule.window_ms / FALL_SLOTS;
     int64_t bucket = now_ms / width;
     int slot = (int)(((bucket % FALL_SLOTS) + FALL_SLOTS) % FALL_SLOTS);
     if (a->fall[slot].bucket != bucket) {
         a->fall[slot].bucket = bucket;
         a->fall[slot].max = rho;
+        a->fall[slot].sigma = sigma_f;
     } else if (rho > a->fall[slot].max) {
         a->fall[slot].max = rho;
+        a->fall[slot].sigma = sigma_f;
     }
-    double top = rho;
+    /* The fall compares two medians, each with the noise of its own time:
+     * the brine's noise wanders (a factor two over a day near halite), and
+     * a top taken while it was high must not be judged by a quiet moment's
+     * estimate. */
+    double top = rho, sigma_top = sigma_f;
     for (int i = 0; i < FALL_SLOTS; i++)
         if (a->fall[i].bucket > bucket - FALL_SLOTS && a->fall[i].bucket <= bucket &&
-            a->fall[i].max > top)
+            a->fall[i].max > top) {
             top = a->fall[i].max;
+            sigma_top = a->fall[i].sigma;
+        }
+    double sigma = fmax(sigma_f, sigma_top);
+    /* the fall must exceed max(high, K sigma): as a margin past `high` */
+    *margin = fmax(0.0, HS_FALL_NOISE_K * sigma - a->rule.high);
     return top - rho;
 }
 

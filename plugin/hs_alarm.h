@@ -22,12 +22,13 @@
  * caller logs it as `uncertain-source`). Saturation-index rules carry no
  * uncertainty yet and compare as given.
  * density-fall works on a robust filtered density: the median of the last
- * filter_samples samples (63 unless configured). Its fall must exceed the
+ * filter_samples samples (127 unless configured). Its fall must exceed the
  * rule's `high` and also HS_FALL_NOISE_K (10) standard deviations of that
  * median, estimated from the samples themselves (1.4826 MAD, GUM-free
  * robust statistics: Rousseeuw & Croux 1993; a median of N has about
- * 1.2533 sigma / sqrt(N), Kenney & Keeping 1962); hs_margin.h says why
- * seven. Until the filter is full the fall is unknown.
+ * 1.2533 sigma / sqrt(N), Kenney & Keeping 1962), the larger of the
+ * estimates at the window's top and now; hs_margin.h says why ten. Until the filter is
+ * full the fall is unknown.
  *
  * Error convention: functions return an hs_alarm_result; HS_ALARM_DONE (0)
  * and HS_ALARM_ALREADY (1, nothing to do) are successes. */
@@ -41,7 +42,7 @@
 #include "hs_margin.h"
 
 #define HS_ALARM_NAME_MAX 64 /* pond and rule names, with the terminating NUL */
-#define HS_FALL_FILTER_MAX 64 /* longest density-fall median filter [samples] */
+#define HS_FALL_FILTER_MAX 255 /* longest density-fall median filter [samples] */
 
 typedef enum {
     HS_ALARM_NORMAL,

@@ -216,7 +216,7 @@ const char *hs_alarm_rule_check(const hs_alarm_rule *r)
     if (r->quantity == HS_QTY_DENSITY_FALL && r->window_ms < 16000)
         return "'window' must be at least 16s";
     if (r->filter_samples < 1 || r->filter_samples > HS_FALL_FILTER_MAX)
-        return "'filter_samples' must be 1 to 64";
+        return "'filter_samples' must be 1 to 255";
     if (r->max_shelve_ms <= 0)
         return "'max_shelve' must be positive";
     return NULL;

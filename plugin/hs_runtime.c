@@ -158,6 +158,7 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
         return HSP_ERR_RUNTIME;
     if (sink != NULL)
         rt->sink = *sink;
+    rt->spb_bd_seq_kept = -1;
     snprintf(rt->config_path, sizeof rt->config_path, "%s", config_path);
     hs_brine_models *models = NULL;
     int rc = load_site(config_path, &rt->site, &models);
@@ -227,10 +228,40 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
 
 /* ---- the cycle ---- */
 
-/* Alarm rules of pond i whose limit the state crosses only within k u:
- * logged once when the set changes (`uncertain-source`), so an operator
- * sees why a rule that looks crossed has not raised. */
-static void note_uncertain_alarms(hs_runtime *rt, size_t i)
+/* Whether the comma-separated list has the rule. */
+static int list_has(const char *list, const char *rule, size_t len)
+{
+    for (const char *r = list; *r;) {
+        const char *end = strchr(r, ',');
+        size_t n = end ? (size_t)(end - r) : strlen(r);
+        if (n == len && strncmp(r, rule, len) == 0)
+            return 1;
+        r += n + (end != NULL);
+    }
+    return 0;
+}
+
+/* Appends the rules of add missing from list (bounded by size). */
+static void list_union(char *list, size_t size, const char *add)
+{
+    for (const char *r = add; *r;) {
+        const char *end = strchr(r, ',');
+        size_t n = end ? (size_t)(end - r) : strlen(r), used = strlen(list);
+        if (!list_has(list, r, n) && used + n + 2 <= size)
+            snprintf(list + used, size - used, "%s%.*s", used ? "," : "", (int)n, r);
+        r += n + (end != NULL);
+    }
+}
+
+#define UNCERTAIN_TELL_MS (15 * 60 * 1000) /* a noisy source flickers: tell this seldom */
+
+/* Alarm rules of pond i whose limit the state crosses only within k u go
+ * into the pond state at once (uncertain_alarms) and into the log as
+ * `uncertain-source`: when a rule is held back that was not told in the
+ * last 15 minutes, else at most every 15 minutes while the set changes, so
+ * an operator sees why a rule that looks crossed has not raised without a
+ * line for each flicker of a noisy source. */
+static void note_uncertain_alarms(hs_runtime *rt, size_t i, int64_t mono_ms)
 {
     char now[sizeof rt->ponds[i].uncertain] = "";
     size_t used = 0;
@@ -244,17 +275,31 @@ static void note_uncertain_alarms(hs_runtime *rt, size_t i)
         used += (size_t)n;
     }
     struct hs_rt_pond *p = &rt->ponds[i];
-    if (strcmp(now, p->uncertain) == 0)
+    snprintf(p->uncertain, sizeof p->uncertain, "%s", now);
+    int news = 0;
+    for (const char *r = now; *r;) {
+        const char *end = strchr(r, ',');
+        size_t n = end ? (size_t)(end - r) : strlen(r);
+        news |= !list_has(p->uncertain_told, r, n);
+        r += n + (end != NULL);
+    }
+    int quiet = p->uncertain_told_ms == 0 || mono_ms - p->uncertain_told_ms >= UNCERTAIN_TELL_MS;
+    if (!news && !(quiet && strcmp(now, p->uncertain_told) != 0))
         return;
     if (now[0])
-        hs_log(HSP_LOG_NOTICE, "pond %s: uncertain-source: %s past a limit by less than %.0f "
-               "standard uncertainties of the state (+-%.1f kg/m3); not raised",
+        hs_log(HSP_LOG_NOTICE, "pond %s: uncertain-source: %s past a limit by less than its "
+               "margin (%.0f standard uncertainties of the state, +-%.1f kg/m3; for density-fall "
+               "ten standard deviations of its median); not raised",
                rt->site.ponds[i].name, now, HS_DECISION_K,
-               p->view.state.density_uncertainty_kg_m3);
+               HS_DECISION_K * p->view.state.density_uncertainty_kg_m3);
     else
         hs_log(HSP_LOG_INFO, "pond %s: no alarm held back by uncertainty any more",
                rt->site.ponds[i].name);
-    snprintf(p->uncertain, sizeof p->uncertain, "%s", now);
+    if (quiet)
+        snprintf(p->uncertain_told, sizeof p->uncertain_told, "%s", now);
+    else
+        list_union(p->uncertain_told, sizeof p->uncertain_told, now);
+    p->uncertain_told_ms = mono_ms;
 }
 
 /* A pond is evaluated every cycle (its alarms watch the age of its
@@ -305,7 +350,7 @@ static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms, int64_t mono
             in.sensors_stuck += 1.0;
     }
     hs_alarm_update(rt->alarms, rt->site.ponds[i].name, &in, now_ms, alarm_emit, rt);
-    note_uncertain_alarms(rt, i);
+    note_uncertain_alarms(rt, i, mono_ms);
     int changed = p->pub_mono_ms == 0 || p->view.t_ms != p->pub_t_ms ||
                   (int)p->view.quality != p->pub_quality ||
                   (int)p->view.depth_quality != p->pub_depth_quality ||

@@ -130,7 +130,9 @@ struct hs_rt_pond {
     int table_loaded;
     double rain_last_m;           /* last rain-gauge total fed to the balance, NaN none */
     char uncertain[256];          /* alarm rules of the pond the uncertainty holds back
-                                     ("band,fall"), as last logged */
+                                     now ("band,fall") */
+    char uncertain_told[256];     /* ... as told in the log since uncertain_told_ms */
+    int64_t uncertain_told_ms;    /* monotonic; 0 never */
 };
 
 struct hs_runtime {
@@ -170,6 +172,7 @@ struct hs_runtime {
     hp_mbserver *mb_server;       /* its thread; reads mb_image only */
     hs_sparkplug *spb;            /* [sparkplug]: the edge node's thread; NULL off */
     uint64_t spb_bd_seq;          /* the next session's bdSeq, kept across reloads */
+    int64_t spb_bd_seq_kept;      /* as last kept in the store (store_meta), -1 not read */
 
     int64_t next_eval_ms;         /* monotonic */
     int64_t next_maintain_ms;

@@ -33,6 +33,15 @@ static int sparkplug_open(hs_runtime *rt)
         hs_log(HSP_LOG_ERR, "[mqtt] password_file %s", err);
         return -1;
     }
+    if (rt->spb_bd_seq_kept < 0) {
+        /* after a restart the next bdSeq comes from the store: a host that
+         * still holds the old session's death certificate must not see it
+         * match the new birth */
+        int64_t kept = 0;
+        if (hs_store_meta_get(rt->store, "sparkplug_next_bdseq", 0, &kept) == 0 && kept >= 0)
+            rt->spb_bd_seq = (uint64_t)kept & 0xFF;
+        rt->spb_bd_seq_kept = (int64_t)rt->spb_bd_seq;
+    }
     rt->spb = hs_sparkplug_start(&rt->site, password[0] ? password : NULL, rt->spb_bd_seq, err,
                                  sizeof err);
     explicit_bzero(password, sizeof password);
@@ -82,10 +91,24 @@ int hs_rt_scada_open(hs_runtime *rt)
     return 0;
 }
 
+/* Keeps the next session's bdSeq in the store when it changed. */
+static void keep_bd_seq(hs_runtime *rt, uint64_t next)
+{
+    if (rt->store == NULL || (int64_t)next == rt->spb_bd_seq_kept)
+        return;
+    /* committed at once (it changes once a session): a crash must not
+     * bring back a bdSeq already used */
+    if (hs_store_meta_set(rt->store, "sparkplug_next_bdseq", (int64_t)next) == 0 &&
+        hs_store_flush(rt->store) == 0)
+        rt->spb_bd_seq_kept = (int64_t)next;
+}
+
 void hs_rt_scada_close(hs_runtime *rt)
 {
-    if (rt->spb != NULL)
+    if (rt->spb != NULL) {
         rt->spb_bd_seq = hs_sparkplug_stop(rt->spb);
+        keep_bd_seq(rt, rt->spb_bd_seq);
+    }
     rt->spb = NULL;
     hp_mbserver_stop(rt->mb_server); /* first: the server reads the image */
     rt->mb_server = NULL;
@@ -135,6 +158,8 @@ void hs_rt_scada_transfer(hs_runtime *rt, size_t i)
 
 void hs_rt_scada_beat(hs_runtime *rt, int64_t now_ms)
 {
+    if (rt->spb != NULL)
+        keep_bd_seq(rt, hs_sparkplug_next_bd_seq(rt->spb));
     if (rt->mb_image != NULL)
         hs_mb_image_beat(rt->mb_image, (uint32_t)(now_ms / 1000));
 }

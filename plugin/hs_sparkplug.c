@@ -278,7 +278,9 @@ static void close_link(hs_sparkplug *n)
     n->connected = n->node_born = n->host_online = 0;
     n->host_ts = 0;
     n->drop_link = 0;
+    pthread_mutex_lock(&n->lock); /* hs_sparkplug_next_bd_seq reads it */
     n->bd_seq = (n->bd_seq + 1) & 0xFF; /* per new connection, Sparkplug 3.0 §6.4.17 */
+    pthread_mutex_unlock(&n->lock);
     n->next_connect_ms = mono_ms() + n->retry_ms;
     n->retry_ms = n->retry_ms * 2 > RETRY_MAX_MS ? RETRY_MAX_MS : n->retry_ms * 2;
 }
@@ -412,6 +414,14 @@ void hs_sparkplug_transfer(hs_sparkplug *n, size_t transfer, const hs_scada_tran
     pthread_mutex_lock(&n->lock);
     n->tlatest[transfer] = *t;
     pthread_mutex_unlock(&n->lock);
+}
+
+uint64_t hs_sparkplug_next_bd_seq(hs_sparkplug *n)
+{
+    pthread_mutex_lock(&n->lock);
+    uint64_t next = (n->bd_seq + 1) & 0xFF;
+    pthread_mutex_unlock(&n->lock);
+    return next;
 }
 
 uint64_t hs_sparkplug_stop(hs_sparkplug *n)

@@ -43,12 +43,16 @@
 typedef struct hs_sparkplug hs_sparkplug;
 
 /* password: the [mqtt] password (read by the caller) or NULL. bd_seq: the
- * first session's bdSeq (0 at process start; what the last stop returned
- * across a reload, so a host never sees one reused). */
+ * first session's bdSeq (what the last stop returned across a reload, and
+ * what the history store kept across a restart, so a host never sees a
+ * death certificate of an old session match a new birth). */
 hs_sparkplug *hs_sparkplug_start(const hs_site *site, const char *password, uint64_t bd_seq,
                                  char *err, size_t errlen);
 void hs_sparkplug_pond(hs_sparkplug *n, size_t pond, const hs_scada_pond *p);
 void hs_sparkplug_transfer(hs_sparkplug *n, size_t transfer, const hs_scada_transfer *t);
+/* The bdSeq the next session will use (the current one's plus one, mod
+ * 256): what a new process must start from should this one die now. */
+uint64_t hs_sparkplug_next_bd_seq(hs_sparkplug *n);
 /* NDEATH, disconnect, join, free; returns the next bdSeq. NULL is allowed. */
 uint64_t hs_sparkplug_stop(hs_sparkplug *n);
 

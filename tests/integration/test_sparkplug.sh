@@ -116,6 +116,16 @@ kill -9 "$dpid"
 wait "$dpid" 2>/dev/null
 check "killing the daemon yields the NDEATH will" wait_count NDEATH/gw1 2 15
 
+# a restart goes on from the stored bdSeq (sessions 0 and 1 were used):
+# a host still holding the killed session's NDEATH never sees it match
+"$D" --config "$cfg" --log-level info >"$HS_TMP/daemon2.log" 2>&1 &
+dpid2=$!
+HS_PIDS+=("$dpid2")
+check "after a restart the node connects with the next bdSeq (2), not 0" \
+    hs_wait_file_line "$HS_TMP/daemon2.log" 'connected as spb-gw-spb \(bdSeq 2\)' 15
+kill "$dpid2"
+wait "$dpid2" 2>/dev/null
+
 /usr/bin/python3 - "$HS_TMP" "$cap" >"$HS_TMP/decode.txt" 2>&1 <<'PY'
 import sys
 sys.path.insert(0, sys.argv[1])
@@ -151,7 +161,9 @@ for t, p in births:
 if len(births) < 3: fails.append("%d NBIRTH" % len(births))
 elif bdseq(births[0][1]) != bdseq(births[1][1]): fails.append("rebirth changed bdSeq")
 # every NDEATH carries the bdSeq of the NBIRTH before it (the first one the
-# node's own on the host going offline, the last one the broker's will)
+# node's own on the host going offline, the second the broker's will after
+# SIGKILL, the third the restarted node's own at its clean stop), and no
+# bdSeq comes back
 pairs = []
 cur = None
 for t, p in msgs:
@@ -159,7 +171,7 @@ for t, p in msgs:
         cur = bdseq(p)
     elif t[2] == "NDEATH":
         pairs.append((cur, bdseq(p)))
-if len(pairs) != 2 or any(b != d for b, d in pairs) or pairs[0][1] == pairs[1][1]:
+if len(pairs) != 3 or any(b != d for b, d in pairs) or len({d[0] for _, d in pairs}) != 3:
     fails.append("NBIRTH/NDEATH bdSeq pairs %s" % pairs)
 print("bdSeq (NBIRTH, NDEATH) pairs %s" % pairs)
 

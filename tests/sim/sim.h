@@ -43,12 +43,24 @@ typedef struct {
 typedef struct {
     double depth_m;        /* brine depth above the floor */
     double cf;             /* concentration factor against the feed */
+    double dilution;       /* >= 1: rain water on a brine past halite onset,
+                            * as water mass over the path brine's (its
+                            * deposited salt does not redissolve at once) */
     double temperature_c;
     double rain_total_m;   /* what the rain gauge has counted */
     bool pumping;
 } sim_pond;
 
 #define SIM_FAULTS_MAX 16
+#define SIM_RAINS_MAX 16
+
+/* A scripted shower: mm of rain on one pond (or every pond) within one
+ * simulated hour, starting at_h simulated hours after the start. */
+typedef struct {
+    int pond;              /* index in site.ponds, -1 for every pond */
+    double mm;
+    double at_h;
+} sim_rain;
 
 typedef struct {
     hs_site site;
@@ -64,6 +76,12 @@ typedef struct {
     size_t n_faults;
     const char *rtu_path[16]; /* per bus index < 16: pty for an rtu bus */
     unsigned seed;
+    double noise_scale;    /* 1: the built-in noise of every signal, 0: none */
+    double cond_noise_pct; /* > 0: conductivity noise, normal, this standard
+                            * deviation [%] instead of the built-in */
+    double start_time_s;   /* sim_time_s at the start */
+    sim_rain rains[SIM_RAINS_MAX];
+    size_t n_rains;        /* > 0: only these showers, no built-in rain */
     volatile sig_atomic_t *stop;
 } sim;
 

@@ -1,11 +1,14 @@
 /* halostage-sim --config FILE [--speed N] [--rtu BUS=PTY]...
  *               [--fault BUS[:UNIT]=KIND[:MS]]...
  *               [--truth FILE] [--faults FILE]
+ *               [--noise SCALE] [--conductivity-noise PCT] [--seed N]
+ *               [--rain POND:MM@HOURS]... [--speed-after HOURS:N]
  * KIND: timeout, exception, drop, nan, sentinel, stuck, latency:MS. BUS * is every bus.
  * Stops on SIGTERM or SIGINT. SIGHUP reads the faults again (--fault and
  * --faults FILE), so a test can silence a device and bring it back. */
 #include <getopt.h>
 #include <signal.h>
+#include <stdbool.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -31,7 +34,45 @@ static void usage(FILE *to)
                 "  KIND: timeout, exception, drop, nan, sentinel, stuck, latency:MS; BUS * = all\n"
                 "  --truth FILE: keep the model's true pond values in FILE (JSON)\n"
                 "  --faults FILE: faults from a file, one BUS[:UNIT]=KIND a line, # comments\n"
+                "  --noise SCALE: times the built-in noise of every signal (1; 0: exact values)\n"
+                "  --conductivity-noise PCT: conductivity noise, normal, of this standard\n"
+                "    deviation in percent (instead of the built-in +-0.2 %% uniform)\n"
+                "  --seed N: the noise's pseudo-random sequence (default: from the clock)\n"
+                "  --speed-after HOURS:N: speed N once HOURS simulated hours have passed\n"
+                "  --rain POND:MM@HOURS: MM mm of rain on POND (* = every pond) within the\n"
+                "    simulated hour that starts HOURS after the start; with any --rain the\n"
+                "    built-in rain events are off\n"
                 "  SIGHUP reads the faults again\n");
+}
+
+/* POND:MM@HOURS, POND a pond of the config or *. */
+static int parse_rain(sim *s, const char *text)
+{
+    const char *colon = strrchr(text, ':'), *at = colon ? strchr(colon, '@') : NULL;
+    if (!colon || !at || s->n_rains >= SIM_RAINS_MAX)
+        return -1;
+    sim_rain r = {.pond = -1};
+    char name[HS_NAME_MAX];
+    if ((size_t)(colon - text) >= sizeof name)
+        return -1;
+    snprintf(name, sizeof name, "%.*s", (int)(colon - text), text);
+    if (strcmp(name, "*") != 0) {
+        r.pond = -1;
+        for (size_t i = 0; i < s->site.n_ponds; i++)
+            if (strcmp(s->site.ponds[i].name, name) == 0)
+                r.pond = (int)i;
+        if (r.pond < 0)
+            return -1;
+    }
+    char *end;
+    r.mm = strtod(colon + 1, &end);
+    if (end != at || !(r.mm >= 0 && r.mm <= 1000))
+        return -1;
+    r.at_h = strtod(at + 1, &end);
+    if (*end || !(r.at_h >= 0 && r.at_h <= 1e6))
+        return -1;
+    s->rains[s->n_rains++] = r;
+    return 0;
 }
 
 static int parse_fault(sim *s, const char *text)
@@ -113,13 +154,20 @@ int main(int argc, char **argv)
         {"rtu", required_argument, NULL, 'r'},    {"fault", required_argument, NULL, 'f'},
         {"truth", required_argument, NULL, 't'},
         {"faults", required_argument, NULL, 'F'},
+        {"noise", required_argument, NULL, 'n'},  {"seed", required_argument, NULL, 'S'},
+        {"rain", required_argument, NULL, 'R'},
+        {"conductivity-noise", required_argument, NULL, 'C'},
+        {"speed-after", required_argument, NULL, 'A'},
         {"help", no_argument, NULL, 'h'},         {NULL, 0, NULL, 0},
     };
     static sim s;
     const char *config = NULL, *truth = NULL, *fault_file = NULL;
-    const char *rtu[16], *faults[SIM_FAULTS_MAX];
-    int n_rtu = 0, n_faults = 0, c;
+    const char *rtu[16], *faults[SIM_FAULTS_MAX], *rains[SIM_RAINS_MAX];
+    int n_rtu = 0, n_faults = 0, n_rains = 0, c;
+    bool seeded = false;
+    double later_h = -1.0, later_speed = 1.0;
     s.speed = 1.0;
+    s.noise_scale = 1.0;
     while ((c = getopt_long(argc, argv, "c:s:r:f:h", opts, NULL)) != -1) {
         switch (c) {
         case 'c': config = optarg; break;
@@ -136,6 +184,56 @@ int main(int argc, char **argv)
         case 'f': if (n_faults < SIM_FAULTS_MAX) faults[n_faults++] = optarg; break;
         case 't': truth = optarg; break;
         case 'F': fault_file = optarg; break;
+        case 'n': {
+            char *end;
+            s.noise_scale = strtod(optarg, &end);
+            if (*end || !(s.noise_scale >= 0 && s.noise_scale <= 100)) {
+                fprintf(stderr, "halostage-sim: --noise: '%s' is not a number in [0, 100]\n", optarg);
+                return 2;
+            }
+            break;
+        }
+        case 'A': {
+            char *end;
+            later_h = strtod(optarg, &end);
+            if (*end == ':')
+                later_speed = strtod(end + 1, &end);
+            if (*end || !(later_h >= 0 && later_h <= 1e6) ||
+                !(later_speed > 0 && later_speed <= 1e6)) {
+                fprintf(stderr, "halostage-sim: --speed-after: '%s' is not HOURS:N with HOURS "
+                        ">= 0 and N in (0, 1e6]\n", optarg);
+                return 2;
+            }
+            break;
+        }
+        case 'C': {
+            char *end;
+            s.cond_noise_pct = strtod(optarg, &end);
+            if (*end || !(s.cond_noise_pct >= 0 && s.cond_noise_pct <= 20)) {
+                fprintf(stderr, "halostage-sim: --conductivity-noise: '%s' is not a percentage "
+                        "in [0, 20]\n", optarg);
+                return 2;
+            }
+            break;
+        }
+        case 'S': {
+            char *end;
+            unsigned long v = strtoul(optarg, &end, 10);
+            if (*end || *optarg == '-' || !*optarg || v > 0xffffffffUL) {
+                fprintf(stderr, "halostage-sim: --seed: '%s' is not a whole number\n", optarg);
+                return 2;
+            }
+            s.seed = (unsigned)v;
+            seeded = true;
+            break;
+        }
+        case 'R':
+            if (n_rains >= SIM_RAINS_MAX) {
+                fprintf(stderr, "halostage-sim: --rain: at most %d showers\n", SIM_RAINS_MAX);
+                return 2;
+            }
+            rains[n_rains++] = optarg;
+            break;
         case 'h': usage(stdout); return 0;
         default: usage(stderr); return 2;
         }
@@ -153,8 +251,16 @@ int main(int argc, char **argv)
     int rc = 1;
     pthread_mutex_init(&s.lock, NULL);
     s.stop = &stop_flag;
-    s.seed = (unsigned)time(NULL);
+    if (!seeded)
+        s.seed = (unsigned)time(NULL);
     s.sim_time_s = (double)time(NULL);
+    s.start_time_s = s.sim_time_s;
+    for (int i = 0; i < n_rains; i++)
+        if (parse_rain(&s, rains[i]) != 0) {
+            fprintf(stderr, "halostage-sim: --rain %s: expected POND:MM@HOURS with a pond of the "
+                    "config (or *), MM in [0, 1000] and HOURS >= 0\n", rains[i]);
+            goto out;
+        }
     for (int i = 0; i < n_rtu; i++) {
         const char *eq = strchr(rtu[i], '=');
         char name[HS_NAME_MAX];
@@ -210,6 +316,8 @@ int main(int argc, char **argv)
                    bad ? " (some refused, see above)" : "");
             fflush(stdout);
         }
+        if (later_h >= 0 && s.sim_time_s - s.start_time_s >= later_h * 3600.0)
+            s.speed = later_speed;
         sim_model_step(&s, 0.1 * s.speed);
         if (truth && sim_truth_write(&s, truth) != 0)
             fprintf(stderr, "halostage-sim: cannot write %s\n", truth);

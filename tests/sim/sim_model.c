@@ -8,7 +8,8 @@
  *   for density and salinity, and calc's brine conductivity model as the
  *   daemon inverts it (hc_path_model_conductivity) for conductivity.
  * The rest is simple on purpose (a test tool, no source): evaporation 6 mm a
- * day on average, by season and by day, slowed by salinity; rain events;
+ * day on average, by season and by day, slowed by salinity; rain events
+ * (built-in, or only the showers given with --rain);
  * pumps move depth from a pond to its next, mixing by water mass; weather
  * signals (air temperature, humidity, wind, sunshine) follow the day. */
 #include <math.h>
@@ -17,6 +18,8 @@
 #include <string.h>
 
 #include "hc_brine_cond.h"
+#include "hc_brine_density.h"
+#include "hc_ion.h"
 #include "hc_eos80.h"
 #include "hc_level.h"
 #include "hc_pss78.h"
@@ -30,10 +33,36 @@ typedef struct {
     double salinity_g_kg;
 } brine_props;
 
+/* The path brine at cf with its water multiplied by dilution: density by
+ * Laliberte's mixture model (hc_brine_density), conductivity by the brine
+ * model at its salt fraction (hc_brine_conductivity; past halite onset the
+ * model's join to PSS-78 has faded out). */
+static void diluted_properties(const hc_path *path, double cf, double dilution, double t_c,
+                               brine_props *out)
+{
+    hc_path_point pt;
+    if (hc_path_point_at_cf(path, cf, &pt, NULL) != HC_OK)
+        return;
+    double m[HC_ION_COUNT];
+    for (int i = 0; i < HC_ION_COUNT; i++)
+        m[i] = pt.molality[i] / dilution;
+    double solute = hc_solute_g_per_kg_water(m);
+    out->salinity_g_kg = 1000.0 * solute / (1000.0 + solute);
+    (void)hc_brine_density(m, t_c, &out->density_kg_m3);
+    (void)hc_brine_conductivity(out->salinity_g_kg, t_c, &out->conductivity_ms_cm);
+}
+
 static void properties(const sim *s, int pond, double cf, double t_c, brine_props *out)
 {
     double sp = FEED_SP * cf;
     out->density_kg_m3 = out->conductivity_ms_cm = out->salinity_g_kg = NAN;
+    double dilution = s->ponds ? s->ponds[pond].dilution : 1.0;
+    if (dilution > 1.0) {
+        const hc_path *path = hs_paths_for(&s->paths, s->site.ponds[pond].feed_index);
+        if (path)
+            diluted_properties(path, cf, dilution, t_c, out);
+        return;
+    }
     if (sp <= 42.0) {
         (void)hc_eos80_rho(sp, t_c, 0.0, &out->density_kg_m3);
         (void)hc_pss78_c_from_sp(sp, t_c, 0.0, &out->conductivity_ms_cm);
@@ -51,7 +80,16 @@ static void properties(const sim *s, int pond, double cf, double t_c, brine_prop
 
 static double noise(sim *s, double amplitude)
 {
-    return amplitude * (2.0 * rand_r(&s->seed) / (double)RAND_MAX - 1.0);
+    return amplitude * s->noise_scale * (2.0 * rand_r(&s->seed) / (double)RAND_MAX - 1.0);
+}
+
+/* N(0, 1) by Irwin-Hall: the sum of 12 uniforms less 6. */
+static double gauss(sim *s)
+{
+    double g = 0.0;
+    for (int k = 0; k < 12; k++)
+        g += rand_r(&s->seed) / (double)RAND_MAX;
+    return g - 6.0;
 }
 
 sim_device *sim_device_find(sim *s, int bus, uint8_t unit)
@@ -107,6 +145,7 @@ int sim_model_init(sim *s)
         double hi = isnan(p->level_max_m) ? lo + 0.5 : p->level_max_m;
         q->depth_m = 0.5 * (lo + hi);
         q->cf = initial_cf(s, (int)i);
+        q->dilution = 1.0;
         q->temperature_c = 22.0;
     }
     /* One register image per (bus, unit) that signals use. */
@@ -173,6 +212,8 @@ static double signal_si(sim *s, const hs_signal *sg, double g)
     double rho = b.density_kg_m3;
     switch (sg->quantity) {
     case HS_Q_CONDUCTIVITY:
+        if (s->cond_noise_pct > 0)
+            return b.conductivity_ms_cm * (1.0 + s->cond_noise_pct / 100.0 * gauss(s));
         return b.conductivity_ms_cm * (1.0 + noise(s, 0.002));
     case HS_Q_TEMPERATURE: return q->temperature_c + noise(s, 0.05);
     case HS_Q_LEVEL_PRESSURE:
@@ -216,6 +257,23 @@ static void write_signal(sim *s, const hs_signal *sg, double g)
     hp_encode(raw, pt->type, pt->byte_order, pt->word_order, table + pt->address);
 }
 
+/* Metres of scripted rain on a pond during the step that ends now: each
+ * shower falls evenly over its hour. */
+static double scripted_rain(const sim *s, int pond, double dt_s)
+{
+    double t1 = s->sim_time_s - s->start_time_s, t0 = t1 - dt_s, m = 0.0;
+    for (size_t k = 0; k < s->n_rains; k++) {
+        const sim_rain *r = &s->rains[k];
+        if (r->pond >= 0 && r->pond != pond)
+            continue;
+        double a = r->at_h * 3600.0, b = a + 3600.0;
+        double overlap = fmin(t1, b) - fmax(t0, a);
+        if (overlap > 0)
+            m += r->mm / 1000.0 * overlap / 3600.0;
+    }
+    return m;
+}
+
 void sim_model_step(sim *s, double dt_s)
 {
     double g = 9.80665;
@@ -228,7 +286,7 @@ void sim_model_step(sim *s, double dt_s)
     double sun = fmax(0.0, sin(2.0 * M_PI * (day - 0.25)));       /* 6 h to 18 h */
     /* Rain: on average one event every ~10 simulated days, lasting ~2 h. */
     static const double rain_rate_m_s = 4e-3 / 3600.0;
-    bool raining = fmod(s->sim_time_s / 3600.0, 240.0) < 2.0 && season < 0.3;
+    bool raining = s->n_rains == 0 && fmod(s->sim_time_s / 3600.0, 240.0) < 2.0 && season < 0.3;
     for (size_t i = 0; i < s->site.n_ponds; i++) {
         sim_pond *q = &s->ponds[i];
         const hs_pond *p = &s->site.ponds[i];
@@ -237,16 +295,33 @@ void sim_model_step(sim *s, double dt_s)
          * activity falls to ~0.75 at halite saturation, Salhotra et al. 1985). */
         double activity = 1.0 - 0.25 * fmin(1.0, (q->cf - 1.0) / 10.0);
         double evap_m_s = 6e-3 / 86400.0 * (1.0 + 0.4 * season) * 2.0 * sun * activity;
+        /* Salts stay: the water mass, and so CF, follows the depth. Past
+         * halite onset rain dilutes the brine instead (the deposit stays on
+         * the floor), and evaporation takes that water back first. */
         double before = q->depth_m;
-        q->depth_m -= evap_m_s * dt_s;
-        if (raining) {
-            q->depth_m += rain_rate_m_s * dt_s;
-            q->rain_total_m += rain_rate_m_s * dt_s;
+        q->depth_m = fmax(0.01, q->depth_m - evap_m_s * dt_s);
+        double dried = before / q->depth_m; /* >= 1 */
+        if (q->dilution > 1.0) {
+            q->dilution /= dried;
+            dried = 1.0;
+            if (q->dilution < 1.0) {
+                dried = 1.0 / q->dilution;
+                q->dilution = 1.0;
+            }
         }
-        if (q->depth_m < 0.01)
-            q->depth_m = 0.01;
-        /* Salts stay: the water mass, and so CF, follows the depth. */
-        q->cf = fmin(s->max_cf, q->cf * before / q->depth_m);
+        q->cf = fmin(s->max_cf, q->cf * dried);
+        double rain_m = scripted_rain(s, (int)i, dt_s) + (raining ? rain_rate_m_s * dt_s : 0.0);
+        if (rain_m > 0) {
+            const hc_path *path = hs_paths_for(&s->paths, p->feed_index);
+            double halite_cf = path ? hc_path_stage_cf(path, HC_STAGE_HALITE) : NAN;
+            double wetter = (q->depth_m + rain_m) / q->depth_m;
+            if (isfinite(halite_cf) && q->cf > halite_cf)
+                q->dilution *= wetter;
+            else
+                q->cf /= wetter;
+            q->depth_m += rain_m;
+            q->rain_total_m += rain_m;
+        }
         /* Pumps: the coil at the pump-run address starts the pond's pump;
          * it moves 50 mm/h of depth down the chain, and stops itself at
          * level_min (the sim's own interlock). */
@@ -288,11 +363,15 @@ int sim_truth_write(sim *s, const char *path)
         const sim_pond *q = &s->ponds[i];
         brine_props b;
         properties(s, (int)i, q->cf, q->temperature_c, &b);
+        brine_props r;
+        properties(s, (int)i, q->cf, s->site.site.reference_temperature_c, &r);
         fprintf(f, "%s\"%s\": {\"concentration_factor\": %.6f, \"salinity_g_kg\": %.4f, "
                 "\"temperature_c\": %.4f, \"depth_m\": %.6f, \"density_kg_m3\": %.4f, "
+                "\"density_ref_kg_m3\": %.4f, \"rain_total_m\": %.6f, "
                 "\"conductivity_ms_cm\": %.4f, \"pumping\": %s}",
                 i ? ", " : "", s->site.ponds[i].name, q->cf, b.salinity_g_kg, q->temperature_c,
-                q->depth_m, b.density_kg_m3, b.conductivity_ms_cm, q->pumping ? "true" : "false");
+                q->depth_m, b.density_kg_m3, r.density_kg_m3, q->rain_total_m,
+                b.conductivity_ms_cm, q->pumping ? "true" : "false");
     }
     fprintf(f, "}}\n");
     pthread_mutex_unlock(&s->lock);
