@@ -407,10 +407,14 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
         hs_store_command_take(rt->store, command_from_queue, rt);
         rt->next_command_ms = mono + COMMANDS_EVERY_MS;
     }
-    /* Samples and states reach the disk every commit_interval (flash wear);
-     * alarms, decisions, messages and replies at once. */
+    /* Samples and states reach the disk every commit_interval (flash wear),
+     * a first one or a change of quality or stage at once; alarms,
+     * decisions, messages and replies at once. */
     int due = mono >= rt->next_commit_ms;
-    int committed = hs_store_commit_due(rt->store, due);
+    int now_too = rt->held_now; /* a first row, a quality or stage change */
+    if (due || now_too)
+        hs_rt_keep_commit(rt); /* the rows kept since the last commit, in one go */
+    int committed = hs_store_commit_due(rt->store, due || now_too);
     if (committed < 0)
         hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
     if (due)

@@ -18,14 +18,20 @@
  * larger), its level by more than state_deadband_level, or
  * state_max_interval passed since the last kept row.
  *
+ * Kept rows are held in memory and written at each commit (commit_interval),
+ * in one short transaction: the write lock is never held between commits.
+ * A first row, or a change of quality (or of a pond's stage), is committed
+ * at the end of the cycle instead: what an operator must see at once.
  * The minutes are held in memory and written together at each maintenance
  * pass (at most every commit_interval): a batch then touches each series'
  * last page once, not once a minute. A crash loses them with the rest of
  * the open batch; a clean stop or a reload writes them (hs_rt_keep_flush).
- * Ownership: rt->minutes is owned by the runtime (hs_rt_keep_free). */
+ * Ownership: rt->minutes, rt->held_samples and rt->held_states are owned by
+ * the runtime (hs_rt_keep_free). */
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
+#include <string.h>
 
 #include "hs_log.h"
 #include "hs_runtime_private.h"
@@ -127,10 +133,62 @@ void hs_rt_keep_write(hs_runtime *rt, int64_t now_ms)
     write_queued(rt);
 }
 
+static void write_held_sample(hs_runtime *rt, const struct hs_rt_held_sample *h)
+{
+    if (hs_store_add_sample_rolled(rt->store, rt->site.signals[h->signal].name, h->t_ms,
+                                   h->value, (hs_quality)h->quality, h->reason, h->code,
+                                   h->flags) != 0)
+        hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
+}
+
+static void write_held_state(hs_runtime *rt, const struct hs_rt_held_state *h)
+{
+    if (hs_store_add_state_rolled(rt->store, rt->site.ponds[h->pond].name, h->t_ms, &h->state,
+                                  &h->extra, (hs_quality)h->quality, 1) != 0)
+        hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
+}
+
+void hs_rt_keep_commit(hs_runtime *rt)
+{
+    if (rt->store == NULL)
+        return;
+    for (size_t i = 0; i < rt->n_held_samples; i++)
+        write_held_sample(rt, &rt->held_samples[i]);
+    for (size_t i = 0; i < rt->n_held_states; i++)
+        write_held_state(rt, &rt->held_states[i]);
+    rt->n_held_samples = rt->n_held_states = 0;
+    rt->held_now = 0;
+}
+
+/* arr with room for one more of n rows of size bytes (grown, *cap updated),
+ * or NULL when memory fails (arr is kept; the caller writes the row at once). */
+static void *held_room(void *arr, size_t *cap, size_t n, size_t size)
+{
+    if (n < *cap)
+        return arr;
+    size_t grown = *cap ? *cap * 2 : 64;
+    void *p = realloc(arr, grown * size);
+    if (p != NULL)
+        *cap = grown;
+    return p;
+}
+
+/* Past HS_RT_HELD_MAX held rows (a noisy site with a long commit_interval),
+ * they are written and committed now rather than grow without bound. */
+static void held_bound(hs_runtime *rt)
+{
+    if (rt->n_held_samples + rt->n_held_states < HS_RT_HELD_MAX)
+        return;
+    hs_rt_keep_commit(rt);
+    if (hs_store_flush(rt->store) != 0)
+        hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
+}
+
 void hs_rt_keep_flush(hs_runtime *rt)
 {
     if (rt->store == NULL)
         return;
+    hs_rt_keep_commit(rt);
     close_minutes(rt, 0, 1);
     write_queued(rt);
 }
@@ -140,6 +198,12 @@ void hs_rt_keep_free(hs_runtime *rt)
     free(rt->minutes);
     rt->minutes = NULL;
     rt->n_minutes = rt->cap_minutes = 0;
+    free(rt->held_samples);
+    rt->held_samples = NULL;
+    rt->n_held_samples = rt->cap_held_samples = 0;
+    free(rt->held_states);
+    rt->held_states = NULL;
+    rt->n_held_states = rt->cap_held_states = 0;
 }
 
 static int exception(const hs_runtime *rt, size_t si, int64_t t_ms, double v, hs_quality q)
@@ -171,9 +235,22 @@ void hs_rt_keep_sample(hs_runtime *rt, size_t si, int64_t t_ms, double v, hs_qua
     int full = rt->site.site.full_rate_window_ms > 0;
     if (!keep && !full)
         return;
-    if (hs_store_add_sample_rolled(rt->store, rt->site.signals[si].name, t_ms, v, q, reason, code,
-                                   HS_SAMPLE_ROLLED | (keep ? 0 : HS_SAMPLE_THIN)) != 0)
-        hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
+    if (!k->have || (int)q != k->q)
+        rt->held_now = 1;
+    struct hs_rt_held_sample h = {.signal = si, .t_ms = t_ms, .value = v, .quality = (int)q,
+                                  .code = code,
+                                  .flags = HS_SAMPLE_ROLLED | (keep ? 0 : HS_SAMPLE_THIN)};
+    if (reason != NULL)
+        snprintf(h.reason, sizeof h.reason, "%s", reason);
+    struct hs_rt_held_sample *room =
+        held_room(rt->held_samples, &rt->cap_held_samples, rt->n_held_samples, sizeof h);
+    if (room != NULL) {
+        rt->held_samples = room;
+        rt->held_samples[rt->n_held_samples++] = h;
+    } else {
+        write_held_sample(rt, &h);
+    }
+    held_bound(rt);
     if (keep) {
         k->have = 1;
         k->v = v;
@@ -211,11 +288,19 @@ void hs_rt_keep_state(hs_runtime *rt, size_t pond, int64_t t_ms, const hc_brine_
                moved(extra->depth_m, k->depth_m, s->state_deadband_level_m);
     if (!keep)
         return;
-    if (hs_store_add_state_rolled(rt->store, rt->site.ponds[pond].name, t_ms, b, extra, q, 1) !=
-        0) {
-        hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
-        return;
+    if (!k->have || (int)q != k->quality || (int)b->stage != k->stage)
+        rt->held_now = 1;
+    struct hs_rt_held_state h = {.pond = pond, .t_ms = t_ms, .state = *b, .extra = *extra,
+                                 .quality = (int)q};
+    struct hs_rt_held_state *room =
+        held_room(rt->held_states, &rt->cap_held_states, rt->n_held_states, sizeof h);
+    if (room != NULL) {
+        rt->held_states = room;
+        rt->held_states[rt->n_held_states++] = h;
+    } else {
+        write_held_state(rt, &h);
     }
+    held_bound(rt);
     k->have = 1;
     k->t_ms = t_ms;
     k->sg = b->specific_gravity;

@@ -98,6 +98,25 @@ struct hs_rt_keep_state {
     struct hs_rt_acc acc[HS_STORE_STATE_FIELDS];
 };
 
+/* A raw sample or a pond state kept by exception, held in memory until the
+ * next commit (hs_rt_keep_commit): the daemon never keeps a write
+ * transaction open between commits, so the CLI and the page can write. */
+struct hs_rt_held_sample {
+    size_t signal;
+    int64_t t_ms;
+    double value;
+    int quality, code, flags;
+    char reason[HS_REASON_MAX];
+};
+struct hs_rt_held_state {
+    size_t pond;
+    int64_t t_ms;
+    hc_brine_state state;
+    hs_pond_extra extra;
+    int quality;
+};
+#define HS_RT_HELD_MAX 4096 /* held rows written and committed early past this */
+
 /* A closed minute waiting for the next rollup write: series is a signal
  * index, or n_signals + pond * HS_STORE_STATE_FIELDS + field. */
 struct hs_rt_minute {
@@ -151,6 +170,11 @@ struct hs_runtime {
     struct hs_rt_keep_state *keep_state; /* per pond */
     struct hs_rt_minute *minutes; /* closed minutes not written yet (owned) */
     size_t n_minutes, cap_minutes;
+    struct hs_rt_held_sample *held_samples; /* kept rows not written yet (owned) */
+    size_t n_held_samples, cap_held_samples;
+    struct hs_rt_held_state *held_states;
+    size_t n_held_states, cap_held_states;
+    int held_now;                 /* a held row an operator must see at once: commit now */
     int *bus_down;                /* per bus: every point of it failing */
     uint64_t (*units_down)[4];    /* per bus: unit ids down, as last logged */
     int *slow_logged;             /* per bus: "cannot keep the poll interval" said */
@@ -218,6 +242,9 @@ void hs_rt_keep_state(hs_runtime *rt, size_t pond, int64_t t_ms, const hc_brine_
                       const hs_pond_extra *extra, hs_quality q);
 void hs_rt_keep_write(hs_runtime *rt, int64_t now_ms);
 void hs_rt_keep_flush(hs_runtime *rt);
+/* Writes the held raw samples and state rows into the store's batch (the
+ * caller commits it). */
+void hs_rt_keep_commit(hs_runtime *rt);
 void hs_rt_keep_free(hs_runtime *rt);
 
 /* hs_runtime_transfer.c */

@@ -13,6 +13,8 @@
 # put in for every series, so that each series' rollups fill pages of their
 # own as on a site that has run for a while (a fresh file packs every series
 # into a few shared pages and writes far less per pass than a real one).
+# (values with fractions: SQLite stores a whole-number REAL as an integer,
+# which would make the rows look smaller than they are.)
 # BENCH_STORAGE_MQTT=off runs without MQTT: the difference is the outbox's
 # share of the writes.
 . "$(dirname "$0")/../integration/lib.sh"
@@ -51,7 +53,7 @@ if [ "$age_days" -gt 0 ]; then
     q "WITH RECURSIVE m(t) AS (SELECT ($now_ms - $age_days * 86400000) / 60000 * 60000
                                UNION ALL SELECT t + 60000 FROM m WHERE t + 60000 < $now_ms - 120000)
        INSERT INTO rollup(series_id, step_s, t_ms, n, vmin, vsum, vmax, worst)
-       SELECT s.id, 60, m.t, 6, 1000 + s.id, 6 * (1000.5 + s.id), 1001 + s.id, 0
+       SELECT s.id, 60, m.t, 6, 1000.1 + s.id / 7.0, 6 * (1000.3 + s.id / 7.0), 1000.7 + s.id / 7.0, 0
        FROM series s CROSS JOIN m ORDER BY m.t, s.id"
     q "INSERT INTO rollup(series_id, step_s, t_ms, n, vmin, vsum, vmax, worst)
        SELECT series_id, 3600, t_ms / 3600000 * 3600000, sum(n), min(vmin), sum(vsum), max(vmax), 0
