@@ -417,9 +417,12 @@ int hs_store_command_take(hs_store *st, hs_command_fn fn, void *ctx)
         free(reply);
         free(requests[i]);
     }
-    /* Replies are committed at once; with none, the open batch of samples
-     * and states waits for its commit_interval (flash wear). */
-    if (ok == 0 && n > 0)
+    /* Every second: replies at once, and whatever batch is open (outbox
+     * rows and their acknowledgements) is not held longer, so another
+     * writer (halostage ack, the page) never waits for it. The daemon's
+     * samples and states do not wait in an open batch: it holds them in
+     * memory until their commit (hs_runtime_keep.c). */
+    if (ok == 0)
         ok = hs_store_flush(st);
 done:
     sqlite3_finalize(sel);
