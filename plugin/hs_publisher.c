@@ -1,8 +1,21 @@
 /* The outbox pump (see hs_publish.h). Rows leave the outbox in id order and
- * are deleted only when the broker acknowledged them. After a reconnect or
- * a failed publish, every row still in the outbox is sent again from the
- * oldest: delivery is at least once, and a subscriber sees each event's
- * first copy in order (alarms carry event_id to drop repeats). */
+ * are deleted only when the broker acknowledged them in the connection they
+ * were sent in. After a reconnect or a failed publish, every row still in
+ * the outbox is sent again from the oldest: delivery is at least once, and
+ * a subscriber sees the first copy of each message in id order (alarms
+ * carry event_id to drop repeats).
+ *
+ * Why first copies stay in order: within one connection the broker takes
+ * the rows in the order they were sent; the link never carries a publish
+ * from one connection into the next (hp_mqtt.h, sessions); and an answer
+ * about a publish of an earlier session (acknowledged or failed) is not
+ * taken for one of the current session, where the same row may be in
+ * flight again.
+ *
+ * Disk: an acknowledgement deletes its row inside the store's open batch
+ * and does not commit it; the next commit (the runtime's commit_interval,
+ * or an urgent row) carries it. A crash before that commit only sends the
+ * row again: a duplicate, which at-least-once delivery allows. */
 #include <stdlib.h>
 #include <string.h>
 #include <time.h>
@@ -24,6 +37,7 @@ struct hs_publisher {
     int64_t inflight[WINDOW_MAX]; /* row ids sent and not yet acknowledged */
     int ninflight;
     int64_t last_sent;            /* highest row id sent since the rewind */
+    int64_t session;              /* the link's session while connected (hp_mqtt.h) */
     int64_t *done;                /* acknowledged ids waiting for deletion */
     size_t ndone, capdone;
     int connected;
@@ -162,6 +176,7 @@ static void on_event(void *ctx, const hp_mqtt_event *ev)
     case HP_MQTT_CONNECTED:
         log_link(p, 1, NULL);
         p->connected = 1;
+        p->session = ev->session;
         p->stats.connects++;
         forget_inflight(p);
         publish_gateway(p, 1, 0); /* tag 0: not an outbox row */
@@ -172,6 +187,13 @@ static void on_event(void *ctx, const hp_mqtt_event *ev)
         forget_inflight(p);
         break;
     case HP_MQTT_DELIVERED:
+        if (ev->session != p->session) {
+            /* of a connection that is over: the row is sent again (or was
+             * already) in this one and answered there */
+            if (ev->tag > 0)
+                p->stats.stale++;
+            break;
+        }
         if (ev->tag == GOODBYE_TAG)
             p->goodbye_acked = 1;
         if (ev->tag > 0) {
@@ -181,11 +203,15 @@ static void on_event(void *ctx, const hp_mqtt_event *ev)
         }
         break;
     case HP_MQTT_FAILED:
-        if (ev->tag > 0) {
-            p->stats.failed++;
-            if (remove_inflight(p, ev->tag))
-                p->rewind = 1;
+        if (ev->tag <= 0)
+            break;
+        if (ev->session != p->session) {
+            p->stats.stale++; /* the reconnect already sends it again */
+            break;
         }
+        p->stats.failed++;
+        if (remove_inflight(p, ev->tag))
+            p->rewind = 1;
         break;
     case HP_MQTT_MESSAGE:
         if (p->inbound)

@@ -246,7 +246,9 @@ int hs_store_outbox_put(hs_store *st, hs_msg_kind kind, const char *topic, const
  * number of rows given, or -1. */
 typedef int (*hs_outbox_fn)(void *ctx, const hs_outbox_msg *msg); /* nonzero stops */
 int hs_store_outbox_peek(hs_store *st, int64_t after_id, int max, hs_outbox_fn fn, void *ctx);
-/* Deletes rows the broker acknowledged. 0 / -1. */
+/* Deletes rows the broker acknowledged, in the open batch: the next commit
+ * (hs_store_flush, hs_store_commit_due or a full batch) carries the deletes,
+ * none is made for them alone. 0 / -1. */
 int hs_store_outbox_done(hs_store *st, const int64_t *ids, size_t n);
 /* Changes the outbox bound (rows) of an open store; at least 1. */
 void hs_store_set_outbox_max(hs_store *st, int64_t rows);

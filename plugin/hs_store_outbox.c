@@ -1,6 +1,9 @@
 /* History store: the MQTT outbox. Rows leave in id order and only when the
  * broker acknowledged them (the publisher calls hs_store_outbox_done). The
- * bound and its policy are described in hs_store.h. */
+ * bound and its policy are described in hs_store.h. An acknowledgement is
+ * not urgent: its delete waits in the open batch for the next commit (a
+ * crash before it sends the row once more, which QoS 1 allows), so the
+ * daemon does not commit once per published message. */
 #include <stdlib.h>
 #include <string.h>
 #include <time.h>
@@ -136,11 +139,9 @@ int hs_store_outbox_peek(hs_store *st, int64_t after_id, int max, hs_outbox_fn f
 
 int hs_store_outbox_done(hs_store *st, const int64_t *ids, size_t n)
 {
-    if (n == 0)
-        return 0;
-    if (hs_store_batch_begin(st) != 0)
-        return -1;
     for (size_t i = 0; i < n; i++) {
+        if (hs_store_batch_begin(st) != 0) /* again after a full batch committed */
+            return -1;
         sqlite3_stmt *s = hs_store_stmt(st, SQL_OUTBOX_DEL);
         if (s == NULL)
             return -1;
@@ -151,6 +152,8 @@ int hs_store_outbox_done(hs_store *st, const int64_t *ids, size_t n)
             return hs_store_fail_db(st, "removing a sent message");
         if (sqlite3_changes(st->db) > 0 && st->outbox_rows > 0)
             st->outbox_rows--;
+        if (hs_store_wrote(st) != 0) /* a full batch commits; otherwise the next commit */
+            return -1;
     }
-    return hs_store_flush(st);
+    return 0;
 }

@@ -1,6 +1,15 @@
 /* MQTT link on paho-mqtt-c async (see hp_mqtt.h). Ownership: hp_mqtt owns
  * the MQTTAsync handle, copies of every option string, and the event queue;
- * each publish allocates a small context that its callback frees. */
+ * each publish allocates a small context that its callback frees.
+ *
+ * One paho handle serves one connection. paho keeps a publish that it
+ * accepted but had not yet written when the connection dropped in its
+ * command queue, and writes it at the head of the next connection, ahead of
+ * whatever the owner sends again from its own queue: a subscriber then sees
+ * a later message before an earlier one. So after a connection ends, the
+ * handle is destroyed (paho fails what it still held, each publish
+ * reported FAILED with its old session) and a new one makes the next
+ * attempt. */
 #include <errno.h>
 #include <pthread.h>
 #include <stdarg.h>
@@ -18,13 +27,26 @@
 struct event_node {
     struct event_node *next;
     hp_mqtt_event ev;
+    int64_t handle_no;    /* the paho handle it came from */
     char *topic;
     void *payload;
     char *reason;
 };
 
+/* The context of one paho handle's callbacks: which handle spoke. */
+struct link_handle {
+    struct hp_mqtt *m;
+    int64_t no;
+};
+
 struct hp_mqtt {
     MQTTAsync client;
+    struct link_handle *handle; /* client's callback context; freed after client */
+    int64_t handle_no;    /* number of the current handle (under lock) */
+    char paho_uri[512];   /* the uri in paho's spelling (tcp://, ssl://) */
+    int client_used;      /* client has been connected: replace it before the next attempt */
+    int64_t session;      /* connections handed to the owner so far (owner's thread) */
+    int owner_connected;  /* the owner was handed CONNECTED and no DISCONNECTED since */
     hp_mqtt_options opt;  /* strings point into the copies below */
     char *copies[12];
     void *will_copy;      /* will_len bytes */
@@ -56,6 +78,7 @@ static int64_t mono_ms(void)
 struct pub_ctx {
     hp_mqtt *m;
     int64_t tag;
+    int64_t session; /* the connection it was handed to */
 };
 
 static char *keep(hp_mqtt *m, int slot, const char *s)
@@ -66,9 +89,11 @@ static char *keep(hp_mqtt *m, int slot, const char *s)
     return m->copies[slot];
 }
 
-/* Appends an event (called from paho's threads and the owner's). */
-static void push(hp_mqtt *m, hp_mqtt_event_type type, int64_t tag, const char *topic,
-                 const void *payload, size_t len, int oversize, int retained, const char *reason)
+/* Appends an event (called from paho's threads and the owner's); handle_no:
+ * the handle it concerns, -1 for the current one. */
+static void push_session(hp_mqtt *m, int64_t handle_no, hp_mqtt_event_type type, int64_t tag,
+                         int64_t session, const char *topic, const void *payload, size_t len,
+                         int oversize, int retained, const char *reason)
 {
     struct event_node *n = calloc(1, sizeof *n);
     if (n == NULL)
@@ -76,6 +101,7 @@ static void push(hp_mqtt *m, hp_mqtt_event_type type, int64_t tag, const char *t
     n->ev.retained = retained;
     n->ev.type = type;
     n->ev.tag = tag;
+    n->ev.session = session;
     n->ev.payload_len = len;
     n->ev.oversize = oversize;
     if (topic)
@@ -90,7 +116,10 @@ static void push(hp_mqtt *m, hp_mqtt_event_type type, int64_t tag, const char *t
     if (reason)
         n->reason = strdup(reason);
     pthread_mutex_lock(&m->lock);
-    if (type == HP_MQTT_CONNECTED)
+    n->handle_no = handle_no < 0 ? m->handle_no : handle_no;
+    if (n->handle_no != m->handle_no)
+        ; /* a replaced handle says nothing about the link */
+    else if (type == HP_MQTT_CONNECTED)
         m->connected = 1;
     else if (type == HP_MQTT_DISCONNECTED)
         m->connected = 0;
@@ -113,9 +142,24 @@ static void push(hp_mqtt *m, hp_mqtt_event_type type, int64_t tag, const char *t
     pthread_mutex_unlock(&m->lock);
 }
 
+/* An event of the current handle. */
+static void push(hp_mqtt *m, hp_mqtt_event_type type, int64_t tag, const char *topic,
+                 const void *payload, size_t len, int oversize, int retained, const char *reason)
+{
+    push_session(m, -1, type, tag, 0, topic, payload, len, oversize, retained, reason);
+}
+
+/* An event from a paho callback of handle h. */
+static void push_from(struct link_handle *h, hp_mqtt_event_type type, const char *topic,
+                      const void *payload, size_t len, int oversize, int retained,
+                      const char *reason)
+{
+    push_session(h->m, h->no, type, 0, 0, topic, payload, len, oversize, retained, reason);
+}
+
 static void on_connection_lost(void *ctx, char *cause)
 {
-    push(ctx, HP_MQTT_DISCONNECTED, 0, NULL, NULL, 0, 0, 0, cause ? cause : "connection lost");
+    push_from(ctx, HP_MQTT_DISCONNECTED, NULL, NULL, 0, 0, 0, cause ? cause : "connection lost");
 }
 
 /* MQTT 5: the broker said goodbye (a DISCONNECT packet, e.g. when it shuts
@@ -126,12 +170,13 @@ static void on_disconnected(void *ctx, MQTTProperties *props, enum MQTTReasonCod
     char why[96];
     snprintf(why, sizeof why, "the broker disconnected us (reason %d: %s)", (int)rc,
              MQTTReasonCode_toString(rc));
-    push(ctx, HP_MQTT_DISCONNECTED, 0, NULL, NULL, 0, 0, 0, why);
+    push_from(ctx, HP_MQTT_DISCONNECTED, NULL, NULL, 0, 0, 0, why);
 }
 
 static int on_message(void *ctx, char *topic, int topic_len, MQTTAsync_message *msg)
 {
-    hp_mqtt *m = ctx;
+    struct link_handle *h = ctx;
+    hp_mqtt *m = h->m;
     char name[512];
     size_t tl = topic_len > 0 ? (size_t)topic_len : strlen(topic);
     if (tl >= sizeof name)
@@ -141,8 +186,8 @@ static int on_message(void *ctx, char *topic, int topic_len, MQTTAsync_message *
     size_t len = msg->payloadlen > 0 ? (size_t)msg->payloadlen : 0;
     int oversize = len > m->opt.max_inbound;
     int retained = msg->retained != 0;
-    push(m, HP_MQTT_MESSAGE, 0, name, oversize ? NULL : (msg->payload ? msg->payload : ""), len,
-         oversize, retained, NULL);
+    push_from(h, HP_MQTT_MESSAGE, name, oversize ? NULL : (msg->payload ? msg->payload : ""), len,
+              oversize, retained, NULL);
     MQTTAsync_freeMessage(&msg);
     MQTTAsync_free(topic);
     return 1;
@@ -150,9 +195,8 @@ static int on_message(void *ctx, char *topic, int topic_len, MQTTAsync_message *
 
 static void on_connected(void *ctx, char *cause)
 {
-    hp_mqtt *m = ctx;
     (void)cause;
-    push(m, HP_MQTT_CONNECTED, 0, NULL, NULL, 0, 0, 0, NULL);
+    push_from(ctx, HP_MQTT_CONNECTED, NULL, NULL, 0, 0, 0, NULL);
 }
 
 static void on_connect_failure(void *ctx, MQTTAsync_failureData5 *resp)
@@ -161,14 +205,14 @@ static void on_connect_failure(void *ctx, MQTTAsync_failureData5 *resp)
     snprintf(why, sizeof why, "connect failed (code %d, reason %d)%s%s", resp ? resp->code : 0,
              resp ? (int)resp->reasonCode : 0, resp && resp->message ? ": " : "",
              resp && resp->message ? resp->message : "");
-    push(ctx, HP_MQTT_DISCONNECTED, 0, NULL, NULL, 0, 0, 0, why);
+    push_from(ctx, HP_MQTT_DISCONNECTED, NULL, NULL, 0, 0, 0, why);
 }
 
 static void on_publish_ok(void *ctx, MQTTAsync_successData5 *resp)
 {
     struct pub_ctx *p = ctx;
     (void)resp;
-    push(p->m, HP_MQTT_DELIVERED, p->tag, NULL, NULL, 0, 0, 0, NULL);
+    push_session(p->m, -1, HP_MQTT_DELIVERED, p->tag, p->session, NULL, NULL, 0, 0, 0, NULL);
     free(p);
 }
 
@@ -178,7 +222,7 @@ static void on_publish_fail(void *ctx, MQTTAsync_failureData5 *resp)
     char why[64];
     snprintf(why, sizeof why, "publish failed (code %d, reason %d)", resp ? resp->code : 0,
              resp ? (int)resp->reasonCode : 0);
-    push(p->m, HP_MQTT_FAILED, p->tag, NULL, NULL, 0, 0, 0, why);
+    push_session(p->m, -1, HP_MQTT_FAILED, p->tag, p->session, NULL, NULL, 0, 0, 0, why);
     free(p);
 }
 
@@ -192,6 +236,51 @@ static int fail(char *err, size_t errlen, const char *fmt, ...)
         vsnprintf(err, errlen, fmt, ap);
     va_end(ap);
     return -1;
+}
+
+/* A fresh paho handle for m (m->client), with our callbacks. */
+static int create_client(hp_mqtt *m, char *err, size_t errlen)
+{
+    struct link_handle *h = malloc(sizeof *h);
+    if (h == NULL)
+        return fail(err, errlen, "mqtt: out of memory");
+    pthread_mutex_lock(&m->lock);
+    h->m = m;
+    h->no = ++m->handle_no;
+    pthread_mutex_unlock(&m->lock);
+    MQTTAsync_createOptions co = MQTTAsync_createOptions_initializer5;
+    co.sendWhileDisconnected = 0; /* our outbox holds messages, not paho */
+    co.maxBufferedMessages = m->opt.max_inflight + 16;
+    int rc = MQTTAsync_createWithOptions(&m->client, m->paho_uri, m->opt.client_id,
+                                         MQTTCLIENT_PERSISTENCE_NONE, NULL, &co);
+    if (rc != MQTTASYNC_SUCCESS) {
+        m->client = NULL;
+        free(h);
+        return fail(err, errlen, "mqtt: cannot create a client for %s (code %d)", m->opt.uri,
+                    rc);
+    }
+    m->handle = h;
+    m->client_used = 0;
+    MQTTAsync_setCallbacks(m->client, h, on_connection_lost, on_message, NULL);
+    MQTTAsync_setConnected(m->client, h, on_connected);
+    MQTTAsync_setDisconnected(m->client, h, on_disconnected);
+    return 0;
+}
+
+/* After a connection ended: a new handle, so that nothing the old one still
+ * held is written into the next connection (see the top of this file).
+ * Destroying it fails every publish it held (FAILED events, old session). */
+static int replace_client(hp_mqtt *m, char *err, size_t errlen)
+{
+    if (m->client != NULL)
+        MQTTAsync_destroy(&m->client); /* no callback of it runs after this */
+    m->client = NULL;
+    free(m->handle);
+    m->handle = NULL;
+    pthread_mutex_lock(&m->lock);
+    m->connected = 0;
+    pthread_mutex_unlock(&m->lock);
+    return create_client(m, err, errlen);
 }
 
 hp_mqtt *hp_mqtt_new(const hp_mqtt_options *o, char *err, size_t errlen)
@@ -267,22 +356,12 @@ hp_mqtt *hp_mqtt_new(const hp_mqtt_options *o, char *err, size_t errlen)
     if (m->opt.max_inbound == 0)
         m->opt.max_inbound = 4096;
     /* paho wants tcp:// and ssl:// spellings. */
-    char uri[512];
-    snprintf(uri, sizeof uri, "%s://%s", tls ? "ssl" : "tcp", strstr(o->uri, "://") + 3);
-    MQTTAsync_createOptions co = MQTTAsync_createOptions_initializer5;
-    co.sendWhileDisconnected = 0; /* our outbox holds messages, not paho */
-    co.maxBufferedMessages = m->opt.max_inflight + 16;
-    int rc = MQTTAsync_createWithOptions(&m->client, uri, m->opt.client_id,
-                                         MQTTCLIENT_PERSISTENCE_NONE, NULL, &co);
-    if (rc != MQTTASYNC_SUCCESS) {
-        fail(err, errlen, "mqtt: cannot create a client for %s (code %d)", o->uri, rc);
-        m->client = NULL;
+    snprintf(m->paho_uri, sizeof m->paho_uri, "%s://%s", tls ? "ssl" : "tcp",
+             strstr(o->uri, "://") + 3);
+    if (create_client(m, err, errlen) != 0) {
         hp_mqtt_free(m, 0);
         return NULL;
     }
-    MQTTAsync_setCallbacks(m->client, m, on_connection_lost, on_message, NULL);
-    MQTTAsync_setConnected(m->client, m, on_connected);
-    MQTTAsync_setDisconnected(m->client, m, on_disconnected);
     return m;
 }
 
@@ -322,7 +401,7 @@ static int connect_once(hp_mqtt *m, char *err, size_t errlen)
     co.username = m->opt.username;
     co.password = m->opt.password;
     co.onFailure5 = on_connect_failure;
-    co.context = m;
+    co.context = m->handle;
     if (m->opt.will_topic) {
         will.topicName = m->opt.will_topic;
         will.message = m->opt.will_payload ? m->opt.will_payload : "";
@@ -367,6 +446,11 @@ static void reconnect_if_due(hp_mqtt *m)
         return;
     m->next_attempt_ms = 0;
     char why[160];
+    if ((m->client_used || m->client == NULL) && replace_client(m, why, sizeof why) != 0) {
+        m->next_attempt_ms = mono_ms() + m->retry_ms;
+        push(m, HP_MQTT_DISCONNECTED, 0, NULL, NULL, 0, 0, 0, why);
+        return;
+    }
     if (connect_once(m, why, sizeof why) != 0) { /* refused at once: try again later */
         m->next_attempt_ms = mono_ms() + m->retry_ms;
         push(m, HP_MQTT_DISCONNECTED, 0, NULL, NULL, 0, 0, 0, why);
@@ -379,8 +463,14 @@ static void track(hp_mqtt *m, const hp_mqtt_event *ev)
     if (ev->type == HP_MQTT_CONNECTED) {
         m->retry_ms = retry_min_ms(m);
         m->next_attempt_ms = 0;
-    } else if (ev->type == HP_MQTT_DISCONNECTED && m->started && !m->opt.no_reconnect &&
-               m->next_attempt_ms == 0) {
+        m->client_used = 1;
+        m->session++;
+        m->owner_connected = 1;
+    } else if (ev->type == HP_MQTT_DISCONNECTED) {
+        m->owner_connected = 0;
+    }
+    if (ev->type == HP_MQTT_DISCONNECTED && m->started && !m->opt.no_reconnect &&
+        m->next_attempt_ms == 0) {
         m->next_attempt_ms = mono_ms() + m->retry_ms;
         int64_t max = retry_max_ms(m);
         m->retry_ms = m->retry_ms * 2 > max ? max : m->retry_ms * 2;
@@ -398,7 +488,9 @@ int hp_mqtt_connected(hp_mqtt *m)
     pthread_mutex_lock(&m->lock);
     int c = m->connected;
     pthread_mutex_unlock(&m->lock);
-    return c && MQTTAsync_isConnected(m->client);
+    /* owner_connected: a publish goes out only in a connection the owner
+     * has been told about, so its session is the one the owner knows */
+    return c && m->owner_connected && m->client != NULL && MQTTAsync_isConnected(m->client);
 }
 
 int hp_mqtt_publish(hp_mqtt *m, const char *topic, const void *payload, size_t len, int qos,
@@ -415,6 +507,7 @@ int hp_mqtt_publish(hp_mqtt *m, const char *topic, const void *payload, size_t l
     }
     p->m = m;
     p->tag = tag;
+    p->session = m->session;
     MQTTAsync_message msg = MQTTAsync_message_initializer;
     msg.payload = (void *)(uintptr_t)payload; /* paho copies it; its API is not const */
     msg.payloadlen = (int)len;
@@ -465,8 +558,19 @@ int hp_mqtt_poll(hp_mqtt *m, int timeout_ms, void (*fn)(void *ctx, const hp_mqtt
         list->ev.topic = list->topic;
         list->ev.payload = list->payload;
         list->ev.reason = list->reason;
+        int link_event =
+            list->ev.type == HP_MQTT_CONNECTED || list->ev.type == HP_MQTT_DISCONNECTED;
+        if (link_event && list->handle_no != m->handle_no) {
+            /* the late word of a replaced handle: its connection is over */
+            free(list->reason);
+            free(list);
+            list = next;
+            continue;
+        }
         track(m, &list->ev);
-        if (list->ev.type == HP_MQTT_CONNECTED && m->opt.subscribe) {
+        if (link_event)
+            list->ev.session = m->session;
+        if (list->ev.type == HP_MQTT_CONNECTED && m->opt.subscribe && m->client != NULL) {
             /* Renewed at every connect (clean sessions), from the owner's
              * thread rather than paho's callback. */
             MQTTAsync_responseOptions so = MQTTAsync_responseOptions_initializer;
@@ -475,7 +579,7 @@ int hp_mqtt_poll(hp_mqtt *m, int timeout_ms, void (*fn)(void *ctx, const hp_mqtt
             so.subscribeOptions.retainAsPublished = 1;
             MQTTAsync_subscribe(m->client, m->opt.subscribe, 1, &so);
         }
-        for (int i = 0; list->ev.type == HP_MQTT_CONNECTED && i < 2; i++)
+        for (int i = 0; list->ev.type == HP_MQTT_CONNECTED && m->client != NULL && i < 2; i++)
             if (m->opt.subscribe_extra[i])
                 MQTTAsync_subscribe(m->client, m->opt.subscribe_extra[i], 1, NULL);
         if (fn)
@@ -520,6 +624,7 @@ void hp_mqtt_free(hp_mqtt *m, int timeout_ms)
         }
         MQTTAsync_destroy(&m->client);
     }
+    free(m->handle);
     hp_mqtt_poll(m, 0, NULL, NULL); /* frees what the callbacks queued */
     if (m->copies[3]) /* the password */
         explicit_bzero(m->copies[3], strlen(m->copies[3]));

@@ -53,6 +53,11 @@ typedef struct {
 /* The Maximum Packet Size sent in CONNECT [bytes]. */
 size_t hp_mqtt_packet_limit(const hp_mqtt_options *opt);
 
+/* Sessions: every connection handed to the owner (CONNECTED) gets the next
+ * session number, and each publish is counted in the session in which it
+ * was made. A connection's paho handle is replaced before the next attempt,
+ * so nothing accepted in one connection is written into the next: a publish
+ * either completes in its own connection or comes back FAILED. */
 typedef enum {
     HP_MQTT_CONNECTED,      /* (re)connected; subscriptions are renewed */
     HP_MQTT_DISCONNECTED,   /* lost or failed to connect; reason says why */
@@ -64,6 +69,8 @@ typedef enum {
 typedef struct {
     hp_mqtt_event_type type;
     int64_t tag;            /* DELIVERED / FAILED: the caller's tag */
+    int64_t session;        /* DELIVERED / FAILED: the session the publish was made in;
+                               CONNECTED: the new session; DISCONNECTED: the current one */
     const char *topic;      /* MESSAGE */
     const void *payload;    /* MESSAGE; NULL when oversize */
     size_t payload_len;     /* MESSAGE: the real length, even when oversize */
@@ -82,7 +89,8 @@ int hp_mqtt_start(hp_mqtt *m, char *err, size_t errlen);
  * last will fires) and frees. NULL is allowed. Never from a callback. */
 void hp_mqtt_free(hp_mqtt *m, int timeout_ms);
 
-/* 1 when connected. */
+/* 1 when connected and the owner has been handed the CONNECTED event (so a
+ * publish now belongs to the session the owner knows). */
 int hp_mqtt_connected(hp_mqtt *m);
 /* Starts one publish. tag comes back in DELIVERED/FAILED. Returns -1 when
  * not connected or the library refuses (the message was not taken). */

@@ -1,6 +1,6 @@
 /* Test helper for the MQTT and store integration scripts. Two modes:
  *
- *   hs_outbox_agent --db FILE --uri URI [--alarms N] [--pace-ms MS]
+ *   hs_outbox_agent --db FILE --uri URI [--alarms N] [--pace-ms MS] [--link-inflight N]
  *       [--ca FILE] [--cert FILE --key FILE] [--user NAME --password-file FILE]
  *       [--prefix P] [--site S] [--commands] [--timeout-s S] [--keep-running]
  *     Raises and clears one alarm N times through the real alarm engine (each
@@ -8,6 +8,10 @@
  *     with --commands, answers inbound commands and those that
  *     `halostage ack` queued in the store. Prints "connected",
  *     "generated N" and finally "drained" when every row was acknowledged.
+ *     --link-inflight sets the link's max_inflight (publishes written and
+ *     not yet acknowledged); the publisher's window stays 32, so the rest
+ *     waits in the client library's queue. At the end it prints the
+ *     publisher's counters ("stats sent N delivered N ...").
  *     Exits 0 when drained, 1 on timeout, 78 on a refused option.
  *
  *   hs_outbox_agent --db FILE --write-samples
@@ -87,6 +91,7 @@ int main(int argc, char **argv)
         else if (strcmp(a, "--alarms") == 0) alarms = strtol(v, NULL, 10);
         else if (strcmp(a, "--pace-ms") == 0) pace_ms = strtol(v, NULL, 10);
         else if (strcmp(a, "--timeout-s") == 0) timeout_s = strtol(v, NULL, 10);
+        else if (strcmp(a, "--link-inflight") == 0) mo.max_inflight = (int)strtol(v, NULL, 10);
         else {
             fprintf(stderr, "hs_outbox_agent: unknown option %s\n", a);
             return 2;
@@ -205,6 +210,11 @@ int main(int argc, char **argv)
     }
     if (stop)
         rc = 0;
+    hs_publisher_stats fin;
+    hs_publisher_stats_get(pub, &fin);
+    printf("stats sent %lld delivered %lld failed %lld stale %lld in_flight %lld connects %lld\n",
+           (long long)fin.sent, (long long)fin.delivered, (long long)fin.failed,
+           (long long)fin.stale, (long long)fin.in_flight, (long long)fin.connects);
     hs_publisher_goodbye(pub, 2000);
     hs_publisher_free(pub);
     hp_mqtt_free(link, 1000);
