@@ -25,10 +25,12 @@ static const hs_key site_keys[] = {
     KEY_DUR("raw_retention", S, raw_retention_ms, 86400 * SEC_MS, 3650.0 * 86400 * SEC_MS, "30d",
             HS_KEY_RELOADABLE, "raw samples and pond states older than this are deleted"),
     KEY_DUR("minute_retention", S, minute_retention_ms, 86400 * SEC_MS, 3650.0 * 86400 * SEC_MS,
-            "400d", HS_KEY_RELOADABLE, "1-minute rollups older than this are deleted"),
+            "35d", HS_KEY_RELOADABLE, "1-minute rollups older than this are deleted (35 days: "
+            "a month of fine trends; the hourly ones keep the years, and the whole history "
+            "of the demo site stays under 1 GB)"),
     KEY_DUR("hour_retention", S, hour_retention_ms, 86400 * SEC_MS, 36500.0 * 86400 * SEC_MS,
             "3650d", HS_KEY_RELOADABLE, "1-hour rollups older than this are deleted"),
-    KEY_DUR("commit_interval", S, commit_interval_ms, 1 * SEC_MS, 3600 * SEC_MS, "5min",
+    KEY_DUR("commit_interval", S, commit_interval_ms, 1 * SEC_MS, 3600 * SEC_MS, "1min",
             HS_KEY_RELOADABLE, "samples and pond states are written to disk in one batch this "
             "often (alarms, commands and messages at once); a power cut loses at most this"),
     KEY_DBL("store_deadband", S, store_deadband_pct, NULL, 0, 100, "0.5", HS_KEY_RELOADABLE,
@@ -39,6 +41,15 @@ static const hs_key site_keys[] = {
     KEY_DUR("full_rate_window", S, full_rate_window_ms, 0, 30 * 86400 * SEC_MS, "0s",
             HS_KEY_RELOADABLE, "every raw sample is kept this long, then only the kept ones "
             "(0: off)"),
+    KEY_DBL("state_deadband_sg", S, state_deadband_sg, NULL, 0, 0.1, "0.0005", HS_KEY_RELOADABLE,
+            "a pond state row is kept when its specific gravity (at the reference temperature) "
+            "moved more than this since the last kept row (every state still counts in the "
+            "rollups)"),
+    KEY_DBL("state_deadband_level", S, state_deadband_level_m, &hs_unit_length, 0, 1, "5 mm",
+            HS_KEY_RELOADABLE, "... or its level moved more than this"),
+    KEY_DUR("state_max_interval", S, state_max_interval_ms, 1 * SEC_MS, 86400 * SEC_MS, "3min",
+            HS_KEY_RELOADABLE, "... or its stage or quality changed, or this long passed since "
+            "the last kept row"),
     {NULL},
 };
 

@@ -19,6 +19,15 @@
 #define COMMANDS_EVERY_MS 1000 /* operator commands queued by the CLI */
 #define FLUSH_WAIT_MS 5000     /* at close: how long to wait for the broker */
 
+/* Rollups are written, folded and thinned together, every commit_interval
+ * but at most every HS_RT_MAINTAIN_MS: each pass touches every series' last
+ * page once, so the pass rate sets most of what the history writes. */
+static int64_t maintain_every(const hs_runtime *rt)
+{
+    int64_t every = rt->site.site.commit_interval_ms;
+    return every > HS_RT_MAINTAIN_MS ? every : HS_RT_MAINTAIN_MS;
+}
+
 static void add_rule(hs_runtime *rt, const char *pond, hs_rule_kind kind, const char *name,
                      double low, double high)
 {
@@ -79,9 +88,11 @@ static void site_parts_free(hs_runtime *rt)
     hs_brine_models_free(rt->models);
     rt->models = NULL;
     if (rt->keep != NULL)
-        hs_rt_keep_flush(rt); /* the open minutes of the signals going away */
+        hs_rt_keep_flush(rt); /* the open minutes of the series going away */
     free(rt->keep);
     rt->keep = NULL;
+    free(rt->keep_state);
+    rt->keep_state = NULL;
     free(rt->readings);
     free(rt->ponds);
     free(rt->transfers);
@@ -99,7 +110,8 @@ static int site_parts_open(hs_runtime *rt, hs_brine_models *models)
         rt->gravity_m_s2 = HC_STANDARD_GRAVITY;
     rt->readings = calloc(site->n_signals ? site->n_signals : 1, sizeof *rt->readings);
     rt->keep = calloc(site->n_signals ? site->n_signals : 1, sizeof *rt->keep);
-    if (rt->keep == NULL)
+    rt->keep_state = calloc(site->n_ponds ? site->n_ponds : 1, sizeof *rt->keep_state);
+    if (rt->keep == NULL || rt->keep_state == NULL)
         return -1;
     if (rt->store != NULL)
         hs_store_set_full_rate_window(rt->store, site->site.full_rate_window_ms);
@@ -167,6 +179,7 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
     opt.raw_retention_ms = rt->site.site.raw_retention_ms;
     opt.minute_retention_ms = rt->site.site.minute_retention_ms;
     opt.hour_retention_ms = rt->site.site.hour_retention_ms;
+    opt.retention_every_ms = HS_RT_RETENTION_EVERY_MS;
     rt->store = hs_store_open(rt->site.site.database, HS_STORE_WRITE, &opt, err, sizeof err);
     if (rt->store == NULL) {
         hs_log(HSP_LOG_ERR, "%s", err);
@@ -195,7 +208,7 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
         hs_log(HSP_LOG_WARNING, "store: %s", hs_store_error(rt->store));
     int64_t mono = hs_rt_mono_ms();
     rt->next_eval_ms = mono;
-    rt->next_maintain_ms = mono + HS_RT_MAINTAIN_MS;
+    rt->next_maintain_ms = mono + maintain_every(rt);
     rt->next_command_ms = mono;
     rt->next_commit_ms = mono + rt->site.site.commit_interval_ms;
     rt->next_schedule_ms = mono;
@@ -290,9 +303,10 @@ static void note_uncertain_alarms(hs_runtime *rt, size_t i, int64_t mono_ms)
 }
 
 /* A pond is evaluated every cycle (its alarms watch the age of its
- * inputs), but its state is fed to the hydrology, stored and published
- * only when a new input arrived or an input's quality changed; an
- * unchanged retained state goes out again every state_heartbeat_ms. */
+ * inputs), but its state is fed to the hydrology, counted in the rollups
+ * and published only when a new input arrived or an input's quality
+ * changed (stored as a row by exception: hs_runtime_keep.c); an unchanged
+ * retained state goes out again every state_heartbeat_ms. */
 static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms, int64_t mono_ms)
 {
     struct hs_rt_pond *p = &rt->ponds[i];
@@ -314,12 +328,9 @@ static void evaluate_pond(hs_runtime *rt, size_t i, int64_t now_ms, int64_t mono
         extra.days_to_target_low = p->report.days_to_target_low;
         extra.days_to_target_high = p->report.days_to_target_high;
         extra.days_to_next_stage = p->report.days_to_next_stage_low;
-        if (hs_store_add_state(rt->store, rt->site.ponds[i].name, p->view.t_ms, &p->view.state,
-                               &extra, p->view.quality) != 0)
-            hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
+        hs_rt_keep_state(rt, i, p->view.t_ms, &p->view.state, &extra, p->view.quality);
         p->last_state_ms = p->view.t_ms;
         p->last_state_quality = (int)p->view.quality;
-        rt->states_stored++;
     }
     hs_alarm_input in;
     hs_alarm_input_clear(&in);
@@ -396,10 +407,14 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
         hs_store_command_take(rt->store, command_from_queue, rt);
         rt->next_command_ms = mono + COMMANDS_EVERY_MS;
     }
-    /* Samples and states reach the disk every commit_interval (flash wear);
-     * alarms, decisions, messages and replies at once. */
+    /* Samples and states reach the disk every commit_interval (flash wear),
+     * a first one or a change of quality or stage at once; alarms,
+     * decisions, messages and replies at once. */
     int due = mono >= rt->next_commit_ms;
-    int committed = hs_store_commit_due(rt->store, due);
+    int now_too = rt->held_now; /* a first row, a quality or stage change */
+    if (due || now_too)
+        hs_rt_keep_commit(rt); /* the rows kept since the last commit, in one go */
+    int committed = hs_store_commit_due(rt->store, due || now_too);
     if (committed < 0)
         hs_log(HSP_LOG_ERR, "store: %s", hs_store_error(rt->store));
     if (due)
@@ -409,12 +424,12 @@ int hs_runtime_tick(hs_runtime *rt, uint32_t *next_ms)
     hs_rt_schedule_tick(rt, mono, now);
     hs_rt_mqtt_pump(rt, 0);
     if (mono >= rt->next_maintain_ms) {
-        hs_rt_keep_flush(rt); /* the open minutes join the fold */
+        hs_rt_keep_write(rt, now); /* the minutes closed by now join the fold */
         if (hs_store_maintain(rt->store, now) != 0)
             hs_log(HSP_LOG_WARNING, "store maintenance: %s", hs_store_error(rt->store));
         if (hs_store_meta_set(rt->store, "daemon_seen_ms", now) != 0)
             hs_log(HSP_LOG_WARNING, "store: %s", hs_store_error(rt->store));
-        rt->next_maintain_ms = mono + HS_RT_MAINTAIN_MS;
+        rt->next_maintain_ms = mono + maintain_every(rt);
     }
     *next_ms = HS_RT_TICK_MS;
     return HSP_OK;
@@ -542,6 +557,7 @@ void hs_runtime_close(hs_runtime *rt)
     hs_rt_emit_gateway(rt, 0, hs_rt_wall_ms());
     hs_rt_mqtt_close(rt, FLUSH_WAIT_MS);
     site_parts_free(rt);
+    hs_rt_keep_free(rt);
     hs_alarm_free(rt->alarms);
     if (rt->store != NULL) {
         if (hs_store_meta_set(rt->store, "daemon_stopped_ms", hs_rt_wall_ms()) != 0)

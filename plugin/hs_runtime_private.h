@@ -30,8 +30,9 @@
 
 #define HS_RT_QUEUE_CAPACITY 4096
 #define HS_RT_TICK_MS 100          /* how often the main loop looks at the queue */
-#define HS_RT_MAINTAIN_MS 300000   /* store rollups, retention, checkpoint: a fold of
-                                    * several minutes writes each series' page once */
+#define HS_RT_MAINTAIN_MS 900000   /* store rollups, retention: a pass writes every
+                                    * series' last page once, so fewer passes write less */
+#define HS_RT_RETENTION_EVERY_MS (6 * 3600000) /* rows past retention go at most this often */
 #define HS_RT_CALIB_EVERY_MS 10000 /* re-read the hydrometer readings */
 #define HS_RT_RAIN_SLOTS 64        /* gauge readings kept per transfer for its window */
 #define HS_RT_TREND_SLOTS 120      /* 1/CF points kept per pond for the short-term trend */
@@ -71,14 +72,56 @@ struct hs_rt_transfer {
 
 /* Per-signal storage by exception (hs_runtime_keep.c): the last kept raw
  * sample, and the running 1-minute rollup of every sample. */
+/* One series' open 1-minute rollup: n, min, sum, max, worst quality. */
+struct hs_rt_acc {
+    int64_t minute_ms, n;
+    double vmin, vsum, vmax;
+    int worst;
+};
+
+/* A signal's last kept raw sample (by exception) and its open minute. */
 struct hs_rt_keep {
     int have;
     double v;
     int q;
     int64_t t_ms;
-    int64_t minute_ms, n;
-    double vmin, vsum, vmax;
-    int worst;
+    struct hs_rt_acc acc;
+};
+
+/* A pond's last stored state (by exception) and its quantities' open
+ * minutes (hs_store_state_fields). */
+struct hs_rt_keep_state {
+    int have;
+    int64_t t_ms;
+    double sg, depth_m;
+    int stage, quality;
+    struct hs_rt_acc acc[HS_STORE_STATE_FIELDS];
+};
+
+/* A raw sample or a pond state kept by exception, held in memory until the
+ * next commit (hs_rt_keep_commit): the daemon never keeps a write
+ * transaction open between commits, so the CLI and the page can write. */
+struct hs_rt_held_sample {
+    size_t signal;
+    int64_t t_ms;
+    double value;
+    int quality, code, flags;
+    char reason[HS_REASON_MAX];
+};
+struct hs_rt_held_state {
+    size_t pond;
+    int64_t t_ms;
+    hc_brine_state state;
+    hs_pond_extra extra;
+    int quality;
+};
+#define HS_RT_HELD_MAX 4096 /* held rows written and committed early past this */
+
+/* A closed minute waiting for the next rollup write: series is a signal
+ * index, or n_signals + pond * HS_STORE_STATE_FIELDS + field. */
+struct hs_rt_minute {
+    size_t series;
+    struct hs_rt_acc acc;
 };
 
 /* Per-pond memory between cycles. */
@@ -124,6 +167,14 @@ struct hs_runtime {
     size_t *bus_n_points;
     hs_reading *readings;         /* per signal */
     struct hs_rt_keep *keep;      /* per signal */
+    struct hs_rt_keep_state *keep_state; /* per pond */
+    struct hs_rt_minute *minutes; /* closed minutes not written yet (owned) */
+    size_t n_minutes, cap_minutes;
+    struct hs_rt_held_sample *held_samples; /* kept rows not written yet (owned) */
+    size_t n_held_samples, cap_held_samples;
+    struct hs_rt_held_state *held_states;
+    size_t n_held_states, cap_held_states;
+    int held_now;                 /* a held row an operator must see at once: commit now */
     int *bus_down;                /* per bus: every point of it failing */
     uint64_t (*units_down)[4];    /* per bus: unit ids down, as last logged */
     int *slow_logged;             /* per bus: "cannot keep the poll interval" said */
@@ -182,10 +233,19 @@ int hs_rt_write(hs_runtime *rt, int bus, uint8_t unit_id, int coil, uint16_t add
 void hs_rt_schedule_tick(hs_runtime *rt, int64_t mono_ms, int64_t now_ms);
 
 /* hs_runtime_keep.c: one sample to the store, kept raw by exception and
- * counted in its minute's rollup; flush writes the open minutes. */
+ * counted in its minute's rollup; one computed pond state likewise. The
+ * minutes are held in memory and written together by hs_rt_keep_write
+ * (those closed by now_ms) or hs_rt_keep_flush (all, open ones too). */
 void hs_rt_keep_sample(hs_runtime *rt, size_t signal, int64_t t_ms, double value, hs_quality q,
                        const char *reason, int code);
+void hs_rt_keep_state(hs_runtime *rt, size_t pond, int64_t t_ms, const hc_brine_state *b,
+                      const hs_pond_extra *extra, hs_quality q);
+void hs_rt_keep_write(hs_runtime *rt, int64_t now_ms);
 void hs_rt_keep_flush(hs_runtime *rt);
+/* Writes the held raw samples and state rows into the store's batch (the
+ * caller commits it). */
+void hs_rt_keep_commit(hs_runtime *rt);
+void hs_rt_keep_free(hs_runtime *rt);
 
 /* hs_runtime_transfer.c */
 int hs_rt_transfers_init(hs_runtime *rt);

@@ -38,6 +38,9 @@ typedef struct {
     double store_deadband_pct;      /* raw kept when it moves more than this % ... */
     int64_t store_max_interval_ms;  /* ... or this long after the last kept */
     int64_t full_rate_window_ms;    /* every raw sample kept this long; 0 off */
+    double state_deadband_sg;       /* a pond state row kept when SG moved more than this, */
+    double state_deadband_level_m;  /* ... or its level more than this, */
+    int64_t state_max_interval_ms;  /* ... or this long after the last kept (or stage/quality) */
     int line;                       /* of the [site] header, 0 if absent */
 } hs_site_conf;
 

@@ -84,6 +84,10 @@ static const char *const migrations[] = {
      * maintenance folds only the others. */
     "ALTER TABLE sample ADD COLUMN rolled INTEGER NOT NULL DEFAULT 0;"
     "ALTER TABLE sample ADD COLUMN thin INTEGER NOT NULL DEFAULT 0;",
+    /* 6 -> 7: a pond state whose quantities the writer rolled up as the
+     * states came in (the daemon keeps state rows by exception but counts
+     * every computed state); maintenance folds only the others. */
+    "ALTER TABLE pond_state ADD COLUMN rolled INTEGER NOT NULL DEFAULT 0;",
 };
 #define SCHEMA_VERSION ((int)(sizeof migrations / sizeof migrations[0]))
 
@@ -104,9 +108,9 @@ static const char *const stmt_sql[SQL_COUNT] = {
         " warnings, depth_m, volume_m3, dissolved_salt_t, deposited_salt_t,"
         " net_evaporation_mm_day, days_to_target_low, days_to_target_high,"
         " days_to_next_stage, density_uncertainty_kg_m3, sg_uncertainty,"
-        " baume_uncertainty, cf_uncertainty) VALUES(?1,?2,?3,?4,?5,?6,?7,?8,?9,?10,?11,"
-        "?12,?13,?14,?15,?16,?17,?18,?19,?20,?21,?22,?23,?24,?25,?26,?27,?28,?29,?30,?31,"
-        "?32)",
+        " baume_uncertainty, cf_uncertainty, rolled) VALUES(?1,?2,?3,?4,?5,?6,?7,?8,?9,?10,"
+        "?11,?12,?13,?14,?15,?16,?17,?18,?19,?20,?21,?22,?23,?24,?25,?26,?27,?28,?29,?30,"
+        "?31,?32,?33)",
     [SQL_JOURNAL_ADD] =
         "INSERT INTO alarm_journal(event_id, t_ms, pond, rule, from_state, to_state,"
         " cause, value, limit_value, priority, actor, note, episode_id, shelved_until_ms)"
@@ -118,6 +122,11 @@ static const char *const stmt_sql[SQL_COUNT] = {
                       " hydrometer_temperature_c, reference_temperature_c,"
                       " conductivity_ms_cm, temperature_c, operator, note)"
                       " VALUES(?1,?2,?3,?4,?5,?6,?7,?8,?9)",
+    [SQL_ROLLUP_ADD] = "INSERT INTO rollup(series_id, step_s, t_ms, n, vmin, vsum, vmax, worst)"
+                       " VALUES(?1, 60, ?2, ?3, ?4, ?5, ?6, ?7)"
+                       " ON CONFLICT(series_id, step_s, t_ms) DO UPDATE SET n = n + excluded.n,"
+                       " vmin = min(vmin, excluded.vmin), vsum = vsum + excluded.vsum,"
+                       " vmax = max(vmax, excluded.vmax), worst = max(worst, excluded.worst)",
     [SQL_OUTBOX_ADD] = "INSERT INTO outbox(t_ms, kind, qos, retained, topic, payload)"
                        " VALUES(?1,?2,?3,?4,?5,?6)",
     [SQL_OUTBOX_COUNT] = "SELECT count(*) FROM outbox",
@@ -142,11 +151,12 @@ const char *hs_quality_name(hs_quality q)
 void hs_store_options_default(hs_store_options *opt)
 {
     opt->raw_retention_ms = 30 * HS_DAY_MS;
-    opt->minute_retention_ms = 400 * HS_DAY_MS;
+    opt->minute_retention_ms = 35 * HS_DAY_MS;
     opt->hour_retention_ms = 3650 * HS_DAY_MS;
     opt->batch_rows = 1000;
     opt->busy_timeout_ms = 5000;
     opt->outbox_max_rows = 100000;
+    opt->retention_every_ms = 0;
 }
 
 void hs_store_set_retention(hs_store *st, int64_t raw_ms, int64_t minute_ms, int64_t hour_ms)
@@ -507,7 +517,8 @@ hs_store *hs_store_open(const char *path, hs_store_mode mode, const hs_store_opt
          * write less per batch (flash wear; see make bench). */
         if (hs_store_exec(st, "PRAGMA page_size = 1024") != 0 ||
             hs_store_exec(st, "PRAGMA journal_mode = WAL") != 0 ||
-            hs_store_exec(st, "PRAGMA synchronous = NORMAL") != 0)
+            hs_store_exec(st, "PRAGMA synchronous = NORMAL") != 0 ||
+            sqlite3_wal_autocheckpoint(st->db, HS_STORE_WAL_PAGES) != SQLITE_OK)
             goto fail;
     } else if (hs_store_exec(st, "PRAGMA synchronous = NORMAL") != 0) {
         goto fail;

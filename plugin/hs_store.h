@@ -48,11 +48,14 @@ typedef enum {
 
 typedef struct {
     int64_t raw_retention_ms;      /* raw samples and pond states; default 30 days */
-    int64_t minute_retention_ms;   /* 1-minute rollups; default 400 days */
+    int64_t minute_retention_ms;   /* 1-minute rollups; default 35 days */
     int64_t hour_retention_ms;     /* 1-hour rollups; default 10 years */
     int batch_rows;                /* commit after this many writes; default 1000 */
     int busy_timeout_ms;           /* on every connection; default 5000 */
     int64_t outbox_max_rows;       /* bound of the MQTT outbox; default 100000 */
+    int64_t retention_every_ms;    /* hs_store_maintain deletes past retention at most this
+                                    * often (each delete touches every series' first page);
+                                    * default 0: every call */
 } hs_store_options;
 
 /* Fills the defaults listed above. */
@@ -146,6 +149,15 @@ void hs_pond_extra_clear(hs_pond_extra *x); /* all NaN */
 /* One computed state of a pond. extra may be NULL (all unknown). */
 int hs_store_add_state(hs_store *st, const char *pond, int64_t t_ms, const hc_brine_state *s,
                        const hs_pond_extra *extra, hs_quality quality);
+/* The daemon's way (pond states by exception): every computed state is
+ * counted in the minute rollups of hs_store_state_fields as it comes in
+ * (hs_store_add_rollup on "POND:FIELD"), and only the exceptions are kept
+ * as rows, with rolled = 1 so that maintenance does not count them twice. */
+int hs_store_add_state_rolled(hs_store *st, const char *pond, int64_t t_ms,
+                              const hc_brine_state *s, const hs_pond_extra *extra,
+                              hs_quality quality, int rolled);
+/* Value of hs_store_state_fields[field] in a state (NaN unknown). */
+double hs_store_state_value(const hc_brine_state *s, const hs_pond_extra *extra, int field);
 
 /* One alarm journal row. event_id is unique (the engine assigns it); a
  * duplicate is an error. Strings are copied; note/actor may be NULL. */
@@ -247,10 +259,14 @@ int64_t hs_store_outbox_dropped(const hs_store *st);
 /* ---- maintenance (writer only) ------------------------------------------- */
 
 /* Folds complete minutes before now_ms - grace into 1-minute rollups, complete
- * hours into 1-hour rollups, deletes rows past retention and runs a PASSIVE
- * WAL checkpoint. Samples that arrive for a minute already folded are kept
+ * hours into 1-hour rollups and deletes rows past retention (the WAL is
+ * checkpointed by SQLite every HS_STORE_WAL_PAGES pages). Samples that arrive for a minute already folded are kept
  * raw but not rolled up again. Call it every few seconds to minutes. */
 int hs_store_maintain(hs_store *st, int64_t now_ms);
+/* The writer's WAL is copied into the file every this many pages (4 MiB of
+ * 1 KiB pages): a hot page (a table's last page, the header) rewritten by
+ * many commits reaches the file once per checkpoint (flash wear). */
+#define HS_STORE_WAL_PAGES 4000
 /* Truncating checkpoint (e.g. at shutdown). 0 / -1. */
 int hs_store_checkpoint(hs_store *st, int truncate);
 
@@ -280,6 +296,7 @@ int hs_store_history(hs_store *st, const char *series, int64_t since_ms, int64_t
 /* The pond-state quantities that are rolled up ("density_kg_m3", ...),
  * NULL-terminated. */
 extern const char *const hs_store_state_fields[];
+#define HS_STORE_STATE_FIELDS 8 /* entries of hs_store_state_fields before its NULL */
 
 /* Raw pond-state rows of one pond (NULL: all) in [since, until), oldest
  * first, for exports. Strings live until fn returns. */

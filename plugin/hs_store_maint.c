@@ -60,7 +60,7 @@ static int fold_minutes(hs_store *st, int64_t from, int64_t to)
                  " total(ps.%s), max(ps.%s), max(ps.quality) FROM pond_state ps"
                  " JOIN pond p ON p.id = ps.pond_id JOIN series s ON s.name = p.name || ':%s'"
                  " WHERE ps.t_ms >= ?1 AND ps.t_ms < ?2 AND ps.%s IS NOT NULL"
-                 " GROUP BY s.id, ps.t_ms / 60000" UPSERT_TAIL,
+                 " AND ps.rolled = 0 GROUP BY s.id, ps.t_ms / 60000" UPSERT_TAIL,
                  f, f, f, f, f, f);
         if (run_range(st, sql, from, to) != 0)
             return -1;
@@ -80,6 +80,29 @@ static int fold_hours(hs_store *st, int64_t from, int64_t to)
                      " AND r.step_s = 60 AND r.t_ms >= ?1 AND r.t_ms < ?2"
                      " WHERE true GROUP BY r.series_id, r.t_ms / 3600000" UPSERT_TAIL,
                      from, to);
+}
+
+/* Raw rows go only once they are folded into the minutes (minute_done). */
+static int delete_past_retention(hs_store *st, int64_t now_ms, int64_t minute_done)
+{
+    int64_t raw_cut = now_ms - st->opt.raw_retention_ms;
+    if (raw_cut > minute_done)
+        raw_cut = minute_done;
+    if (run_range(st, "DELETE FROM sample WHERE t_ms < ?1 AND ?2 = ?2", raw_cut, 0) != 0 ||
+        run_range(st, "DELETE FROM pond_state WHERE t_ms < ?1 AND ?2 = ?2", raw_cut, 0) != 0 ||
+        (st->full_rate_window_ms > 0 &&
+         run_range(st, "DELETE FROM sample WHERE thin = 1 AND t_ms < ?1 AND ?2 = ?2",
+                   now_ms - st->full_rate_window_ms, 0) != 0) ||
+        run_range(st, "DELETE FROM command_seen WHERE t_ms < ?1 AND ?2 = ?2",
+                  now_ms - INT64_C(30) * 86400000, 0) != 0 ||
+        run_range(st, "DELETE FROM rollup WHERE series_id IN (SELECT id FROM series)"
+                      " AND step_s = 60 AND t_ms < ?1 AND ?2 = ?2",
+                  now_ms - st->opt.minute_retention_ms, 0) != 0 ||
+        run_range(st, "DELETE FROM rollup WHERE series_id IN (SELECT id FROM series)"
+                      " AND step_s = 3600 AND t_ms < ?1 AND ?2 = ?2",
+                  now_ms - st->opt.hour_retention_ms, 0) != 0)
+        return -1;
+    return 0;
 }
 
 int hs_store_maintain(hs_store *st, int64_t now_ms)
@@ -115,27 +138,17 @@ int hs_store_maintain(hs_store *st, int64_t now_ms)
     }
     if (hs_store_meta_set(st, "rollup_hour_done_ms", hour_to > hour_done ? hour_to : hour_done))
         goto fail;
-    /* Retention: raw rows go only once they are folded into the minutes. */
-    int64_t raw_cut = now_ms - st->opt.raw_retention_ms;
-    if (raw_cut > minute_done)
-        raw_cut = minute_done;
-    if (run_range(st, "DELETE FROM sample WHERE t_ms < ?1 AND ?2 = ?2", raw_cut, 0) != 0 ||
-        run_range(st, "DELETE FROM pond_state WHERE t_ms < ?1 AND ?2 = ?2", raw_cut, 0) != 0 ||
-        (st->full_rate_window_ms > 0 &&
-         run_range(st, "DELETE FROM sample WHERE thin = 1 AND t_ms < ?1 AND ?2 = ?2",
-                   now_ms - st->full_rate_window_ms, 0) != 0) ||
-        run_range(st, "DELETE FROM command_seen WHERE t_ms < ?1 AND ?2 = ?2",
-                  now_ms - INT64_C(30) * 86400000, 0) != 0 ||
-        run_range(st, "DELETE FROM rollup WHERE series_id IN (SELECT id FROM series)"
-                      " AND step_s = 60 AND t_ms < ?1 AND ?2 = ?2",
-                  now_ms - st->opt.minute_retention_ms, 0) != 0 ||
-        run_range(st, "DELETE FROM rollup WHERE series_id IN (SELECT id FROM series)"
-                      " AND step_s = 3600 AND t_ms < ?1 AND ?2 = ?2",
-                  now_ms - st->opt.hour_retention_ms, 0) != 0)
-        goto fail;
-    if (hs_store_flush(st) != 0)
-        return -1;
-    return hs_store_checkpoint(st, 0);
+    /* Retention, at most every retention_every_ms: each delete touches the
+     * first page of every series. */
+    if (st->opt.retention_every_ms <= 0 || st->retention_done_ms == 0 ||
+        now_ms - st->retention_done_ms >= st->opt.retention_every_ms) {
+        if (delete_past_retention(st, now_ms, minute_done) != 0)
+            goto fail;
+        st->retention_done_ms = now_ms;
+    }
+    /* No checkpoint here: SQLite's automatic one (HS_STORE_WAL_PAGES) copies
+     * a page rewritten by many batches to the file once, not once a pass. */
+    return hs_store_flush(st);
 fail:
     {
         char keep[sizeof st->err];

@@ -17,6 +17,7 @@ enum hs_stmt_id {
     SQL_POND_ADD,
     SQL_SAMPLE_ADD,
     SQL_STATE_ADD,
+    SQL_ROLLUP_ADD,
     SQL_JOURNAL_ADD,
     SQL_JOURNAL_MAX,
     SQL_TRANSFER_ADD,
@@ -51,6 +52,7 @@ struct hs_store {
     int urgent;            /* the open batch holds a row that must reach the disk now
                             * (journal, decision, outbox, command): see hs_store_commit_due */
     int64_t outbox_rows;   /* cached row count; -1 when unknown */
+    int64_t retention_done_ms; /* when maintenance last deleted past retention; 0 never */
     int64_t outbox_dropped;
     struct hs_name_map series;
     struct hs_name_map ponds;

@@ -12,6 +12,9 @@ const char *const hs_store_state_fields[] = {
     "density_kg_m3", "baume", "temperature_c", "concentration_factor", "specific_gravity",
     "depth_m", "volume_m3", "density_uncertainty_kg_m3", NULL,
 };
+_Static_assert(sizeof hs_store_state_fields / sizeof hs_store_state_fields[0] ==
+                   HS_STORE_STATE_FIELDS + 1,
+               "HS_STORE_STATE_FIELDS counts hs_store_state_fields");
 
 static int bind_text_or_null(sqlite3_stmt *s, int col, const char *text)
 {
@@ -43,15 +46,9 @@ int hs_store_add_rollup(hs_store *st, const char *signal, int64_t minute_ms, int
     int64_t id = hs_store_series_id(st, signal);
     if (id < 0)
         return -1;
-    sqlite3_stmt *s = NULL;
-    if (sqlite3_prepare_v2(st->db,
-                           "INSERT INTO rollup(series_id, step_s, t_ms, n, vmin, vsum, vmax, worst)"
-                           " VALUES(?1, 60, ?2, ?3, ?4, ?5, ?6, ?7)"
-                           " ON CONFLICT(series_id, step_s, t_ms) DO UPDATE SET n = n + excluded.n,"
-                           " vmin = min(vmin, excluded.vmin), vsum = vsum + excluded.vsum,"
-                           " vmax = max(vmax, excluded.vmax), worst = max(worst, excluded.worst)",
-                           -1, &s, NULL) != SQLITE_OK)
-        return hs_store_fail_db(st, "adding a rollup");
+    sqlite3_stmt *s = hs_store_stmt(st, SQL_ROLLUP_ADD);
+    if (s == NULL)
+        return -1;
     sqlite3_bind_int64(s, 1, id);
     sqlite3_bind_int64(s, 2, minute_ms / HS_MINUTE_MS * HS_MINUTE_MS);
     sqlite3_bind_int64(s, 3, n);
@@ -59,9 +56,7 @@ int hs_store_add_rollup(hs_store *st, const char *signal, int64_t minute_ms, int
     hs_bind_num(s, 5, vsum);
     hs_bind_num(s, 6, vmax);
     sqlite3_bind_int(s, 7, (int)worst);
-    int rc = sqlite3_step(s);
-    sqlite3_finalize(s);
-    return rc == SQLITE_DONE ? hs_store_wrote(st) : hs_store_fail_db(st, "adding a rollup");
+    return step_write(st, s, "adding a rollup");
 }
 
 int hs_store_add_sample_why(hs_store *st, const char *signal, int64_t t_ms, double value,
@@ -114,8 +109,30 @@ static int ensure_state_series(hs_store *st, const char *pond)
     return 0;
 }
 
+double hs_store_state_value(const hc_brine_state *b, const hs_pond_extra *x, int field)
+{
+    switch (field) { /* in the order of hs_store_state_fields */
+    case 0: return b->density_kg_m3;
+    case 1: return b->baume;
+    case 2: return b->temperature_c;
+    case 3: return b->concentration_factor;
+    case 4: return b->specific_gravity;
+    case 5: return x ? x->depth_m : NAN;
+    case 6: return x ? x->volume_m3 : NAN;
+    case 7: return b->density_uncertainty_kg_m3;
+    default: return NAN;
+    }
+}
+
 int hs_store_add_state(hs_store *st, const char *pond, int64_t t_ms, const hc_brine_state *b,
                        const hs_pond_extra *extra, hs_quality quality)
+{
+    return hs_store_add_state_rolled(st, pond, t_ms, b, extra, quality, 0);
+}
+
+int hs_store_add_state_rolled(hs_store *st, const char *pond, int64_t t_ms,
+                              const hc_brine_state *b, const hs_pond_extra *extra,
+                              hs_quality quality, int rolled)
 {
     if (pond == NULL || *pond == '\0' || b == NULL || (unsigned)quality >= HS_QUALITY_COUNT)
         return hs_store_fail(st, "state: empty pond name or invalid quality");
@@ -167,6 +184,7 @@ int hs_store_add_state(hs_store *st, const char *pond, int64_t t_ms, const hc_br
     hs_bind_num(s, 30, b->sg_uncertainty);
     hs_bind_num(s, 31, b->baume_uncertainty);
     hs_bind_num(s, 32, b->cf_uncertainty);
+    sqlite3_bind_int(s, 33, rolled != 0);
     return step_write(st, s, "adding a pond state");
 }
 
@@ -399,6 +417,11 @@ int hs_store_command_take(hs_store *st, hs_command_fn fn, void *ctx)
         free(reply);
         free(requests[i]);
     }
+    /* Every second: replies at once, and whatever batch is open (outbox
+     * rows and their acknowledgements) is not held longer, so another
+     * writer (halostage ack, the page) never waits for it. The daemon's
+     * samples and states do not wait in an open batch: it holds them in
+     * memory until their commit (hs_runtime_keep.c). */
     if (ok == 0)
         ok = hs_store_flush(st);
 done:

@@ -152,6 +152,22 @@ static int64_t down_since(const struct daemon_marks *m)
     return m->stopped_ms > 0 ? m->stopped_ms : m->seen_ms;
 }
 
+/* Age past which a pond's newest stored state is stale. While the daemon
+ * runs it stores a state row by exception (at least every
+ * state_max_interval) and commits every commit_interval, so the newest row
+ * may be that much older than the pond's state without being stale; a
+ * stored state whose inputs went stale carries that quality itself. With
+ * no daemon, older than stale_after is stale. */
+static int64_t stale_limit_ms(const hs_site *site)
+{
+    long pid = 0;
+    char err[300];
+    int64_t limit = site->site.stale_after_ms;
+    if (hs_lock_holder(site->site.database, &pid, err, sizeof err) > 0)
+        limit += site->site.state_max_interval_ms + site->site.commit_interval_ms;
+    return limit;
+}
+
 /* Who runs the site: the holder of the site lock (hs_lock.h); when nobody
  * does, since when and which process last held it. */
 static void print_daemon(const hs_site *site, hs_store *st, int64_t now)
@@ -279,6 +295,7 @@ static void print_table(const hs_site *site, hs_store *st, const struct alarm_li
     printf("%-9s %-12s %-17s %9s %6s %6s %7s %10s %9s %-8s %7s %s\n", "POND", "ROLE", "STAGE",
            "REF kg/m3", "+-", "Be", "LEVEL m", "VOLUME m3", "TO TARGET", "QUALITY", "AGE",
            "ALARMS");
+    int64_t stale_limit = stale_limit_ms(site);
     for (size_t i = 0; i < site->n_ponds; i++) {
         const hs_pond *p = &site->ponds[i];
         hs_state_row row;
@@ -297,8 +314,8 @@ static void print_table(const hs_site *site, hs_store *st, const struct alarm_li
             if (row.state.stage != HC_STAGE_NONE)
                 stage = hc_stage_name(row.state.stage);
             age_text(age, sizeof age, now - row.t_ms);
-            if (now - row.t_ms > site->site.stale_after_ms)
-                quality = "stale"; /* older than [site] stale_after */
+            if (now - row.t_ms > stale_limit)
+                quality = "stale"; /* see stale_limit_ms */
         }
         alarms_of(alarms, p->name, al, sizeof al);
         printf("%-9s %-12s %-17s %9s %6s %6s %7s %10s %9s %-8s %7s %s\n", p->name,
@@ -330,6 +347,7 @@ static json_t *status_json(const hs_site *site, hs_store *st, const struct alarm
                            int64_t now)
 {
     json_t *ponds = json_array(), *transfers = json_array(), *al = json_array();
+    int64_t stale_limit = stale_limit_ms(site);
     for (size_t i = 0; i < site->n_ponds; i++) {
         const hs_pond *p = &site->ponds[i];
         hs_state_row row;
@@ -337,7 +355,7 @@ static json_t *status_json(const hs_site *site, hs_store *st, const struct alarm
         if (hs_store_latest_state(st, p->name, &row) == 0) {
             hs_pond_doc_from_row(&d, &row, p->name, hs_role_name(p->role));
             d.now_ms = now;
-            d.stale_after_ms = site->site.stale_after_ms;
+            d.stale_after_ms = stale_limit;
         } else {
             hs_pond_doc_init(&d);
             d.pond = p->name;

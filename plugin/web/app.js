@@ -65,6 +65,13 @@ function otherDensityText(o) {
   return fin(o.specific_gravity) ? `SG ${o.specific_gravity.toFixed(4)}` : '';
 }
 
+/* The state's standard uncertainty (k = 1) in the chosen scale. */
+function uncertaintyText(o) {
+  if (!o) return '';
+  if (scaleSg()) return fin(o.specific_gravity_uncertainty) ? `± ${o.specific_gravity_uncertainty.toFixed(4)}` : '';
+  return fin(o.baume_uncertainty) ? `± ${o.baume_uncertainty.toFixed(2)} °Bé` : '';
+}
+
 function scaleValue(o) { return o ? (scaleSg() ? o.specific_gravity : o.baume) : NaN; }
 
 function pad2(n) { return String(n).padStart(2, '0'); }
@@ -298,7 +305,9 @@ function pondCard(p) {
       p.next_stage ? el('span', { class: 'muted', text: ` → ${p.next_stage}` }) : null),
     el('div', {},
       el('div', { class: 'big', text: densityText(p) }),
-      el('div', { class: 'small', text: `${otherDensityText(p)} at ${tref()}` })),
+      el('div', { class: 'small' },
+        el('span', { class: 'unc', title: 'standard uncertainty of the state (coverage factor 1); decisions keep twice this from a limit', text: uncertaintyText(p) }),
+        `${uncertaintyText(p) ? ' · ' : ''}${otherDensityText(p)} at ${tref()}`)),
     el('div', { class: 'facts' },
       el('span', {}, 'Level ', el('b', { text: fin(p.depth_m) ? `${p.depth_m.toFixed(2)} m` : '–' })),
       el('span', {}, 'To target ', el('b', { text: span(range(p.days_to_target).low, range(p.days_to_target).high) })),
@@ -445,7 +454,7 @@ async function drawPond(full) {
   if (!p) return;
   $('pond-title').textContent = `Pond ${p.pond}`;
   $('pond-now').replaceChildren(
-    el('span', {}, 'Density ', el('b', { text: densityText(p) }), ` (${otherDensityText(p)}) at ${tref()}`),
+    el('span', {}, 'Density ', el('b', { text: densityText(p) }), ` ${uncertaintyText(p)} (${otherDensityText(p)}) at ${tref()}`),
     el('span', {}, 'Stage ', el('span', { class: `stage ${stageClass(p.stage)}`, text: p.stage || 'no state' })),
     el('span', {}, 'Level ', el('b', { text: fin(p.depth_m) ? `${p.depth_m.toFixed(2)} m` : '–' })),
     el('span', {}, 'Temperature ', el('b', { text: fin(p.temperature_c) ? `${p.temperature_c.toFixed(1)} °C` : '–' })),

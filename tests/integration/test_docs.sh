@@ -17,7 +17,10 @@ dikes=$(hs_free_port)
 analysers=$(hs_free_port)
 sed -e "s/^port = 15020/port = $dikes/" -e "s/^port = 15021/port = $analysers/" \
     -e "s/^poll_interval = 5s/poll_interval = 1s/" -e "s/^poll_interval = 10s/poll_interval = 2s/" \
+    -e "s/^\[site\]/[site]\ncommit_interval = 1s\nstate_max_interval = 2s/" \
     config/demo.ini >"$S/demo.ini"
+# (states committed every second and stored at least every 2 s: the history
+# examples find rows within seconds, not after the default minutes)
 
 /usr/bin/python3 tests/docs/doc_examples.py README.md plugin/cli/halostage.1 \
     plugin/host/halostaged.8 config/halostage.conf.5 >"$HS_TMP/examples.jsonl"

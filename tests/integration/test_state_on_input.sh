@@ -21,6 +21,7 @@ site() { # site DIKES_POLL ANALYSERS_POLL HEARTBEAT
     sed -e "s/^port = 15020/port = $dikes/" -e "s/^port = 15021/port = $analysers/" \
         -e "s/^poll_interval = 5s/poll_interval = $1/" -e "s/^poll_interval = 10s/poll_interval = $2/" \
         -e "s/^stale_after = 60s/stale_after = 10min/" \
+        -e "s/^\[site\]/[site]\nstate_max_interval = 1s\ncommit_interval = 1s/" \
         -e "s|^database = .*|database = $DB|" config/demo.ini
     printf '\n[mqtt]\nuri = mqtt://127.0.0.1:%s\nclient_id = oninput\nstate_heartbeat = %s\n' \
         "$mport" "$3"
@@ -53,6 +54,8 @@ span=$(sqlite3 "$DB" "SELECT (max(t_ms) - min(t_ms)) / 1000 + 1 FROM pond_state 
 check "c2: $n_rows states in $span s of input at a 1 s and 2 s poll (no more than one per poll)" \
     test "$n_rows" -le $((span * 2 + 2))
 
+# (a state row at most every second here: state_max_interval = 1s, so
+# every new input's state is also a row; by exception: test_store_exception.sh)
 # Raw samples by exception, counted in full: the minute rollups of the
 # signals count every poll (at most one a second per signal here), the raw
 # table keeps only the exceptions.

@@ -143,6 +143,9 @@ def run(d):
     big = texts(d, "#chain li.pond .big")
     ok(len(big) == len(PONDS) and all(re.match(r"^\d+\.\d\d °Bé$", t) for t in big),
        "every pond shows its degree Baume at the reference temperature (%s)" % big)
+    unc = texts(d, "#chain li.pond .unc")
+    ok(len(unc) == len(PONDS) and all(re.match(r"^± \d+\.\d\d °Bé$", t) for t in unc),
+       "every pond shows the standard uncertainty of its state (%s)" % unc)
     links = texts(d, "#chain li.link .advice")
     ok(len(links) == 4, "the chain shows the 4 transfers with their advice (%d)" % len(links))
     live = wait(d, lambda x: x.find_element(By.ID, "live").text == "live", 20)

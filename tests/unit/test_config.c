@@ -115,7 +115,7 @@ static void retention_keys(void **state)
     conf_write_file(cd.path, SITE_THEN(""));
     assert_int_equal(hs_site_load(cd.path, &site, &diag), 0);
     assert_int_equal(site.site.raw_retention_ms, 30LL * 86400000);     /* defaults */
-    assert_int_equal(site.site.minute_retention_ms, 400LL * 86400000);
+    assert_int_equal(site.site.minute_retention_ms, 35LL * 86400000);
     assert_int_equal(site.site.hour_retention_ms, 3650LL * 86400000);
     hs_site_free(&site);
     conf_write_file(cd.path, SITE_THEN("raw_retention = 7d\nminute_retention = 90d\n"
@@ -131,7 +131,7 @@ static void retention_order(void **s)
     (void)s;
     expect_error(SITE_THEN("raw_retention = 60d\nminute_retention = 30d\n"), 5,
                  "minute_retention: shorter than raw_retention");
-    expect_error(SITE_THEN("hour_retention = 100d\n"), 4,
+    expect_error(SITE_THEN("hour_retention = 20d\n"), 4,
                  "hour_retention: shorter than minute_retention");
     expect_error(SITE_THEN("raw_retention = 12h\n"), 4, "raw_retention");
 }

@@ -108,6 +108,7 @@ static void migrates_an_older_file(void **unused)
                                       "ALTER TABLE pond_state DROP COLUMN baume_uncertainty;"
                                       "ALTER TABLE pond_state DROP COLUMN cf_uncertainty;"
                                       "DROP TABLE command_seen;"
+                                      "ALTER TABLE pond_state DROP COLUMN rolled;"
                                       "ALTER TABLE sample DROP COLUMN rolled;"
                                       "ALTER TABLE sample DROP COLUMN thin;"
                                       "ALTER TABLE sample DROP COLUMN reason;"
@@ -135,6 +136,8 @@ static void migrates_an_older_file(void **unused)
     assert_int_equal(scalar("SELECT count(*) FROM sqlite_master WHERE name = 'command_seen'"), 1);
     assert_int_equal(scalar("SELECT count(*) FROM pragma_table_info('sample')"
                             " WHERE name IN ('rolled', 'thin')"), 2);
+    assert_int_equal(scalar("SELECT count(*) FROM pragma_table_info('pond_state')"
+                            " WHERE name = 'rolled'"), 1);
 }
 
 struct reason_rows {
@@ -401,6 +404,34 @@ static void pond_state_rollups(void **unused)
     hs_store_close(st);
 }
 
+/* The daemon counts every computed state in the rollups itself and keeps
+ * rows by exception (rolled = 1): maintenance folds only the other rows. */
+static void rolled_states_not_folded_twice(void **unused)
+{
+    (void)unused;
+    hs_store *st = open_writer(NULL);
+    hc_brine_state b;
+    hc_state_clear(&b);
+    b.specific_gravity = 1.2;
+    /* the writer's own count of the minute: 60 states, of which one row */
+    assert_int_equal(hs_store_add_rollup(st, "crys-1:specific_gravity", T0_MS, 60, 1.19, 72.0,
+                                         1.21, HS_QUALITY_GOOD), 0);
+    assert_int_equal(hs_store_add_state_rolled(st, "crys-1", T0_MS, &b, NULL, HS_QUALITY_GOOD, 1),
+                     0);
+    /* a row written the plain way in the next minute is folded by maintenance */
+    assert_int_equal(hs_store_add_state(st, "crys-1", T0_MS + 60000, &b, NULL, HS_QUALITY_GOOD),
+                     0);
+    assert_int_equal(hs_store_maintain(st, T0_MS + 3 * 60000), 0);
+    static struct collect got;
+    got.n = 0;
+    assert_int_equal(hs_store_history(st, "crys-1:specific_gravity", T0_MS, T0_MS + 3 * 60000,
+                                      60000, collect_point, &got), 2);
+    assert_int_equal(got.p[0].count, 60); /* not 61 */
+    assert_double_equal(got.p[0].mean, 1.2, 1e-12);
+    assert_int_equal(got.p[1].count, 1);
+    hs_store_close(st);
+}
+
 static void retention_keeps_rollups(void **unused)
 {
     (void)unused;
@@ -622,6 +653,7 @@ int main(void)
         cmocka_unit_test_setup_teardown(state_round_trip, setup, teardown),
         cmocka_unit_test_setup_teardown(rollups_match_raw, setup, teardown),
         cmocka_unit_test_setup_teardown(pond_state_rollups, setup, teardown),
+        cmocka_unit_test_setup_teardown(rolled_states_not_folded_twice, setup, teardown),
         cmocka_unit_test_setup_teardown(retention_keeps_rollups, setup, teardown),
         cmocka_unit_test_setup_teardown(outbox_order_and_policy, setup, teardown),
         cmocka_unit_test_setup_teardown(journal_rows, setup, teardown),
