@@ -90,6 +90,15 @@ typedef void (*hs_inbound_fn)(void *ctx, const char *topic, const void *payload,
  * unacknowledged rows from the oldest. 0 / -1 (store error). */
 int hs_publisher_pump(hs_publisher *p, int wait_ms, hs_inbound_fn fn, void *ctx);
 
+/* The latest retained message of a topic that a newer one supersedes (a
+ * pond's state): kept in memory, not in the outbox, and sent when the link
+ * is up, one in flight per topic; a newer text replaces one not yet
+ * delivered, and on every connect the latest of each topic is sent again.
+ * What a crash loses is only what the restarted daemon publishes afresh;
+ * the disk is spared a row and its deletion for every state. The text is
+ * copied. 0, or -1 without memory or with too many topics (256). */
+int hs_publisher_latest(hs_publisher *p, const char *topic, const char *text);
+
 /* Before a clean shutdown: publishes the retained gateway status offline
  * (a clean disconnect does not fire the last will) and waits up to
  * timeout_ms for the broker to acknowledge it. Returns 0 when acknowledged,

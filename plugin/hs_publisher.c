@@ -16,6 +16,7 @@
  * and does not commit it; the next commit (the runtime's commit_interval,
  * or an urgent row) carries it. A crash before that commit only sends the
  * row again: a duplicate, which at-least-once delivery allows. */
+#include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
 #include <time.h>
@@ -35,6 +36,17 @@
  * a loop that would take the broker's refusal hundreds of times a second. */
 #define REFUSED_WAIT_FIRST_MS 1000
 #define REFUSED_WAIT_LAST_MS 60000
+#define LATEST_MAX 256 /* topics held by hs_publisher_latest */
+
+/* A topic's latest retained text (hs_publisher_latest). version counts the
+ * texts given; sent and acked say which of them went out and was answered
+ * in the current session. */
+struct latest {
+    char *topic, *text;
+    uint32_t version, sent, acked;
+    int in_flight;
+};
+
 struct hs_publisher {
     hs_store *st;
     hp_mqtt *link;
@@ -61,6 +73,8 @@ struct hs_publisher {
     int64_t lost_mono_ms;
     long attempts;
     int64_t next_retry_log_ms;
+    struct latest latest[LATEST_MAX];
+    size_t nlatest;
 };
 
 static int64_t mono_ms(void)
@@ -105,6 +119,80 @@ static void log_link(hs_publisher *p, int connected, const char *reason)
 
 #define GOODBYE_TAG (-1) /* tag of the offline status; row ids are positive */
 
+/* Tags of latest-topic publishes: negative, below GOODBYE_TAG, carrying the
+ * topic's slot and the text's version. */
+static int64_t latest_tag(size_t slot, uint32_t version)
+{
+    return -(((int64_t)(slot + 1) << 32) | (int64_t)version);
+}
+
+static struct latest *latest_of_tag(hs_publisher *p, int64_t tag, uint32_t *version)
+{
+    if (tag >= GOODBYE_TAG)
+        return NULL;
+    int64_t v = -tag;
+    size_t slot = (size_t)(v >> 32) - 1;
+    *version = (uint32_t)(v & 0xffffffff);
+    return slot < p->nlatest ? &p->latest[slot] : NULL;
+}
+
+/* On a connect or a loss nothing is in flight; on a connect every topic's
+ * latest goes out again (the broker may have lost its retained copy). */
+static void latest_reset(hs_publisher *p, int resend)
+{
+    for (size_t i = 0; i < p->nlatest; i++) {
+        p->latest[i].in_flight = 0;
+        if (resend)
+            p->latest[i].acked = p->latest[i].version - 1;
+    }
+}
+
+int hs_publisher_latest(hs_publisher *p, const char *topic, const char *text)
+{
+    size_t i = 0;
+    while (i < p->nlatest && strcmp(p->latest[i].topic, topic) != 0)
+        i++;
+    if (i == LATEST_MAX)
+        return -1;
+    char *copy = strdup(text);
+    if (copy == NULL)
+        return -1;
+    struct latest *l = &p->latest[i];
+    if (i == p->nlatest) {
+        if ((l->topic = strdup(topic)) == NULL) {
+            free(copy);
+            return -1;
+        }
+        l->version = l->sent = l->acked = 0;
+        l->in_flight = 0;
+        p->nlatest++;
+    }
+    free(l->text);
+    l->text = copy;
+    l->version++;
+    return 0;
+}
+
+/* Sends each topic whose latest is not yet answered and has nothing in
+ * flight (a newer text waits for the answer to the older: one topic's
+ * messages stay in order). */
+static void latest_send(hs_publisher *p)
+{
+    if (mono_ms() < p->rewind_at_ms)
+        return; /* the broker refused something: wait with the rest */
+    for (size_t i = 0; i < p->nlatest; i++) {
+        struct latest *l = &p->latest[i];
+        if (l->in_flight || l->acked == l->version || l->text == NULL)
+            continue;
+        if (hp_mqtt_publish(p->link, l->topic, l->text, strlen(l->text), 1, 1,
+                            latest_tag(i, l->version)) != 0)
+            return;
+        l->sent = l->version;
+        l->in_flight = 1;
+        p->stats.sent++;
+    }
+}
+
 hs_publisher *hs_publisher_new(hs_store *st, hp_mqtt *link, const hs_topics *t, int window)
 {
     if (st == NULL || link == NULL || t == NULL || window < 0 || window > WINDOW_MAX)
@@ -122,6 +210,10 @@ hs_publisher *hs_publisher_new(hs_store *st, hp_mqtt *link, const hs_topics *t, 
 void hs_publisher_free(hs_publisher *p)
 {
     if (p) {
+        for (size_t i = 0; i < p->nlatest; i++) {
+            free(p->latest[i].topic);
+            free(p->latest[i].text);
+        }
         free(p->done);
         free(p);
     }
@@ -188,12 +280,14 @@ static void on_event(void *ctx, const hp_mqtt_event *ev)
         p->session = ev->session;
         p->stats.connects++;
         forget_inflight(p);
+        latest_reset(p, 1);
         publish_gateway(p, 1, 0); /* tag 0: not an outbox row */
         break;
     case HP_MQTT_DISCONNECTED:
         log_link(p, 0, ev->reason);
         p->connected = 0;
         forget_inflight(p);
+        latest_reset(p, 0);
         break;
     case HP_MQTT_DELIVERED:
         if (ev->session != p->session) {
@@ -205,6 +299,13 @@ static void on_event(void *ctx, const hp_mqtt_event *ev)
         }
         if (ev->tag == GOODBYE_TAG)
             p->goodbye_acked = 1;
+        uint32_t sent_version;
+        struct latest *done = latest_of_tag(p, ev->tag, &sent_version);
+        if (done != NULL && done->in_flight && sent_version == done->sent) {
+            done->in_flight = 0;
+            done->acked = sent_version;
+            p->stats.delivered++;
+        }
         if (ev->tag > 0) {
             remove_inflight(p, ev->tag);
             mark_done(p, ev->tag);
@@ -213,7 +314,25 @@ static void on_event(void *ctx, const hp_mqtt_event *ev)
                 p->refused_wait_ms = 0; /* taken at last */
         }
         break;
-    case HP_MQTT_FAILED:
+    case HP_MQTT_FAILED: {
+        uint32_t version;
+        struct latest *l = latest_of_tag(p, ev->tag, &version);
+        if (l != NULL && ev->session == p->session && l->in_flight && version == l->sent) {
+            l->in_flight = 0; /* sent again by the next pump */
+            p->stats.failed++;
+            if (ev->reason_code >= 0x80 && mono_ms() >= p->rewind_at_ms) {
+                p->stats.refused++;
+                p->refused_wait_ms = p->refused_wait_ms == 0 ? REFUSED_WAIT_FIRST_MS
+                                     : p->refused_wait_ms * 2 > REFUSED_WAIT_LAST_MS
+                                         ? REFUSED_WAIT_LAST_MS
+                                         : p->refused_wait_ms * 2;
+                p->rewind_at_ms = mono_ms() + p->refused_wait_ms;
+                hs_log(HSP_LOG_WARNING, "MQTT: the broker refused %s (%s); sent again in %.0f s",
+                       l->topic, ev->reason ? ev->reason : "no reason given",
+                       (double)p->refused_wait_ms / 1000.0);
+            }
+            break;
+        }
         if (ev->tag <= 0)
             break;
         if (ev->session != p->session) {
@@ -242,6 +361,7 @@ static void on_event(void *ctx, const hp_mqtt_event *ev)
         if (remove_inflight(p, ev->tag))
             p->rewind = 1;
         break;
+    }
     case HP_MQTT_MESSAGE:
         if (p->inbound)
             p->inbound(p->inbound_ctx, ev->topic, ev->payload, ev->payload_len, ev->oversize,
@@ -281,6 +401,7 @@ int hs_publisher_pump(hs_publisher *p, int wait_ms, hs_inbound_fn fn, void *ctx)
     }
     if (!p->connected || !hp_mqtt_connected(p->link))
         return 0;
+    latest_send(p);
     int room = p->window - p->ninflight;
     if (room <= 0)
         return 0;

@@ -1,6 +1,7 @@
 /* What the runtime tells the world: tagged values to the host (plugin ABI
- * emit), and, when MQTT is on, the retained pond state and transfer advice
- * and the alarm transitions through the store's outbox. Journal rows are
+ * emit), and, when MQTT is on, the retained pond state (the latest of each,
+ * held by the publisher) and the transfer advice and alarm transitions
+ * through the store's outbox. Journal rows are
  * written whether MQTT is on or not. */
 #include <math.h>
 #include <stdio.h>
@@ -72,11 +73,14 @@ int hs_rt_enqueue_state(hs_runtime *rt, size_t pond, int64_t now_ms)
     json_t *o = state_object(rt, pond);
     if (o == NULL)
         return -1;
-    /* Through the outbox, which keeps only the pond's latest state; a state
-     * is not urgent, so it does not make the batch commit early. */
-    int rc = hs_enqueue_json(rt->store, HS_MSG_STATE, topic, o, 1);
+    /* Not through the outbox: a newer state supersedes it, so only the
+     * latest matters, and it is kept in memory (hs_publisher_latest) at no
+     * cost to the disk. */
+    char *text = hs_doc_dumps(o);
     json_decref(o);
-    return rc < 0 ? -1 : 0;
+    int rc = text != NULL ? hs_publisher_latest(rt->publisher, topic, text) : -1;
+    free(text);
+    return rc;
 }
 
 void hs_rt_emit_pond(hs_runtime *rt, size_t pond, int64_t now_ms)
