@@ -100,6 +100,7 @@ typedef struct {
     int connected;
     int64_t sent, delivered, failed, connects;
     int64_t stale;     /* answers about publishes of an earlier connection, ignored */
+    int64_t refused;   /* publishes the broker refused (kept, sent again after a wait) */
     int64_t in_flight;
 } hs_publisher_stats;
 void hs_publisher_stats_get(const hs_publisher *p, hs_publisher_stats *out);

@@ -29,6 +29,12 @@
 
 #define WINDOW_MAX 1024
 
+/* A message the broker refuses (an MQTT 5 reason code: not authorized,
+ * packet too large, ...) stays in the outbox and is sent again after a wait
+ * that doubles from the first to the last of these, instead of at once in
+ * a loop that would take the broker's refusal hundreds of times a second. */
+#define REFUSED_WAIT_FIRST_MS 1000
+#define REFUSED_WAIT_LAST_MS 60000
 struct hs_publisher {
     hs_store *st;
     hp_mqtt *link;
@@ -42,6 +48,9 @@ struct hs_publisher {
     size_t ndone, capdone;
     int connected;
     int rewind;                   /* send again from the oldest row */
+    int64_t rewind_at_ms;         /* monotonic; not before (after a refusal) */
+    int64_t refused_wait_ms;      /* the current wait after a refusal; 0: none */
+    int64_t refused_id;           /* the row the broker refused last */
     hs_publisher_stats stats;
     hs_inbound_fn inbound;
     void *inbound_ctx;
@@ -200,6 +209,8 @@ static void on_event(void *ctx, const hp_mqtt_event *ev)
             remove_inflight(p, ev->tag);
             mark_done(p, ev->tag);
             p->stats.delivered++;
+            if (ev->tag == p->refused_id)
+                p->refused_wait_ms = 0; /* taken at last */
         }
         break;
     case HP_MQTT_FAILED:
@@ -210,6 +221,24 @@ static void on_event(void *ctx, const hp_mqtt_event *ev)
             break;
         }
         p->stats.failed++;
+        if (ev->reason_code >= 0x80) {
+            p->stats.refused++;
+            p->refused_id = ev->tag;
+        }
+        if (ev->reason_code >= 0x80 && mono_ms() >= p->rewind_at_ms) {
+            /* the first refusal of a round (those of the same window wait
+             * together): a longer wait, one line */
+            p->refused_wait_ms = p->refused_wait_ms == 0 ? REFUSED_WAIT_FIRST_MS
+                                 : p->refused_wait_ms * 2 > REFUSED_WAIT_LAST_MS
+                                     ? REFUSED_WAIT_LAST_MS
+                                     : p->refused_wait_ms * 2;
+            p->rewind_at_ms = mono_ms() + p->refused_wait_ms;
+            hs_log(HSP_LOG_WARNING,
+                   "MQTT: the broker refused outbox message %lld (%s); it stays queued and "
+                   "is sent again in %.0f s",
+                   (long long)ev->tag, ev->reason ? ev->reason : "no reason given",
+                   (double)p->refused_wait_ms / 1000.0);
+        }
         if (remove_inflight(p, ev->tag))
             p->rewind = 1;
         break;
@@ -245,7 +274,7 @@ int hs_publisher_pump(hs_publisher *p, int wait_ms, hs_inbound_fn fn, void *ctx)
     }
     if (p->rewind) {
         /* Wait for what is in flight to settle, then start from the oldest. */
-        if (p->ninflight > 0)
+        if (p->ninflight > 0 || mono_ms() < p->rewind_at_ms)
             return 0;
         p->rewind = 0;
         p->last_sent = 0;

@@ -92,12 +92,14 @@ static char *keep(hp_mqtt *m, int slot, const char *s)
 /* Appends an event (called from paho's threads and the owner's); handle_no:
  * the handle it concerns, -1 for the current one. */
 static void push_session(hp_mqtt *m, int64_t handle_no, hp_mqtt_event_type type, int64_t tag,
-                         int64_t session, const char *topic, const void *payload, size_t len,
-                         int oversize, int retained, const char *reason)
+                         int64_t session, int reason_code, const char *topic,
+                         const void *payload, size_t len, int oversize, int retained,
+                         const char *reason)
 {
     struct event_node *n = calloc(1, sizeof *n);
     if (n == NULL)
         return;
+    n->ev.reason_code = reason_code;
     n->ev.retained = retained;
     n->ev.type = type;
     n->ev.tag = tag;
@@ -146,7 +148,7 @@ static void push_session(hp_mqtt *m, int64_t handle_no, hp_mqtt_event_type type,
 static void push(hp_mqtt *m, hp_mqtt_event_type type, int64_t tag, const char *topic,
                  const void *payload, size_t len, int oversize, int retained, const char *reason)
 {
-    push_session(m, -1, type, tag, 0, topic, payload, len, oversize, retained, reason);
+    push_session(m, -1, type, tag, 0, 0, topic, payload, len, oversize, retained, reason);
 }
 
 /* An event from a paho callback of handle h. */
@@ -154,7 +156,7 @@ static void push_from(struct link_handle *h, hp_mqtt_event_type type, const char
                       const void *payload, size_t len, int oversize, int retained,
                       const char *reason)
 {
-    push_session(h->m, h->no, type, 0, 0, topic, payload, len, oversize, retained, reason);
+    push_session(h->m, h->no, type, 0, 0, 0, topic, payload, len, oversize, retained, reason);
 }
 
 static void on_connection_lost(void *ctx, char *cause)
@@ -212,17 +214,22 @@ static void on_publish_ok(void *ctx, MQTTAsync_successData5 *resp)
 {
     struct pub_ctx *p = ctx;
     (void)resp;
-    push_session(p->m, -1, HP_MQTT_DELIVERED, p->tag, p->session, NULL, NULL, 0, 0, 0, NULL);
+    push_session(p->m, -1, HP_MQTT_DELIVERED, p->tag, p->session, 0, NULL, NULL, 0, 0, 0, NULL);
     free(p);
 }
 
 static void on_publish_fail(void *ctx, MQTTAsync_failureData5 *resp)
 {
     struct pub_ctx *p = ctx;
-    char why[64];
-    snprintf(why, sizeof why, "publish failed (code %d, reason %d)", resp ? resp->code : 0,
-             resp ? (int)resp->reasonCode : 0);
-    push_session(p->m, -1, HP_MQTT_FAILED, p->tag, p->session, NULL, NULL, 0, 0, 0, why);
+    char why[128];
+    int code = resp ? (int)resp->reasonCode : 0;
+    if (code >= 0x80) {
+        const char *text = MQTTReasonCode_toString((enum MQTTReasonCodes)code);
+        snprintf(why, sizeof why, "reason %d: %s", code, text ? text : "unknown");
+    } else
+        snprintf(why, sizeof why, "publish failed (code %d)", resp ? resp->code : 0);
+    push_session(p->m, -1, HP_MQTT_FAILED, p->tag, p->session, code >= 0x80 ? code : 0, NULL,
+                 NULL, 0, 0, 0, why);
     free(p);
 }
 

@@ -77,6 +77,8 @@ typedef struct {
     int oversize;           /* MESSAGE: longer than max_inbound, payload dropped */
     int retained;           /* MESSAGE: it carried the retain flag (a stored message) */
     const char *reason;     /* DISCONNECTED / FAILED: text; may be NULL */
+    int reason_code;        /* FAILED: the broker's MQTT 5 reason code (0x80 and up) when
+                               the broker refused the publish; 0 when it did not answer */
 } hp_mqtt_event;
 
 /* Creates the client; nothing connects until hp_mqtt_start(). Returns NULL

@@ -183,4 +183,26 @@ check "integrity_check ok after SIGKILL mid-batch" \
 check "every committed sample is there ($ROWS >= $LAST)" test "$ROWS" -ge "$LAST"
 check "no partial batch ($ROWS is a whole number of batches)" test $((ROWS % 500)) -eq 0
 check "outbox rows committed with their batches" test "$BOX" -eq $((ROWS / 500))
+
+# ---- 4. a message the broker refuses ----
+# An ACL lets the sender publish its gateway status but not alarms: mosquitto
+# answers each alarm with PUBACK reason 135 (not authorized). The rows stay
+# queued and are sent again after a wait that doubles from 1 s, so in 8 s
+# there are at most 4 rounds (at 0, 1, 3 and 7 s; a loaded machine only
+# makes them later) of 5 rows: at most 20 publishes, where sending again at
+# once made hundreds.
+ACL_PORT=$(hs_free_port)
+printf 'topic readwrite halostage/demo/gateway\ntopic read halostage/demo/alarm/#\n' \
+    >"$HS_TMP/acl"
+hs_start_mosquitto "$ACL_PORT" "acl_file $HS_TMP/acl" || not_ok "broker with an ACL starts"
+DB4="$HS_TMP/four.db"
+"$AGENT" --db "$DB4" --uri "mqtt://127.0.0.1:$ACL_PORT" --alarms 5 --pace-ms 2 \
+    --timeout-s 8 >"$HS_TMP/agent5.log" 2>&1
+SENT=$(sed -n 's/^stats sent \([0-9]*\) .*/\1/p' "$HS_TMP/agent5.log")
+check "the refusal is logged with its reason" \
+    grep -q "the broker refused outbox message .*Not authorized.*stays queued" "$HS_TMP/agent5.log"
+check "refused rows stay in the outbox" \
+    test "$(sqlite3 "$DB4" 'SELECT count(*) FROM outbox WHERE kind = 1')" = 5
+check "sent again after a growing wait, not in a loop (${SENT:-?} publishes, at most 20)" \
+    test "${SENT:-999}" -ge 5 -a "${SENT:-999}" -le 20
 hs_finish

@@ -212,9 +212,11 @@ int main(int argc, char **argv)
         rc = 0;
     hs_publisher_stats fin;
     hs_publisher_stats_get(pub, &fin);
-    printf("stats sent %lld delivered %lld failed %lld stale %lld in_flight %lld connects %lld\n",
+    printf("stats sent %lld delivered %lld failed %lld refused %lld stale %lld in_flight %lld "
+           "connects %lld\n",
            (long long)fin.sent, (long long)fin.delivered, (long long)fin.failed,
-           (long long)fin.stale, (long long)fin.in_flight, (long long)fin.connects);
+           (long long)fin.refused, (long long)fin.stale, (long long)fin.in_flight,
+           (long long)fin.connects);
     hs_publisher_goodbye(pub, 2000);
     hs_publisher_free(pub);
     hp_mqtt_free(link, 1000);

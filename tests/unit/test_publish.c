@@ -11,6 +11,7 @@
 
 #include "hs_pond_doc.h"
 #include "hs_publish.h"
+#include "hs_store.h"
 
 static void topics_refuse_wildcards(void **unused)
 {
@@ -166,6 +167,53 @@ static void link_options_checked(void **unused)
     hp_mqtt_free(m, 0);
 }
 
+/* An acknowledgement deletes its row in the open batch and waits for the
+ * next commit: the writer no longer sends the row, a reader of the file still
+ * sees it until the commit (a crash before it only repeats the message). */
+static int count_row(void *ctx, const hs_outbox_msg *m)
+{
+    (void)m;
+    (*(int *)ctx)++;
+    return 0;
+}
+
+static int64_t committed_rows(const char *path)
+{
+    char err[256];
+    hs_store *r = hs_store_open(path, HS_STORE_READ, NULL, err, sizeof err);
+    assert_non_null(r);
+    int64_t n = -1;
+    assert_int_equal(hs_store_outbox_count(r, &n), 0);
+    hs_store_close(r);
+    return n;
+}
+
+static void ack_waits_for_the_commit(void **unused)
+{
+    (void)unused;
+    char dir[] = "/tmp/hs-publish-test.XXXXXX", path[64], err[256];
+    assert_non_null(mkdtemp(dir));
+    snprintf(path, sizeof path, "%s/h.db", dir);
+    hs_store *st = hs_store_open(path, HS_STORE_WRITE, NULL, err, sizeof err);
+    assert_non_null(st);
+    assert_int_equal(hs_store_outbox_put(st, HS_MSG_ALARM, "a/1", "x", 1, 1, 0), 0);
+    assert_int_equal(hs_store_outbox_put(st, HS_MSG_ALARM, "a/2", "y", 1, 1, 0), 0);
+    assert_int_equal(hs_store_flush(st), 0);
+    assert_int_equal(committed_rows(path), 2);
+    int64_t first = 1;
+    assert_int_equal(hs_store_outbox_done(st, &first, 1), 0);
+    int left = 0;
+    assert_int_equal(hs_store_outbox_peek(st, 0, 10, count_row, &left), 1);
+    assert_int_equal(left, 1);              /* the writer sends only the other one */
+    assert_int_equal(committed_rows(path), 2); /* the delete is not on disk yet */
+    assert_int_equal(hs_store_commit_due(st, 1), 1);
+    assert_int_equal(committed_rows(path), 1);
+    hs_store_close(st);
+    char rm[96];
+    snprintf(rm, sizeof rm, "rm -rf %s", dir);
+    assert_int_equal(system(rm), 0);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -175,6 +223,7 @@ int main(void)
         cmocka_unit_test(pond_doc_from_row_same_keys),
         cmocka_unit_test(alarm_payload_fields),
         cmocka_unit_test(link_options_checked),
+        cmocka_unit_test(ack_waits_for_the_commit),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
