@@ -254,11 +254,14 @@ int hs_cmd_history(int argc, char **argv)
     int64_t since, until, step = 0;
     if (hs_cli_window("history", since_s, until_s, &since, &until) != 0)
         return 2;
-    if (step_s && (hs_parse_duration_ms(step_s, &step, msg, sizeof msg) != 0 || step < 60000 ||
-                   step % 60000 != 0)) {
-        fprintf(stderr, "halostage history: --step %s: %s\n", step_s,
-                step_s && step ? "must be whole minutes (1min, 15min, 1h, 1d)" : msg);
-        return 2;
+    if (step_s) {
+        int parsed = hs_parse_duration_ms(step_s, &step, msg, sizeof msg) == 0;
+        if (!parsed || step < 60000 || step % 60000 != 0) {
+            /* "0s" parses but is no step: say what a step is, not a parse error */
+            fprintf(stderr, "halostage history: --step %s: %s\n", step_s,
+                    parsed ? "must be whole minutes (1min, 15min, 1h, 1d)" : msg);
+            return 2;
+        }
     }
     if (until <= since) {
         fprintf(stderr, "halostage history: --until must be later than --since\n");
