@@ -88,6 +88,26 @@ static const char *const migrations[] = {
      * states came in (the daemon keeps state rows by exception but counts
      * every computed state); maintenance folds only the others. */
     "ALTER TABLE pond_state ADD COLUMN rolled INTEGER NOT NULL DEFAULT 0;",
+    /* 7 -> 8: 1-minute rollups in time order, so that a batch of minutes is
+     * appended to the table's last pages instead of rewriting the last page
+     * of every series (flash wear); 1-hour rollups stay series by series for
+     * long reads. The view keeps the old shape for readers. */
+    "CREATE TABLE rollup_minute(t_ms INTEGER NOT NULL, series_id INTEGER NOT NULL,"
+    " n INTEGER NOT NULL, vmin REAL, vsum REAL, vmax REAL, worst INTEGER NOT NULL,"
+    " PRIMARY KEY(t_ms, series_id)) STRICT, WITHOUT ROWID;"
+    "INSERT INTO rollup_minute(t_ms, series_id, n, vmin, vsum, vmax, worst)"
+    " SELECT t_ms, series_id, n, vmin, vsum, vmax, worst FROM rollup WHERE step_s = 60"
+    " ORDER BY t_ms, series_id;"
+    "CREATE TABLE rollup_hour(series_id INTEGER NOT NULL, t_ms INTEGER NOT NULL,"
+    " n INTEGER NOT NULL, vmin REAL, vsum REAL, vmax REAL, worst INTEGER NOT NULL,"
+    " PRIMARY KEY(series_id, t_ms)) STRICT, WITHOUT ROWID;"
+    "INSERT INTO rollup_hour(series_id, t_ms, n, vmin, vsum, vmax, worst)"
+    " SELECT series_id, t_ms, n, vmin, vsum, vmax, worst FROM rollup WHERE step_s = 3600"
+    " ORDER BY series_id, t_ms;"
+    "DROP TABLE rollup;"
+    "CREATE VIEW rollup(series_id, step_s, t_ms, n, vmin, vsum, vmax, worst) AS"
+    " SELECT series_id, 60, t_ms, n, vmin, vsum, vmax, worst FROM rollup_minute"
+    " UNION ALL SELECT series_id, 3600, t_ms, n, vmin, vsum, vmax, worst FROM rollup_hour;",
 };
 #define SCHEMA_VERSION ((int)(sizeof migrations / sizeof migrations[0]))
 
@@ -122,9 +142,9 @@ static const char *const stmt_sql[SQL_COUNT] = {
                       " hydrometer_temperature_c, reference_temperature_c,"
                       " conductivity_ms_cm, temperature_c, operator, note)"
                       " VALUES(?1,?2,?3,?4,?5,?6,?7,?8,?9)",
-    [SQL_ROLLUP_ADD] = "INSERT INTO rollup(series_id, step_s, t_ms, n, vmin, vsum, vmax, worst)"
-                       " VALUES(?1, 60, ?2, ?3, ?4, ?5, ?6, ?7)"
-                       " ON CONFLICT(series_id, step_s, t_ms) DO UPDATE SET n = n + excluded.n,"
+    [SQL_ROLLUP_ADD] = "INSERT INTO rollup_minute(series_id, t_ms, n, vmin, vsum, vmax, worst)"
+                       " VALUES(?1, ?2, ?3, ?4, ?5, ?6, ?7)"
+                       " ON CONFLICT(t_ms, series_id) DO UPDATE SET n = n + excluded.n,"
                        " vmin = min(vmin, excluded.vmin), vsum = vsum + excluded.vsum,"
                        " vmax = max(vmax, excluded.vmax), worst = max(worst, excluded.worst)",
     [SQL_OUTBOX_ADD] = "INSERT INTO outbox(t_ms, kind, qos, retained, topic, payload)"

@@ -9,8 +9,8 @@
 /* Rows later than this after a minute's end are not folded into it. */
 #define FOLD_GRACE_MS INT64_C(5000)
 
-#define UPSERT_TAIL \
-    " ON CONFLICT(series_id, step_s, t_ms) DO UPDATE SET n = n + excluded.n," \
+#define UPSERT_TAIL(key) \
+    " ON CONFLICT(" key ") DO UPDATE SET n = n + excluded.n," \
     " vmin = min(vmin, excluded.vmin), vsum = vsum + excluded.vsum," \
     " vmax = max(vmax, excluded.vmax), worst = max(worst, excluded.worst)"
 
@@ -44,23 +44,24 @@ static int earliest_raw(hs_store *st, int64_t *out)
 static int fold_minutes(hs_store *st, int64_t from, int64_t to)
 {
     if (run_range(st,
-                  "INSERT INTO rollup(series_id, step_s, t_ms, n, vmin, vsum, vmax, worst)"
-                  " SELECT series_id, 60, (t_ms / 60000) * 60000, count(value), min(value),"
+                  "INSERT INTO rollup_minute(series_id, t_ms, n, vmin, vsum, vmax, worst)"
+                  " SELECT series_id, (t_ms / 60000) * 60000, count(value), min(value),"
                   " total(value), max(value), max(quality) FROM sample"
                   " WHERE t_ms >= ?1 AND t_ms < ?2 AND value IS NOT NULL AND rolled = 0"
-                  " GROUP BY series_id, t_ms / 60000" UPSERT_TAIL,
+                  " GROUP BY series_id, t_ms / 60000" UPSERT_TAIL("t_ms, series_id"),
                   from, to) != 0)
         return -1;
     char sql[1024];
     for (int i = 0; hs_store_state_fields[i] != NULL; i++) {
         const char *f = hs_store_state_fields[i];
         snprintf(sql, sizeof sql,
-                 "INSERT INTO rollup(series_id, step_s, t_ms, n, vmin, vsum, vmax, worst)"
-                 " SELECT s.id, 60, (ps.t_ms / 60000) * 60000, count(ps.%s), min(ps.%s),"
+                 "INSERT INTO rollup_minute(series_id, t_ms, n, vmin, vsum, vmax, worst)"
+                 " SELECT s.id, (ps.t_ms / 60000) * 60000, count(ps.%s), min(ps.%s),"
                  " total(ps.%s), max(ps.%s), max(ps.quality) FROM pond_state ps"
                  " JOIN pond p ON p.id = ps.pond_id JOIN series s ON s.name = p.name || ':%s'"
                  " WHERE ps.t_ms >= ?1 AND ps.t_ms < ?2 AND ps.%s IS NOT NULL"
-                 " AND ps.rolled = 0 GROUP BY s.id, ps.t_ms / 60000" UPSERT_TAIL,
+                 " AND ps.rolled = 0 GROUP BY s.id, ps.t_ms / 60000"
+                 UPSERT_TAIL("t_ms, series_id"),
                  f, f, f, f, f, f);
         if (run_range(st, sql, from, to) != 0)
             return -1;
@@ -70,15 +71,14 @@ static int fold_minutes(hs_store *st, int64_t from, int64_t to)
 
 static int fold_hours(hs_store *st, int64_t from, int64_t to)
 {
-    /* Series by series (CROSS JOIN keeps series outside), so that each
-     * range is a primary-key range of the rollup table. */
+    /* The minutes are a time range of their table's key; the hours go in
+     * series by series. */
     return run_range(st,
-                     "INSERT INTO rollup(series_id, step_s, t_ms, n, vmin, vsum, vmax, worst)"
-                     " SELECT r.series_id, 3600, (r.t_ms / 3600000) * 3600000, sum(r.n),"
-                     " min(r.vmin), total(r.vsum), max(r.vmax), max(r.worst)"
-                     " FROM series s CROSS JOIN rollup r ON r.series_id = s.id"
-                     " AND r.step_s = 60 AND r.t_ms >= ?1 AND r.t_ms < ?2"
-                     " WHERE true GROUP BY r.series_id, r.t_ms / 3600000" UPSERT_TAIL,
+                     "INSERT INTO rollup_hour(series_id, t_ms, n, vmin, vsum, vmax, worst)"
+                     " SELECT series_id, (t_ms / 3600000) * 3600000, sum(n), min(vmin),"
+                     " total(vsum), max(vmax), max(worst) FROM rollup_minute"
+                     " WHERE t_ms >= ?1 AND t_ms < ?2 GROUP BY series_id, t_ms / 3600000"
+                     " ORDER BY series_id, t_ms / 3600000" UPSERT_TAIL("series_id, t_ms"),
                      from, to);
 }
 
@@ -95,11 +95,10 @@ static int delete_past_retention(hs_store *st, int64_t now_ms, int64_t minute_do
                    now_ms - st->full_rate_window_ms, 0) != 0) ||
         run_range(st, "DELETE FROM command_seen WHERE t_ms < ?1 AND ?2 = ?2",
                   now_ms - INT64_C(30) * 86400000, 0) != 0 ||
-        run_range(st, "DELETE FROM rollup WHERE series_id IN (SELECT id FROM series)"
-                      " AND step_s = 60 AND t_ms < ?1 AND ?2 = ?2",
+        run_range(st, "DELETE FROM rollup_minute WHERE t_ms < ?1 AND ?2 = ?2",
                   now_ms - st->opt.minute_retention_ms, 0) != 0 ||
-        run_range(st, "DELETE FROM rollup WHERE series_id IN (SELECT id FROM series)"
-                      " AND step_s = 3600 AND t_ms < ?1 AND ?2 = ?2",
+        run_range(st, "DELETE FROM rollup_hour WHERE series_id IN (SELECT id FROM series)"
+                      " AND t_ms < ?1 AND ?2 = ?2",
                   now_ms - st->opt.hour_retention_ms, 0) != 0)
         return -1;
     return 0;

@@ -140,17 +140,21 @@ int hs_store_history(hs_store *st, const char *series, int64_t since_ms, int64_t
         else
             sqlite3_bind_int64(s, 3, id);
     } else {
-        int step_s = step_ms % HS_HOUR_MS == 0 ? 3600 : 60;
         /* Hour steps read the hour rollups, and the minute rollups of the
-         * hour not folded yet, so the hour in progress is shown too (a fresh
-         * site would otherwise show nothing for its first hour). */
+         * hours not folded yet (from rollup_hour_done_ms), so the hour in
+         * progress is shown too (a fresh site would otherwise show nothing
+         * for its first hour). Minutes are in time order: a range of their
+         * key, filtered by series. */
+        int step_s = step_ms % HS_HOUR_MS == 0 ? 3600 : 60;
         if (sqlite3_prepare_v2(st->db,
-                               "SELECT t_ms, vmin, vsum, vmax, n, worst FROM rollup"
-                               " WHERE series_id = ?3 AND t_ms >= ?1 AND t_ms < ?2"
-                               " AND (step_s = ?4 OR (?4 = 3600 AND step_s = 60 AND t_ms >="
-                               " (SELECT coalesce(max(t_ms) + 3600000, 0) FROM rollup"
-                               " WHERE series_id = ?3 AND step_s = 3600)))"
-                               " ORDER BY t_ms",
+                               "SELECT t_ms, vmin, vsum, vmax, n, worst FROM rollup_hour"
+                               " WHERE ?4 = 3600 AND series_id = ?3 AND t_ms >= ?1 AND t_ms < ?2"
+                               " UNION ALL SELECT t_ms, vmin, vsum, vmax, n, worst"
+                               " FROM rollup_minute WHERE series_id = ?3 AND t_ms < ?2"
+                               " AND t_ms >= max(?1, CASE WHEN ?4 = 3600 THEN"
+                               " (SELECT coalesce(max(value), 0) FROM store_meta"
+                               " WHERE key = 'rollup_hour_done_ms') ELSE 0 END)"
+                               " ORDER BY 1",
                                -1, &s, NULL) != SQLITE_OK)
             return hs_store_fail_db(st, "reading history");
         sqlite3_bind_int64(s, 3, id);

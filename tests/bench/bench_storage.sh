@@ -52,13 +52,13 @@ if [ "$age_days" -gt 0 ]; then
     now_ms=$(($(date +%s) * 1000))
     q "WITH RECURSIVE m(t) AS (SELECT ($now_ms - $age_days * 86400000) / 60000 * 60000
                                UNION ALL SELECT t + 60000 FROM m WHERE t + 60000 < $now_ms - 120000)
-       INSERT INTO rollup(series_id, step_s, t_ms, n, vmin, vsum, vmax, worst)
-       SELECT s.id, 60, m.t, 6, 1000.1 + s.id / 7.0, 6 * (1000.3 + s.id / 7.0), 1000.7 + s.id / 7.0, 0
+       INSERT INTO rollup_minute(series_id, t_ms, n, vmin, vsum, vmax, worst)
+       SELECT s.id, m.t, 6, 1000.1 + s.id / 7.0, 6 * (1000.3 + s.id / 7.0), 1000.7 + s.id / 7.0, 0
        FROM series s CROSS JOIN m ORDER BY m.t, s.id"
-    q "INSERT INTO rollup(series_id, step_s, t_ms, n, vmin, vsum, vmax, worst)
-       SELECT series_id, 3600, t_ms / 3600000 * 3600000, sum(n), min(vmin), sum(vsum), max(vmax), 0
-       FROM rollup WHERE step_s = 60 AND t_ms < $now_ms / 3600000 * 3600000 - 3600000
-       GROUP BY series_id, t_ms / 3600000"
+    q "INSERT INTO rollup_hour(series_id, t_ms, n, vmin, vsum, vmax, worst)
+       SELECT series_id, t_ms / 3600000 * 3600000, sum(n), min(vmin), sum(vsum), max(vmax), 0
+       FROM rollup_minute WHERE t_ms < $now_ms / 3600000 * 3600000 - 3600000
+       GROUP BY series_id, t_ms / 3600000 ORDER BY 1, 2"
     q "PRAGMA wal_checkpoint(TRUNCATE)" >/dev/null
 fi
 aged_rows=$(q "SELECT count(*) FROM rollup")
@@ -97,6 +97,19 @@ real=$(q "SELECT coalesce(sum(n), 0) FROM rollup WHERE step_s = 60 AND t_ms >= $
 echo "storage: samples counted in the rollups since the start: $real"
 if [ "$age_days" -gt 0 ]; then
     # bytes per rollup row as stored (pages of the rollup table and its key)
-    per_row=$(q "SELECT sum(pgsize) / (SELECT count(*) FROM rollup) FROM dbstat WHERE name = 'rollup'" 2>/dev/null)
+    per_row=$(q "SELECT sum(pgsize) / (SELECT count(*) FROM rollup) FROM dbstat
+                 WHERE name IN ('rollup_minute', 'rollup_hour')" 2>/dev/null)
     [ -n "$per_row" ] && echo "storage: $per_row bytes per rollup row on disk"
 fi
+# What the operators' page reads: one pond's day at 5-minute steps from the
+# 1-minute rollups (kept in time order, so the day of every series is read
+# and filtered) and its week at 1-hour steps.
+pond=$(q "SELECT name FROM pond ORDER BY name LIMIT 1")
+for view in "1d 5min" "7d 1h"; do
+    set -- $view
+    a=$(date +%s%N)
+    pts=$("$HS_BUILD/halostage" history --config "$HS_TMP/site.ini" --pond "$pond" --since "$1" \
+          --step "$2" | grep -c .)
+    b=$(date +%s%N)
+    echo "storage: history of $pond over $1 at $2 steps: $pts lines in $(( (b - a) / 1000000 )) ms"
+done

@@ -102,7 +102,16 @@ static void migrates_an_older_file(void **unused)
      * old version number. */
     sqlite3 *db;
     assert_int_equal(sqlite3_open(path, &db), SQLITE_OK);
-    assert_int_equal(sqlite3_exec(db, "CREATE INDEX rollup_step_t ON rollup(step_s, t_ms);"
+    assert_int_equal(sqlite3_exec(db, "DROP VIEW rollup; DROP TABLE rollup_minute;"
+                                      "DROP TABLE rollup_hour;"
+                                      "CREATE TABLE rollup(series_id INTEGER NOT NULL,"
+                                      " step_s INTEGER NOT NULL, t_ms INTEGER NOT NULL,"
+                                      " n INTEGER NOT NULL, vmin REAL, vsum REAL, vmax REAL,"
+                                      " worst INTEGER NOT NULL,"
+                                      " PRIMARY KEY(series_id, step_s, t_ms)) STRICT, WITHOUT ROWID;"
+                                      "INSERT INTO rollup VALUES(1, 60, 0, 6, 1.0, 7.5, 2.0, 0),"
+                                      " (1, 3600, 0, 60, 0.5, 80.0, 2.5, 1);"
+                                      "CREATE INDEX rollup_step_t ON rollup(step_s, t_ms);"
                                       "ALTER TABLE pond_state DROP COLUMN density_uncertainty_kg_m3;"
                                       "ALTER TABLE pond_state DROP COLUMN sg_uncertainty;"
                                       "ALTER TABLE pond_state DROP COLUMN baume_uncertainty;"
@@ -126,6 +135,12 @@ static void migrates_an_older_file(void **unused)
     assert_int_equal(scalar("PRAGMA user_version"), hs_store_schema_version());
     assert_int_equal(scalar("SELECT count(*) FROM sqlite_master WHERE name = 'rollup_step_t'"),
                      0);
+    /* version 8 split the rollups by step: both rows are still there */
+    assert_int_equal(scalar("SELECT count(*) FROM rollup_minute WHERE series_id = 1 AND n = 6"
+                            " AND vsum = 7.5"), 1);
+    assert_int_equal(scalar("SELECT count(*) FROM rollup_hour WHERE series_id = 1 AND n = 60"
+                            " AND worst = 1"), 1);
+    assert_int_equal(scalar("SELECT count(*) FROM rollup"), 2);
     assert_int_equal(scalar("SELECT count(*) FROM pragma_table_info('pond_state')"
                             " WHERE name LIKE '%uncertainty%'"), 4);
     assert_int_equal(scalar("SELECT count(*) FROM pragma_table_info('sample')"
