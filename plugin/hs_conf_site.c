@@ -30,7 +30,7 @@ static const hs_key site_keys[] = {
             "of the demo site stays under 1 GB)"),
     KEY_DUR("hour_retention", S, hour_retention_ms, 86400 * SEC_MS, 36500.0 * 86400 * SEC_MS,
             "3650d", HS_KEY_RELOADABLE, "1-hour rollups older than this are deleted"),
-    KEY_DUR("commit_interval", S, commit_interval_ms, 1 * SEC_MS, 3600 * SEC_MS, "1min",
+    KEY_DUR("commit_interval", S, commit_interval_ms, 1 * SEC_MS, 3600 * SEC_MS, "5min",
             HS_KEY_RELOADABLE, "samples and pond states are written to disk in one batch this "
             "often (alarms, commands and messages at once); a power cut loses at most this"),
     KEY_DBL("store_deadband", S, store_deadband_pct, NULL, 0, 100, "0.5", HS_KEY_RELOADABLE,

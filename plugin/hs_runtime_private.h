@@ -205,6 +205,7 @@ struct hs_runtime {
     int64_t next_commit_ms;       /* monotonic: samples and states go to disk then */
     int64_t next_schedule_ms;     /* monotonic: when to look at the schedule again */
     int64_t schedule_day;         /* UTC day of the last published schedule; -1 none */
+    char schedule_told[256];      /* the last failure logged at warning ("" none) */
     int64_t state_heartbeat_ms;   /* republish an unchanged retained state this often; 0 never */
     uint64_t samples_in, cycles;
     uint64_t states_stored, states_published;

@@ -5,9 +5,10 @@
  * (no achieved evaporation yet, a pond without a state) is retried every
  * SCHEDULE_RETRY_MS (every SCHEDULE_EARLY_RETRY_MS in the first
  * SCHEDULE_EARLY_MS after a start, while the first states settle) and the
- * reason logged. */
+ * reason logged: at warning when it is new, at debug when it repeats. */
 #include <math.h>
 #include <stdio.h>
+#include <string.h>
 
 #include "hs_chain_plan.h"
 #include "hs_log.h"
@@ -44,8 +45,11 @@ void hs_rt_schedule_tick(hs_runtime *rt, int64_t mono_ms, int64_t now_ms)
                                                                 : SCHEDULE_RETRY_MS;
     if (hs_chain_plan_make(&rt->site, rt->models, rt->store, now_ms, &o, &plan, err,
                            sizeof err) != 0) {
-        hs_log(HSP_LOG_WARNING, "schedule: %s; trying again in %lld s", err,
-               (long long)(retry / 1000));
+        /* the same reason again is not news: a warning once, then debug */
+        int same = strcmp(err, rt->schedule_told) == 0;
+        hs_log(same ? HSP_LOG_DEBUG : HSP_LOG_WARNING, "schedule: %s; trying again in %lld s",
+               err, (long long)(retry / 1000));
+        snprintf(rt->schedule_told, sizeof rt->schedule_told, "%s", err);
         rt->next_schedule_ms = mono_ms + retry;
         return;
     }
@@ -57,6 +61,7 @@ void hs_rt_schedule_tick(hs_runtime *rt, int64_t mono_ms, int64_t now_ms)
         hs_log(HSP_LOG_INFO, "schedule: %d days published on %s (evaporation: %s)",
                SCHEDULE_DAYS, topic, plan.evaporation.source);
         rt->schedule_day = day;
+        rt->schedule_told[0] = '\0';
         rt->next_schedule_ms = mono_ms + SCHEDULE_LOOK_MS;
     } else {
         hs_log(HSP_LOG_WARNING, "schedule: could not queue it; trying again in %lld s",
