@@ -180,6 +180,7 @@ int hs_runtime_open(const char *config_path, const struct hs_emit_sink *sink, hs
     opt.minute_retention_ms = rt->site.site.minute_retention_ms;
     opt.hour_retention_ms = rt->site.site.hour_retention_ms;
     opt.retention_every_ms = HS_RT_RETENTION_EVERY_MS;
+    opt.hour_fold_every_ms = HS_RT_HOUR_FOLD_EVERY_MS;
     rt->store = hs_store_open(rt->site.site.database, HS_STORE_WRITE, &opt, err, sizeof err);
     if (rt->store == NULL) {
         hs_log(HSP_LOG_ERR, "%s", err);

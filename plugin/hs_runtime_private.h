@@ -33,6 +33,7 @@
 #define HS_RT_MAINTAIN_MS 900000   /* store rollups, retention: a pass writes every
                                     * series' last page once, so fewer passes write less */
 #define HS_RT_RETENTION_EVERY_MS (6 * 3600000) /* rows past retention go at most this often */
+#define HS_RT_HOUR_FOLD_EVERY_MS (24 * 3600000) /* minutes folded into hours once a day */
 #define HS_RT_CALIB_EVERY_MS 10000 /* re-read the hydrometer readings */
 #define HS_RT_RAIN_SLOTS 64        /* gauge readings kept per transfer for its window */
 #define HS_RT_TREND_SLOTS 120      /* 1/CF points kept per pond for the short-term trend */

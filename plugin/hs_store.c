@@ -177,6 +177,7 @@ void hs_store_options_default(hs_store_options *opt)
     opt->busy_timeout_ms = 5000;
     opt->outbox_max_rows = 100000;
     opt->retention_every_ms = 0;
+    opt->hour_fold_every_ms = 0;
 }
 
 void hs_store_set_retention(hs_store *st, int64_t raw_ms, int64_t minute_ms, int64_t hour_ms)

@@ -56,6 +56,11 @@ typedef struct {
     int64_t retention_every_ms;    /* hs_store_maintain deletes past retention at most this
                                     * often (each delete touches every series' first page);
                                     * default 0: every call */
+    int64_t hour_fold_every_ms;    /* complete hours are folded into 1-hour rollups once this
+                                    * many are waiting (each fold writes the last page of
+                                    * every series' hours); reads of hour steps take the
+                                    * minutes of the hours not folded yet; default 0: every
+                                    * complete hour */
 } hs_store_options;
 
 /* Fills the defaults listed above. */
@@ -259,7 +264,8 @@ int64_t hs_store_outbox_dropped(const hs_store *st);
 /* ---- maintenance (writer only) ------------------------------------------- */
 
 /* Folds complete minutes before now_ms - grace into 1-minute rollups, complete
- * hours into 1-hour rollups and deletes rows past retention (the WAL is
+ * hours into 1-hour rollups (once hour_fold_every_ms of them wait) and
+ * deletes rows past retention, minutes only once folded (the WAL is
  * checkpointed by SQLite every HS_STORE_WAL_PAGES pages). Samples that arrive for a minute already folded are kept
  * raw but not rolled up again. Call it every few seconds to minutes. */
 int hs_store_maintain(hs_store *st, int64_t now_ms);

@@ -71,20 +71,30 @@ static int fold_minutes(hs_store *st, int64_t from, int64_t to)
 
 static int fold_hours(hs_store *st, int64_t from, int64_t to)
 {
-    /* The minutes are a time range of their table's key; the hours go in
-     * series by series. */
-    return run_range(st,
-                     "INSERT INTO rollup_hour(series_id, t_ms, n, vmin, vsum, vmax, worst)"
-                     " SELECT series_id, (t_ms / 3600000) * 3600000, sum(n), min(vmin),"
-                     " total(vsum), max(vmax), max(worst) FROM rollup_minute"
-                     " WHERE t_ms >= ?1 AND t_ms < ?2 GROUP BY series_id, t_ms / 3600000"
-                     " ORDER BY series_id, t_ms / 3600000" UPSERT_TAIL("series_id, t_ms"),
-                     from, to);
+    /* Hour by hour: the minutes of one hour are a time range of their
+     * table's key, and grouping them by series sorts a few thousand rows
+     * in memory (a day at once spilled about 7 MB to a temporary file).
+     * The hours go in series by series, all in the caller's transaction. */
+    for (int64_t h = from; h < to; h += HS_HOUR_MS)
+        if (run_range(st,
+                      "INSERT INTO rollup_hour(series_id, t_ms, n, vmin, vsum, vmax, worst)"
+                      " SELECT series_id, (t_ms / 3600000) * 3600000, sum(n), min(vmin),"
+                      " total(vsum), max(vmax), max(worst) FROM rollup_minute"
+                      " WHERE t_ms >= ?1 AND t_ms < ?2 GROUP BY series_id, t_ms / 3600000"
+                      " ORDER BY series_id" UPSERT_TAIL("series_id, t_ms"),
+                      h, h + HS_HOUR_MS) != 0)
+            return -1;
+    return 0;
 }
 
 /* Raw rows go only once they are folded into the minutes (minute_done). */
-static int delete_past_retention(hs_store *st, int64_t now_ms, int64_t minute_done)
+static int delete_past_retention(hs_store *st, int64_t now_ms, int64_t minute_done,
+                                 int64_t hour_done)
 {
+    /* ... and minutes only once they are folded into the hours */
+    int64_t minute_cut = now_ms - st->opt.minute_retention_ms;
+    if (minute_cut > hour_done)
+        minute_cut = hour_done;
     int64_t raw_cut = now_ms - st->opt.raw_retention_ms;
     if (raw_cut > minute_done)
         raw_cut = minute_done;
@@ -95,8 +105,8 @@ static int delete_past_retention(hs_store *st, int64_t now_ms, int64_t minute_do
                    now_ms - st->full_rate_window_ms, 0) != 0) ||
         run_range(st, "DELETE FROM command_seen WHERE t_ms < ?1 AND ?2 = ?2",
                   now_ms - INT64_C(30) * 86400000, 0) != 0 ||
-        run_range(st, "DELETE FROM rollup_minute WHERE t_ms < ?1 AND ?2 = ?2",
-                  now_ms - st->opt.minute_retention_ms, 0) != 0 ||
+        run_range(st, "DELETE FROM rollup_minute WHERE t_ms < ?1 AND ?2 = ?2", minute_cut, 0) !=
+            0 ||
         run_range(st, "DELETE FROM rollup_hour WHERE series_id IN (SELECT id FROM series)"
                       " AND t_ms < ?1 AND ?2 = ?2",
                   now_ms - st->opt.hour_retention_ms, 0) != 0)
@@ -130,18 +140,21 @@ int hs_store_maintain(hs_store *st, int64_t now_ms)
             goto fail;
         minute_done = minute_to;
     }
+    /* Hours wait until hour_fold_every_ms of them are complete: reads of
+     * hour steps take the minutes from rollup_hour_done_ms meanwhile. */
     int64_t hour_to = minute_done / HS_HOUR_MS * HS_HOUR_MS;
-    if (hour_to > hour_done) {
+    if (hour_to > hour_done && hour_to - hour_done >= st->opt.hour_fold_every_ms) {
         if (fold_hours(st, hour_done, hour_to) != 0)
             goto fail;
+        hour_done = hour_to;
     }
-    if (hs_store_meta_set(st, "rollup_hour_done_ms", hour_to > hour_done ? hour_to : hour_done))
+    if (hs_store_meta_set(st, "rollup_hour_done_ms", hour_done))
         goto fail;
     /* Retention, at most every retention_every_ms: each delete touches the
      * first page of every series. */
     if (st->opt.retention_every_ms <= 0 || st->retention_done_ms == 0 ||
         now_ms - st->retention_done_ms >= st->opt.retention_every_ms) {
-        if (delete_past_retention(st, now_ms, minute_done) != 0)
+        if (delete_past_retention(st, now_ms, minute_done, hour_done) != 0)
             goto fail;
         st->retention_done_ms = now_ms;
     }

@@ -36,6 +36,25 @@ printf '\n[mqtt]\nuri = mqtt://127.0.0.1:%s\nclient_id = bench-storage\n' "$mpor
 HS_PIDS+=($!)
 hs_wait_port "$dikes" 10 && hs_wait_port "$analysers" 10 || { echo "simulator did not start"; exit 1; }
 q() { sqlite3 -cmd ".timeout 5000" "$DB" "$1"; }
+# KiB written (/proc/self/io) by SQLite doing the given statements in one
+# transaction, as the daemon's maintenance does, then a checkpoint (the same library the daemon uses;
+# the daemon may be running: the checkpoint copies what its WAL holds).
+cat >"$HS_TMP/io.py" <<'PY'
+import sqlite3, sys
+def wb():
+    with open("/proc/self/io") as f:
+        return next(int(l.split()[1]) for l in f if l.startswith("write_bytes:"))
+db = sqlite3.connect(sys.argv[1], isolation_level=None, timeout=10)
+w0 = wb()
+if len(sys.argv) > 2:
+    db.execute("BEGIN IMMEDIATE")
+    for sql in sys.argv[2:]:
+        db.execute(sql)
+    db.execute("COMMIT")
+db.execute("PRAGMA wal_checkpoint(PASSIVE)")
+print((wb() - w0) // 1024)
+PY
+sqlio() { /usr/bin/python3 "$HS_TMP/io.py" "$DB" "$@"; }
 
 # The first run: every signal's first sample and every pond's first state
 # create their series.
@@ -59,6 +78,10 @@ if [ "$age_days" -gt 0 ]; then
        SELECT series_id, t_ms / 3600000 * 3600000, sum(n), min(vmin), sum(vsum), max(vmax), 0
        FROM rollup_minute WHERE t_ms < $now_ms / 3600000 * 3600000 - 3600000
        GROUP BY series_id, t_ms / 3600000 ORDER BY 1, 2"
+    # the hours are folded up to there; the later ones are read from the minutes
+    q "INSERT INTO store_meta(key, value) VALUES('rollup_hour_done_ms',
+       $now_ms / 3600000 * 3600000 - 3600000)
+       ON CONFLICT(key) DO UPDATE SET value = excluded.value"
     q "PRAGMA wal_checkpoint(TRUNCATE)" >/dev/null
 fi
 aged_rows=$(q "SELECT count(*) FROM rollup")
@@ -75,9 +98,11 @@ size() { q "SELECT (page_count - freelist_count) * page_size FROM pragma_page_co
             pragma_freelist_count(), pragma_page_size()"; }
 counts() { q "SELECT (SELECT count(*) FROM sample) || ' ' || (SELECT count(*) FROM pond_state)
               || ' ' || (SELECT count(*) FROM rollup WHERE step_s = 60)"; }
+sqlio >/dev/null # what the start wrote is in the file: the end's checkpoint copies the window's
 w0=$(wb); s0=$(size); c0=($(counts)); t0=$(date +%s)
 sleep "$secs" # the measured period
 w1=$(wb); t1=$(date +%s)
+ckpt=$(sqlio) # the checkpoint of the window's WAL (the daemon's own comes every 4000 pages)
 kill -TERM "$dpid"; wait "$dpid" # the clean stop writes the minutes held in memory
 s1=$(size); c1=($(counts))
 dt=$((t1 - t0))
@@ -87,7 +112,9 @@ per_day_s=$(( (s1 - s0) * 86400 / dt ))
 d_samples=$((c1[0] - c0[0])); d_states=$((c1[1] - c0[1])); d_minutes=$((c1[2] - c0[2]))
 echo "storage: demo site ($ponds ponds, $series series, MQTT $mqtt), ${dt} s measured on a" \
      "history aged $age_days days ($aged_rows rollup rows, $((aged_size / 1048576)) MiB)"
-echo "storage: written to disk $(( (w1 - w0) / 1024 )) KiB = $(( per_day_w / 1048576 )) MiB/day (goal <= 50)"
+per_day_c=$(( ckpt * 1024 * 86400 / dt ))
+echo "storage: written to disk $(( (w1 - w0) / 1024 )) KiB = $(( per_day_w / 1048576 )) MiB/day," \
+     "and its checkpoint $ckpt KiB = $(( per_day_c / 1048576 )) MiB/day"
 echo "storage: history grew $(( (s1 - s0) / 1024 )) KiB = $(( per_day_s / 1048576 )) MiB/day," \
      "$(( per_day_s * 365 / ponds / 1048576 )) MiB per pond-year"
 echo "storage: rows added: $d_samples raw samples ($(( d_samples * 86400 / dt ))/day)," \
@@ -113,26 +140,28 @@ for view in "1d 5min" "7d 1h"; do
     b=$(date +%s%N)
     echo "storage: history of $pond over $1 at $2 steps: $pts lines in $(( (b - a) / 1000000 )) ms"
 done
-# Retention at the steady state: once the history is older than
-# minute_retention, each day also deletes a day of 1-minute rollups (108
-# series x 1440 rows). Not inside the measured window above (the history is
-# aged only two days), so measured here: the oldest day deleted in one
-# transaction and checkpointed, by the same SQLite, bytes from /proc/self/io.
+# Not inside the window: the daily fold of the minutes into hours (the
+# last aged day's hours are taken out, then folded again the daemon's way)
+# and, at the steady state, retention deleting a day of 1-minute rollups
+# (108 series x 1440 rows; the history here is aged only two days).
 if [ "$age_days" -gt 1 ]; then
-    /usr/bin/python3 - "$DB" <<'PY'
-import sqlite3, sys
-def wb():
-    with open("/proc/self/io") as f:
-        return next(int(l.split()[1]) for l in f if l.startswith("write_bytes:"))
-db = sqlite3.connect(sys.argv[1], isolation_level=None)
-first = db.execute("SELECT min(t_ms) FROM rollup_minute").fetchone()[0]
-w0 = wb()
-db.execute("BEGIN IMMEDIATE")
-n = db.execute("DELETE FROM rollup_minute WHERE t_ms < ?", (first + 86400000,)).rowcount
-db.execute("COMMIT")
-db.execute("PRAGMA wal_checkpoint(TRUNCATE)")
-w1 = wb()
-print("storage: retention deleting a day of 1-minute rollups (%d rows): %d KiB written"
-      % (n, (w1 - w0) // 1024))
-PY
+    day_end=$(q "SELECT max(t_ms) + 3600000 FROM rollup_hour")
+    day_start=$((day_end - 86400000))
+    sqlio "DELETE FROM rollup_hour WHERE t_ms >= $day_start AND t_ms < $day_end" >/dev/null
+    hours=()
+    for ((h = day_start; h < day_end; h += 3600000)); do
+        hours+=("INSERT INTO rollup_hour(series_id, t_ms, n, vmin, vsum, vmax, worst)
+                 SELECT series_id, (t_ms / 3600000) * 3600000, sum(n), min(vmin), total(vsum),
+                 max(vmax), max(worst) FROM rollup_minute WHERE t_ms >= $h
+                 AND t_ms < $h + 3600000 GROUP BY series_id, t_ms / 3600000 ORDER BY series_id")
+    done
+    fold=$(sqlio "${hours[@]}")
+    first=$(q "SELECT min(t_ms) FROM rollup_minute")
+    deleted=$(q "SELECT count(*) FROM rollup_minute WHERE t_ms < $first + 86400000")
+    ret=$(sqlio "DELETE FROM rollup_minute WHERE t_ms < $first + 86400000")
+    total=$(( per_day_w + per_day_c + (fold + ret) * 1024 ))
+    echo "storage: the daily fold into hours $fold KiB; retention of a day of 1-minute rollups" \
+         "($deleted rows) $ret KiB"
+    echo "storage: per day at the steady state: $(( total / 1048576 )) MiB" \
+         "= $(( total / 1000000 )) MB written (goal <= 50 MB)"
 fi

@@ -475,6 +475,46 @@ static void retention_keeps_rollups(void **unused)
     hs_store_close(st);
 }
 
+/* The daemon folds hours once a day: until then the hour steps are read
+ * from the minutes, and minutes past retention wait for their fold. */
+static void hours_folded_once_a_day(void **unused)
+{
+    (void)unused;
+    hs_store_options opt;
+    hs_store_options_default(&opt);
+    opt.hour_fold_every_ms = 24 * INT64_C(3600000);
+    opt.minute_retention_ms = 2 * 3600000;
+    hs_store *st = open_writer(&opt);
+    for (int i = 0; i < 5 * 60; i++) /* five hours, one per minute */
+        assert_int_equal(hs_store_add_sample(st, "east-1.level", T0_MS + i * 60000, 0.5 + i,
+                                             HS_QUALITY_GOOD), 0);
+    int64_t now = T0_MS + 5 * 3600000 + 60000;
+    assert_int_equal(hs_store_maintain(st, now), 0);
+    assert_int_equal(scalar("SELECT count(*) FROM rollup_hour"), 0);
+    /* not folded: kept although older than the 2 h minute retention */
+    assert_int_equal(scalar("SELECT count(*) FROM rollup_minute"), 300);
+    static struct collect got;
+    got.n = 0;
+    assert_int_equal(hs_store_history(st, "east-1.level", T0_MS, now, 3600000, collect_point,
+                                      &got), 5);
+    for (int h = 0; h < 5; h++) {
+        assert_int_equal(got.p[h].t_ms, T0_MS + h * 3600000);
+        assert_int_equal(got.p[h].count, 60);
+        /* mean of 0.5 + i for i = 60 h .. 60 h + 59 */
+        assert_double_equal(got.p[h].mean, 0.5 + 60.0 * h + 29.5, 1e-9);
+    }
+    /* a day of complete hours: folded, and the minutes past retention go */
+    assert_int_equal(hs_store_maintain(st, T0_MS + 24 * INT64_C(3600000) + 60000), 0);
+    assert_int_equal(scalar("SELECT count(*) FROM rollup_hour"), 5);
+    assert_int_equal(scalar("SELECT sum(n) FROM rollup_hour"), 300);
+    assert_int_equal(scalar("SELECT count(*) FROM rollup_minute"), 0);
+    got.n = 0;
+    assert_int_equal(hs_store_history(st, "east-1.level", T0_MS, now, 3600000, collect_point,
+                                      &got), 5);
+    assert_double_equal(got.p[4].mean, 0.5 + 240.0 + 29.5, 1e-9);
+    hs_store_close(st);
+}
+
 /* ---- outbox ---- */
 
 struct seen {
@@ -670,6 +710,7 @@ int main(void)
         cmocka_unit_test_setup_teardown(pond_state_rollups, setup, teardown),
         cmocka_unit_test_setup_teardown(rolled_states_not_folded_twice, setup, teardown),
         cmocka_unit_test_setup_teardown(retention_keeps_rollups, setup, teardown),
+        cmocka_unit_test_setup_teardown(hours_folded_once_a_day, setup, teardown),
         cmocka_unit_test_setup_teardown(outbox_order_and_policy, setup, teardown),
         cmocka_unit_test_setup_teardown(journal_rows, setup, teardown),
         cmocka_unit_test_setup_teardown(command_queue, setup, teardown),
