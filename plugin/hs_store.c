@@ -88,26 +88,20 @@ static const char *const migrations[] = {
      * states came in (the daemon keeps state rows by exception but counts
      * every computed state); maintenance folds only the others. */
     "ALTER TABLE pond_state ADD COLUMN rolled INTEGER NOT NULL DEFAULT 0;",
-    /* 7 -> 8: 1-minute rollups in time order, so that a batch of minutes is
-     * appended to the table's last pages instead of rewriting the last page
-     * of every series (flash wear); 1-hour rollups stay series by series for
-     * long reads. The view keeps the old shape for readers. */
-    "CREATE TABLE rollup_minute(t_ms INTEGER NOT NULL, series_id INTEGER NOT NULL,"
-    " n INTEGER NOT NULL, vmin REAL, vsum REAL, vmax REAL, worst INTEGER NOT NULL,"
-    " PRIMARY KEY(t_ms, series_id)) STRICT, WITHOUT ROWID;"
-    "INSERT INTO rollup_minute(t_ms, series_id, n, vmin, vsum, vmax, worst)"
-    " SELECT t_ms, series_id, n, vmin, vsum, vmax, worst FROM rollup WHERE step_s = 60"
-    " ORDER BY t_ms, series_id;"
+    /* 7 -> 8: 1-minute rollups in one table per UTC day, in time order
+     * (hs_store_minutes.c): a batch of minutes is appended to the table's
+     * last pages instead of rewriting the last page of every series, and
+     * retention drops a day's table instead of deleting its rows. 1-hour
+     * rollups stay series by series for long reads. The old minutes are
+     * moved by hs_minutes_split_old in the same transaction. */
     "CREATE TABLE rollup_hour(series_id INTEGER NOT NULL, t_ms INTEGER NOT NULL,"
     " n INTEGER NOT NULL, vmin REAL, vsum REAL, vmax REAL, worst INTEGER NOT NULL,"
     " PRIMARY KEY(series_id, t_ms)) STRICT, WITHOUT ROWID;"
     "INSERT INTO rollup_hour(series_id, t_ms, n, vmin, vsum, vmax, worst)"
     " SELECT series_id, t_ms, n, vmin, vsum, vmax, worst FROM rollup WHERE step_s = 3600"
     " ORDER BY series_id, t_ms;"
-    "DROP TABLE rollup;"
-    "CREATE VIEW rollup(series_id, step_s, t_ms, n, vmin, vsum, vmax, worst) AS"
-    " SELECT series_id, 60, t_ms, n, vmin, vsum, vmax, worst FROM rollup_minute"
-    " UNION ALL SELECT series_id, 3600, t_ms, n, vmin, vsum, vmax, worst FROM rollup_hour;",
+    "DELETE FROM rollup WHERE step_s <> 60;"
+    "ALTER TABLE rollup RENAME TO rollup_minute_old;",
 };
 #define SCHEMA_VERSION ((int)(sizeof migrations / sizeof migrations[0]))
 
@@ -142,11 +136,6 @@ static const char *const stmt_sql[SQL_COUNT] = {
                       " hydrometer_temperature_c, reference_temperature_c,"
                       " conductivity_ms_cm, temperature_c, operator, note)"
                       " VALUES(?1,?2,?3,?4,?5,?6,?7,?8,?9)",
-    [SQL_ROLLUP_ADD] = "INSERT INTO rollup_minute(series_id, t_ms, n, vmin, vsum, vmax, worst)"
-                       " VALUES(?1, ?2, ?3, ?4, ?5, ?6, ?7)"
-                       " ON CONFLICT(t_ms, series_id) DO UPDATE SET n = n + excluded.n,"
-                       " vmin = min(vmin, excluded.vmin), vsum = vsum + excluded.vsum,"
-                       " vmax = max(vmax, excluded.vmax), worst = max(worst, excluded.worst)",
     [SQL_OUTBOX_ADD] = "INSERT INTO outbox(t_ms, kind, qos, retained, topic, payload)"
                        " VALUES(?1,?2,?3,?4,?5,?6)",
     [SQL_OUTBOX_COUNT] = "SELECT count(*) FROM outbox",
@@ -471,10 +460,12 @@ static int migrate(hs_store *st)
         snprintf(bump, sizeof bump, "PRAGMA user_version = %d", v + 1);
         if (hs_store_exec(st, "BEGIN IMMEDIATE") != 0)
             return -1;
-        if (hs_store_exec(st, migrations[v]) != 0 || hs_store_exec(st, bump) != 0) {
+        if (hs_store_exec(st, migrations[v]) != 0 ||
+            (v + 1 == 8 && hs_minutes_split_old(st) != 0) || hs_store_exec(st, bump) != 0) {
             char keep[sizeof st->err];
             memcpy(keep, st->err, sizeof keep);
             hs_store_exec(st, "ROLLBACK");
+            hs_minutes_forget(st);
             memcpy(st->err, keep, sizeof keep);
             return -1;
         }
@@ -512,6 +503,7 @@ hs_store *hs_store_open(const char *path, hs_store_mode mode, const hs_store_opt
     }
     st->mode = mode;
     st->outbox_rows = -1;
+    st->minutes_day_ok = st->minute_add_day = INT64_MIN;
     if (opt)
         st->opt = *opt;
     else
@@ -546,6 +538,10 @@ hs_store *hs_store_open(const char *path, hs_store_mode mode, const hs_store_opt
     }
     if (hs_store_exec(st, "PRAGMA foreign_keys = ON") != 0 || migrate(st) != 0)
         goto fail;
+    /* the view "rollup" follows the day tables there are (also ones an
+     * operator restored or dropped by hand) */
+    if (st->mode == HS_STORE_WRITE && hs_minutes_view(st) != 0)
+        goto fail;
     return st;
 fail:
     if (err)
@@ -562,6 +558,7 @@ void hs_store_close(hs_store *st)
         hs_store_flush(st);
         for (int i = 0; i < SQL_COUNT; i++)
             sqlite3_finalize(st->stmt[i]);
+        hs_minutes_forget(st);
         sqlite3_close(st->db);
     }
     map_free(&st->series);

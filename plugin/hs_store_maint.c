@@ -41,29 +41,46 @@ static int earliest_raw(hs_store *st, int64_t *out)
     return rc == SQLITE_ROW ? 0 : hs_store_fail_db(st, "finding the first sample");
 }
 
-static int fold_minutes(hs_store *st, int64_t from, int64_t to)
+/* Raw rows of [from, to) not counted yet, into one day's minutes. */
+static int fold_minutes_of_day(hs_store *st, int64_t day, int64_t from, int64_t to)
 {
-    if (run_range(st,
-                  "INSERT INTO rollup_minute(series_id, t_ms, n, vmin, vsum, vmax, worst)"
-                  " SELECT series_id, (t_ms / 60000) * 60000, count(value), min(value),"
-                  " total(value), max(value), max(quality) FROM sample"
-                  " WHERE t_ms >= ?1 AND t_ms < ?2 AND value IS NOT NULL AND rolled = 0"
-                  " GROUP BY series_id, t_ms / 60000" UPSERT_TAIL("t_ms, series_id"),
-                  from, to) != 0)
+    char table[64], sql[1024];
+    if (hs_minutes_ensure(st, day) != 0)
         return -1;
-    char sql[1024];
+    hs_minutes_name(table, sizeof table, day);
+    snprintf(sql, sizeof sql,
+             "INSERT INTO %s(series_id, t_ms, n, vmin, vsum, vmax, worst)"
+             " SELECT series_id, (t_ms / 60000) * 60000, count(value), min(value),"
+             " total(value), max(value), max(quality) FROM sample"
+             " WHERE t_ms >= ?1 AND t_ms < ?2 AND value IS NOT NULL AND rolled = 0"
+             " GROUP BY series_id, t_ms / 60000" UPSERT_TAIL("t_ms, series_id"),
+             table);
+    if (run_range(st, sql, from, to) != 0)
+        return -1;
     for (int i = 0; hs_store_state_fields[i] != NULL; i++) {
         const char *f = hs_store_state_fields[i];
         snprintf(sql, sizeof sql,
-                 "INSERT INTO rollup_minute(series_id, t_ms, n, vmin, vsum, vmax, worst)"
+                 "INSERT INTO %s(series_id, t_ms, n, vmin, vsum, vmax, worst)"
                  " SELECT s.id, (ps.t_ms / 60000) * 60000, count(ps.%s), min(ps.%s),"
                  " total(ps.%s), max(ps.%s), max(ps.quality) FROM pond_state ps"
                  " JOIN pond p ON p.id = ps.pond_id JOIN series s ON s.name = p.name || ':%s'"
                  " WHERE ps.t_ms >= ?1 AND ps.t_ms < ?2 AND ps.%s IS NOT NULL"
                  " AND ps.rolled = 0 GROUP BY s.id, ps.t_ms / 60000"
                  UPSERT_TAIL("t_ms, series_id"),
-                 f, f, f, f, f, f);
+                 table, f, f, f, f, f, f);
         if (run_range(st, sql, from, to) != 0)
+            return -1;
+    }
+    return 0;
+}
+
+static int fold_minutes(hs_store *st, int64_t from, int64_t to)
+{
+    if (from < 0) /* no minute before 1970 */
+        from = 0;
+    for (int64_t day = from / HS_MINUTE_DAY_MS; day * HS_MINUTE_DAY_MS < to; day++) {
+        int64_t a = day * HS_MINUTE_DAY_MS, b = a + HS_MINUTE_DAY_MS;
+        if (fold_minutes_of_day(st, day, a > from ? a : from, b < to ? b : to) != 0)
             return -1;
     }
     return 0;
@@ -72,18 +89,27 @@ static int fold_minutes(hs_store *st, int64_t from, int64_t to)
 static int fold_hours(hs_store *st, int64_t from, int64_t to)
 {
     /* Hour by hour: the minutes of one hour are a time range of their
-     * table's key, and grouping them by series sorts a few thousand rows
+     * day's table, and grouping them by series sorts a few thousand rows
      * in memory (a day at once spilled about 7 MB to a temporary file).
      * The hours go in series by series, all in the caller's transaction. */
-    for (int64_t h = from; h < to; h += HS_HOUR_MS)
-        if (run_range(st,
-                      "INSERT INTO rollup_hour(series_id, t_ms, n, vmin, vsum, vmax, worst)"
-                      " SELECT series_id, (t_ms / 3600000) * 3600000, sum(n), min(vmin),"
-                      " total(vsum), max(vmax), max(worst) FROM rollup_minute"
-                      " WHERE t_ms >= ?1 AND t_ms < ?2 GROUP BY series_id, t_ms / 3600000"
-                      " ORDER BY series_id" UPSERT_TAIL("series_id, t_ms"),
-                      h, h + HS_HOUR_MS) != 0)
+    char table[64], sql[768];
+    for (int64_t h = from; h < to; h += HS_HOUR_MS) {
+        int exists;
+        if (hs_minutes_exists(st, h / HS_MINUTE_DAY_MS, &exists) != 0)
             return -1;
+        if (!exists)
+            continue;
+        hs_minutes_name(table, sizeof table, h / HS_MINUTE_DAY_MS);
+        snprintf(sql, sizeof sql,
+                 "INSERT INTO rollup_hour(series_id, t_ms, n, vmin, vsum, vmax, worst)"
+                 " SELECT series_id, (t_ms / 3600000) * 3600000, sum(n), min(vmin),"
+                 " total(vsum), max(vmax), max(worst) FROM %s"
+                 " WHERE t_ms >= ?1 AND t_ms < ?2 GROUP BY series_id, t_ms / 3600000"
+                 " ORDER BY series_id" UPSERT_TAIL("series_id, t_ms"),
+                 table);
+        if (run_range(st, sql, h, h + HS_HOUR_MS) != 0)
+            return -1;
+    }
     return 0;
 }
 
@@ -105,8 +131,7 @@ static int delete_past_retention(hs_store *st, int64_t now_ms, int64_t minute_do
                    now_ms - st->full_rate_window_ms, 0) != 0) ||
         run_range(st, "DELETE FROM command_seen WHERE t_ms < ?1 AND ?2 = ?2",
                   now_ms - INT64_C(30) * 86400000, 0) != 0 ||
-        run_range(st, "DELETE FROM rollup_minute WHERE t_ms < ?1 AND ?2 = ?2", minute_cut, 0) !=
-            0 ||
+        hs_minutes_drop_before(st, minute_cut) != 0 ||
         run_range(st, "DELETE FROM rollup_hour WHERE series_id IN (SELECT id FROM series)"
                       " AND t_ms < ?1 AND ?2 = ?2",
                   now_ms - st->opt.hour_retention_ms, 0) != 0)
@@ -166,6 +191,7 @@ fail:
         char keep[sizeof st->err];
         memcpy(keep, st->err, sizeof keep);
         hs_store_exec(st, "ROLLBACK");
+        hs_minutes_forget(st); /* a day's table made in the batch is gone */
         st->in_batch = 0;
         st->outbox_rows = -1;
         memcpy(st->err, keep, sizeof keep);

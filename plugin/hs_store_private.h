@@ -17,7 +17,6 @@ enum hs_stmt_id {
     SQL_POND_ADD,
     SQL_SAMPLE_ADD,
     SQL_STATE_ADD,
-    SQL_ROLLUP_ADD,
     SQL_JOURNAL_ADD,
     SQL_JOURNAL_MAX,
     SQL_TRANSFER_ADD,
@@ -54,10 +53,29 @@ struct hs_store {
     int64_t outbox_rows;   /* cached row count; -1 when unknown */
     int64_t retention_done_ms; /* when maintenance last deleted past retention; 0 never */
     int64_t outbox_dropped;
+    int64_t minutes_day_ok;      /* day whose rollup_minute_<day> is known to exist */
+    sqlite3_stmt *minute_add;    /* upsert into rollup_minute_<minute_add_day> */
+    int64_t minute_add_day;
     struct hs_name_map series;
     struct hs_name_map ponds;
     char err[512];
 };
+
+/* hs_store_minutes.c: the 1-minute rollups, one table per UTC day. */
+#define HS_MINUTE_DAY_MS INT64_C(86400000)
+#define HS_MINUTE_VIEW_DAYS 400 /* days of minutes in the view "rollup" */
+#define HS_MINUTE_READ_DAYS 400 /* days of minutes one history read may take */
+void hs_minutes_name(char *buf, size_t len, int64_t day);
+/* Days with a table in [from_day, to_day], ascending (*days malloc'd). */
+int hs_minutes_days(hs_store *st, int64_t from_day, int64_t to_day, int64_t **days, size_t *n);
+int hs_minutes_exists(hs_store *st, int64_t day, int *exists);
+int hs_minutes_ensure(hs_store *st, int64_t day); /* creates the day's table */
+int hs_minutes_view(hs_store *st);                /* rebuilds the view "rollup" */
+int hs_minutes_drop_before(hs_store *st, int64_t cut_ms); /* whole days before cut_ms */
+int hs_minutes_split_old(hs_store *st);           /* the schema-8 migration's second half */
+void hs_minutes_forget(hs_store *st); /* after a rollback: nothing known, no statement */
+/* The upsert of one minute into its day's table (the table made if new). */
+sqlite3_stmt *hs_minutes_add_stmt(hs_store *st, int64_t minute_ms);
 
 /* Records an error message (printf style), returns -1. */
 int hs_store_fail(hs_store *st, const char *fmt, ...) __attribute__((format(printf, 2, 3)));

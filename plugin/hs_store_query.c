@@ -1,6 +1,7 @@
 /* History store: read queries for operators' views (history, export). */
 #include <math.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 
 #include "hc_brine_density.h"
@@ -110,6 +111,44 @@ static int emit_combined(hs_store *st, sqlite3_stmt *s, int64_t step_ms, hs_poin
     return ok;
 }
 
+/* The query of a series' rollups: its hours (when ?4 = 3600) and its
+ * minutes from ?5 in the day tables that overlap [from_ms, until_ms).
+ * Malloc'd; NULL with the error set. */
+static char *minutes_sql(hs_store *st, int64_t from_ms, int64_t until_ms)
+{
+    int64_t *days = NULL;
+    size_t n = 0;
+    if (until_ms > from_ms &&
+        hs_minutes_days(st, from_ms / HS_MINUTE_DAY_MS, (until_ms - 1) / HS_MINUTE_DAY_MS,
+                        &days, &n) != 0)
+        return NULL;
+    if (n > HS_MINUTE_READ_DAYS) {
+        free(days);
+        hs_store_fail(st, "1-minute steps read at most %d days at once; take a step of whole "
+                          "hours for a longer span", HS_MINUTE_READ_DAYS);
+        return NULL;
+    }
+    size_t cap = 256 + n * 160, used;
+    char *sql = malloc(cap);
+    if (sql == NULL) {
+        free(days);
+        hs_store_fail(st, "out of memory reading history");
+        return NULL;
+    }
+    used = (size_t)snprintf(sql, cap, "SELECT t_ms, vmin, vsum, vmax, n, worst FROM rollup_hour"
+                                      " WHERE ?4 = 3600 AND series_id = ?3 AND t_ms >= ?1"
+                                      " AND t_ms < ?2");
+    for (size_t i = 0; i < n; i++)
+        used += (size_t)snprintf(sql + used, cap - used,
+                                 " UNION ALL SELECT t_ms, vmin, vsum, vmax, n, worst"
+                                 " FROM rollup_minute_%lld WHERE series_id = ?3"
+                                 " AND t_ms >= ?5 AND t_ms < ?2",
+                                 (long long)days[i]);
+    snprintf(sql + used, cap - used, " ORDER BY 1");
+    free(days);
+    return sql;
+}
+
 int hs_store_history(hs_store *st, const char *series, int64_t since_ms, int64_t until_ms,
                      int64_t step_ms, hs_point_fn fn, void *ctx)
 {
@@ -141,22 +180,26 @@ int hs_store_history(hs_store *st, const char *series, int64_t since_ms, int64_t
             sqlite3_bind_int64(s, 3, id);
     } else {
         /* Hour steps read the hour rollups, and the minute rollups of the
-         * hours not folded yet (from rollup_hour_done_ms), so the hour in
-         * progress is shown too (a fresh site would otherwise show nothing
-         * for its first hour). Minutes are in time order: a range of their
-         * key, filtered by series. */
+         * hours not folded yet (from rollup_hour_done_ms), so the hours of
+         * the day in progress are shown too. Minutes are in one table per
+         * day, in time order: a range of each day's key, filtered by series. */
         int step_s = step_ms % HS_HOUR_MS == 0 ? 3600 : 60;
-        if (sqlite3_prepare_v2(st->db,
-                               "SELECT t_ms, vmin, vsum, vmax, n, worst FROM rollup_hour"
-                               " WHERE ?4 = 3600 AND series_id = ?3 AND t_ms >= ?1 AND t_ms < ?2"
-                               " UNION ALL SELECT t_ms, vmin, vsum, vmax, n, worst"
-                               " FROM rollup_minute WHERE series_id = ?3 AND t_ms < ?2"
-                               " AND t_ms >= max(?1, CASE WHEN ?4 = 3600 THEN"
-                               " (SELECT coalesce(max(value), 0) FROM store_meta"
-                               " WHERE key = 'rollup_hour_done_ms') ELSE 0 END)"
-                               " ORDER BY 1",
-                               -1, &s, NULL) != SQLITE_OK)
+        int64_t minutes_from = since_ms;
+        if (step_s == 3600) {
+            int64_t hour_done;
+            if (hs_store_meta_get(st, "rollup_hour_done_ms", 0, &hour_done) != 0)
+                return -1;
+            if (hour_done > minutes_from)
+                minutes_from = hour_done;
+        }
+        char *q = minutes_sql(st, minutes_from < 0 ? 0 : minutes_from, until_ms);
+        if (q == NULL)
+            return -1;
+        int prc = sqlite3_prepare_v2(st->db, q, -1, &s, NULL);
+        free(q);
+        if (prc != SQLITE_OK)
             return hs_store_fail_db(st, "reading history");
+        sqlite3_bind_int64(s, 5, minutes_from);
         sqlite3_bind_int64(s, 3, id);
         sqlite3_bind_int(s, 4, step_s);
         sqlite3_bind_int64(s, 1, since_ms);

@@ -46,11 +46,12 @@ int hs_store_add_rollup(hs_store *st, const char *signal, int64_t minute_ms, int
     int64_t id = hs_store_series_id(st, signal);
     if (id < 0)
         return -1;
-    sqlite3_stmt *s = hs_store_stmt(st, SQL_ROLLUP_ADD);
+    int64_t minute = minute_ms / HS_MINUTE_MS * HS_MINUTE_MS;
+    sqlite3_stmt *s = hs_minutes_add_stmt(st, minute);
     if (s == NULL)
         return -1;
     sqlite3_bind_int64(s, 1, id);
-    sqlite3_bind_int64(s, 2, minute_ms / HS_MINUTE_MS * HS_MINUTE_MS);
+    sqlite3_bind_int64(s, 2, minute);
     sqlite3_bind_int64(s, 3, n);
     hs_bind_num(s, 4, vmin);
     hs_bind_num(s, 5, vsum);

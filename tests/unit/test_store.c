@@ -102,14 +102,14 @@ static void migrates_an_older_file(void **unused)
      * old version number. */
     sqlite3 *db;
     assert_int_equal(sqlite3_open(path, &db), SQLITE_OK);
-    assert_int_equal(sqlite3_exec(db, "DROP VIEW rollup; DROP TABLE rollup_minute;"
-                                      "DROP TABLE rollup_hour;"
+    assert_int_equal(sqlite3_exec(db, "DROP VIEW rollup; DROP TABLE rollup_hour;"
                                       "CREATE TABLE rollup(series_id INTEGER NOT NULL,"
                                       " step_s INTEGER NOT NULL, t_ms INTEGER NOT NULL,"
                                       " n INTEGER NOT NULL, vmin REAL, vsum REAL, vmax REAL,"
                                       " worst INTEGER NOT NULL,"
                                       " PRIMARY KEY(series_id, step_s, t_ms)) STRICT, WITHOUT ROWID;"
                                       "INSERT INTO rollup VALUES(1, 60, 0, 6, 1.0, 7.5, 2.0, 0),"
+                                      " (1, 60, 86460000, 6, 1.0, 7.5, 2.0, 0),"
                                       " (1, 3600, 0, 60, 0.5, 80.0, 2.5, 1);"
                                       "CREATE INDEX rollup_step_t ON rollup(step_s, t_ms);"
                                       "ALTER TABLE pond_state DROP COLUMN density_uncertainty_kg_m3;"
@@ -136,11 +136,14 @@ static void migrates_an_older_file(void **unused)
     assert_int_equal(scalar("SELECT count(*) FROM sqlite_master WHERE name = 'rollup_step_t'"),
                      0);
     /* version 8 split the rollups by step: both rows are still there */
-    assert_int_equal(scalar("SELECT count(*) FROM rollup_minute WHERE series_id = 1 AND n = 6"
-                            " AND vsum = 7.5"), 1);
+    assert_int_equal(scalar("SELECT count(*) FROM rollup_minute_0 WHERE series_id = 1 AND n = 6"
+                            " AND vsum = 7.5"), 1); /* minute 0 is in day 0's table */
     assert_int_equal(scalar("SELECT count(*) FROM rollup_hour WHERE series_id = 1 AND n = 60"
                             " AND worst = 1"), 1);
-    assert_int_equal(scalar("SELECT count(*) FROM rollup"), 2);
+    assert_int_equal(scalar("SELECT count(*) FROM rollup_minute_1 WHERE t_ms = 86460000"), 1);
+    assert_int_equal(scalar("SELECT count(*) FROM sqlite_master WHERE name = 'rollup_minute_old'"),
+                     0);
+    assert_int_equal(scalar("SELECT count(*) FROM rollup"), 3);
     assert_int_equal(scalar("SELECT count(*) FROM pragma_table_info('pond_state')"
                             " WHERE name LIKE '%uncertainty%'"), 4);
     assert_int_equal(scalar("SELECT count(*) FROM pragma_table_info('sample')"
@@ -462,9 +465,11 @@ static void retention_keeps_rollups(void **unused)
     assert_int_equal(hs_store_maintain(st, now), 0);
     assert_int_equal(scalar("SELECT count(*) FROM sample"), 60);
     assert_int_equal(scalar("SELECT min(t_ms) FROM sample"), now - 3600000);
-    /* Minute 239 is still inside the fold grace, so minutes 120..238 are
-     * kept (2 h retention) and only hours 0..2 are complete. */
-    assert_int_equal(scalar("SELECT count(*) FROM rollup WHERE step_s = 60"), 119);
+    /* Minute 239 is still inside the fold grace, so minutes 0..238 are
+     * folded; 1-minute rollups go in whole days and T0's day has not ended
+     * (so all are kept despite the 2 h retention); only hours 0..2 are
+     * complete. */
+    assert_int_equal(scalar("SELECT count(*) FROM rollup WHERE step_s = 60"), 239);
     assert_int_equal(scalar("SELECT count(*) FROM rollup WHERE step_s = 3600"), 3);
     assert_int_equal(scalar("SELECT sum(n) FROM rollup WHERE step_s = 3600"), 180);
     /* The last hour completes on the next pass; raw rows go no earlier. */
@@ -472,6 +477,11 @@ static void retention_keeps_rollups(void **unused)
     assert_int_equal(scalar("SELECT count(*) FROM rollup WHERE step_s = 3600"), 4);
     assert_int_equal(scalar("SELECT sum(n) FROM rollup WHERE step_s = 3600"), 240);
     assert_int_equal(scalar("SELECT count(*) FROM sample"), 0);
+    /* Once the 2 h retention is past the end of T0's day, its minutes go
+     * with their table; the hours stay. */
+    assert_int_equal(hs_store_maintain(st, T0_MS + 26 * INT64_C(3600000) + 60000), 0);
+    assert_int_equal(scalar("SELECT count(*) FROM rollup WHERE step_s = 60"), 0);
+    assert_int_equal(scalar("SELECT sum(n) FROM rollup WHERE step_s = 3600"), 240);
     hs_store_close(st);
 }
 
@@ -492,7 +502,7 @@ static void hours_folded_once_a_day(void **unused)
     assert_int_equal(hs_store_maintain(st, now), 0);
     assert_int_equal(scalar("SELECT count(*) FROM rollup_hour"), 0);
     /* not folded: kept although older than the 2 h minute retention */
-    assert_int_equal(scalar("SELECT count(*) FROM rollup_minute"), 300);
+    assert_int_equal(scalar("SELECT count(*) FROM rollup WHERE step_s = 60"), 300);
     static struct collect got;
     got.n = 0;
     assert_int_equal(hs_store_history(st, "east-1.level", T0_MS, now, 3600000, collect_point,
@@ -503,15 +513,57 @@ static void hours_folded_once_a_day(void **unused)
         /* mean of 0.5 + i for i = 60 h .. 60 h + 59 */
         assert_double_equal(got.p[h].mean, 0.5 + 60.0 * h + 29.5, 1e-9);
     }
-    /* a day of complete hours: folded, and the minutes past retention go */
+    /* a day of complete hours: folded; the minutes past retention go in
+     * whole days (T0's day table is dropped once the cut is past its end) */
     assert_int_equal(hs_store_maintain(st, T0_MS + 24 * INT64_C(3600000) + 60000), 0);
     assert_int_equal(scalar("SELECT count(*) FROM rollup_hour"), 5);
     assert_int_equal(scalar("SELECT sum(n) FROM rollup_hour"), 300);
-    assert_int_equal(scalar("SELECT count(*) FROM rollup_minute"), 0);
+    assert_int_equal(scalar("SELECT count(*) FROM rollup WHERE step_s = 60"), 300);
+    assert_int_equal(hs_store_maintain(st, T0_MS + 48 * INT64_C(3600000) + 60000), 0);
+    assert_int_equal(scalar("SELECT count(*) FROM rollup_hour"), 5);
+    assert_int_equal(scalar("SELECT count(*) FROM rollup WHERE step_s = 60"), 0);
+    char sql[128];
+    snprintf(sql, sizeof sql, "SELECT count(*) FROM sqlite_master WHERE name = 'rollup_minute_%lld'",
+             (long long)(T0_MS / 86400000));
+    assert_int_equal(scalar(sql), 0);
     got.n = 0;
     assert_int_equal(hs_store_history(st, "east-1.level", T0_MS, now, 3600000, collect_point,
                                       &got), 5);
     assert_double_equal(got.p[4].mean, 0.5 + 240.0 + 29.5, 1e-9);
+    hs_store_close(st);
+}
+
+/* Minutes live in one table per UTC day: a read across midnight takes
+ * both days, in order, at minute and at hour steps. */
+static void history_across_midnight(void **unused)
+{
+    (void)unused;
+    hs_store *st = open_writer(NULL);
+    int64_t t0 = T0_MS + 23 * INT64_C(3600000); /* 23:00 to 01:00 */
+    for (int i = 0; i < 120; i++)
+        assert_int_equal(hs_store_add_sample(st, "east-1.level", t0 + i * 60000, i,
+                                             HS_QUALITY_GOOD), 0);
+    assert_int_equal(hs_store_maintain(st, t0 + 3 * 3600000), 0);
+    char sql[160];
+    for (int d = 0; d < 2; d++) {
+        snprintf(sql, sizeof sql, "SELECT count(*) FROM rollup_minute_%lld",
+                 (long long)(T0_MS / 86400000 + d));
+        assert_int_equal(scalar(sql), 60);
+    }
+    static struct collect got;
+    got.n = 0;
+    assert_int_equal(hs_store_history(st, "east-1.level", t0, t0 + 2 * 3600000, 60000,
+                                      collect_point, &got), 120);
+    for (int i = 0; i < 120; i++) {
+        assert_int_equal(got.p[i].t_ms, t0 + i * 60000);
+        assert_double_equal(got.p[i].mean, i, 1e-12);
+    }
+    got.n = 0;
+    assert_int_equal(hs_store_history(st, "east-1.level", t0, t0 + 2 * 3600000, 3600000,
+                                      collect_point, &got), 2);
+    assert_int_equal(got.p[1].t_ms, T0_MS + 24 * INT64_C(3600000));
+    assert_int_equal(got.p[1].count, 60);
+    assert_double_equal(got.p[1].mean, 89.5, 1e-12);
     hs_store_close(st);
 }
 
@@ -711,6 +763,7 @@ int main(void)
         cmocka_unit_test_setup_teardown(rolled_states_not_folded_twice, setup, teardown),
         cmocka_unit_test_setup_teardown(retention_keeps_rollups, setup, teardown),
         cmocka_unit_test_setup_teardown(hours_folded_once_a_day, setup, teardown),
+        cmocka_unit_test_setup_teardown(history_across_midnight, setup, teardown),
         cmocka_unit_test_setup_teardown(outbox_order_and_policy, setup, teardown),
         cmocka_unit_test_setup_teardown(journal_rows, setup, teardown),
         cmocka_unit_test_setup_teardown(command_queue, setup, teardown),
