@@ -192,11 +192,16 @@ int hs_store_history(hs_store *st, const char *series, int64_t since_ms, int64_t
             if (hour_done > minutes_from)
                 minutes_from = hour_done;
         }
-        char *q = minutes_sql(st, minutes_from < 0 ? 0 : minutes_from, until_ms);
-        if (q == NULL)
-            return -1;
-        int prc = sqlite3_prepare_v2(st->db, q, -1, &s, NULL);
-        free(q);
+        /* twice: the writer may drop a day past retention between the
+         * listing of the days and the query */
+        int prc = SQLITE_ERROR;
+        for (int attempt = 0; attempt < 2 && prc != SQLITE_OK; attempt++) {
+            char *q = minutes_sql(st, minutes_from < 0 ? 0 : minutes_from, until_ms);
+            if (q == NULL)
+                return -1;
+            prc = sqlite3_prepare_v2(st->db, q, -1, &s, NULL);
+            free(q);
+        }
         if (prc != SQLITE_OK)
             return hs_store_fail_db(st, "reading history");
         sqlite3_bind_int64(s, 5, minutes_from);

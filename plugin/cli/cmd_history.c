@@ -206,7 +206,7 @@ static void usage(FILE *out)
             "                         [--limit N]\n"
             "  WHEN is a duration back from now (7d, 6h, 90min), now, or a UTC time\n"
             "  (2026-03-01T06:00Z). --step takes whole minutes (1min, 15min, 1h, 1d) and\n"
-            "  reads the rollups, which the daemon folds every minute; without it every\n"
+            "  reads the rollups, which the daemon writes every 15 minutes; without it every\n"
             "  stored state is listed, or the latest --limit of them (default 10000).\n");
 }
 
@@ -324,7 +324,7 @@ int hs_cmd_history(int argc, char **argv)
                    a, b, step ? step_s : "every stored state");
             if (t.n == 0)
                 printf("(nothing stored in this range%s)\n",
-                       step ? "; rollups appear once a minute is complete" : "");
+                       step ? "; the daemon writes rollups every 15 minutes" : "");
             else
                 print_table(&t, step != 0, signal);
         }
