@@ -536,7 +536,12 @@ hs_store *hs_store_open(const char *path, hs_store_mode mode, const hs_store_opt
     } else if (hs_store_exec(st, "PRAGMA synchronous = NORMAL") != 0) {
         goto fail;
     }
-    if (hs_store_exec(st, "PRAGMA foreign_keys = ON") != 0 || migrate(st) != 0)
+    /* Debian's SQLite zeroes every freed page (secure_delete on): dropping
+     * a day of 1-minute rollups then wrote 22 MB instead of 0.2 MB. FAST
+     * still zeroes deleted rows inside pages that are written anyway; freed
+     * pages keep their old bytes until reused (the file is 0640). */
+    if (hs_store_exec(st, "PRAGMA secure_delete = FAST") != 0 ||
+        hs_store_exec(st, "PRAGMA foreign_keys = ON") != 0 || migrate(st) != 0)
         goto fail;
     /* the view "rollup" follows the day tables there are (also ones an
      * operator restored or dropped by hand) */

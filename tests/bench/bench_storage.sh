@@ -45,6 +45,7 @@ def wb():
     with open("/proc/self/io") as f:
         return next(int(l.split()[1]) for l in f if l.startswith("write_bytes:"))
 db = sqlite3.connect(sys.argv[1], isolation_level=None, timeout=10)
+db.execute("PRAGMA secure_delete = FAST") # as the daemon's connection
 w0 = wb()
 if len(sys.argv) > 2:
     db.execute("BEGIN IMMEDIATE")
@@ -69,22 +70,30 @@ kill -TERM "$dpid"; wait "$dpid"
 series=$(q "SELECT count(*) FROM series")
 if [ "$age_days" -gt 0 ]; then
     now_ms=$(($(date +%s) * 1000))
-    q "WITH RECURSIVE m(t) AS (SELECT ($now_ms - $age_days * 86400000) / 60000 * 60000
-                               UNION ALL SELECT t + 60000 FROM m WHERE t + 60000 < $now_ms - 120000)
-       INSERT INTO rollup_minute(series_id, t_ms, n, vmin, vsum, vmax, worst)
-       SELECT s.id, m.t, 6, 1000.1 + s.id / 7.0, 6 * (1000.3 + s.id / 7.0), 1000.7 + s.id / 7.0, 0
-       FROM series s CROSS JOIN m ORDER BY m.t, s.id"
-    q "INSERT INTO rollup_hour(series_id, t_ms, n, vmin, vsum, vmax, worst)
-       SELECT series_id, t_ms / 3600000 * 3600000, sum(n), min(vmin), sum(vsum), max(vmax), 0
-       FROM rollup_minute WHERE t_ms < $now_ms / 3600000 * 3600000 - 3600000
-       GROUP BY series_id, t_ms / 3600000 ORDER BY 1, 2"
+    # one table per UTC day, as the daemon keeps them
+    hour_cut=$((now_ms / 3600000 * 3600000 - 3600000))
+    for ((d = (now_ms - age_days * 86400000) / 86400000; d <= now_ms / 86400000; d++)); do
+        q "CREATE TABLE IF NOT EXISTS rollup_minute_$d(t_ms INTEGER NOT NULL,
+           series_id INTEGER NOT NULL, n INTEGER NOT NULL, vmin REAL, vsum REAL, vmax REAL,
+           worst INTEGER NOT NULL, PRIMARY KEY(t_ms, series_id)) STRICT, WITHOUT ROWID;
+           WITH RECURSIVE m(t) AS (SELECT max($d * 86400000, ($now_ms - $age_days * 86400000)
+                                              / 60000 * 60000)
+                                   UNION ALL SELECT t + 60000 FROM m WHERE t + 60000 < $now_ms - 120000
+                                   AND t + 60000 < ($d + 1) * 86400000)
+           INSERT OR IGNORE INTO rollup_minute_$d(series_id, t_ms, n, vmin, vsum, vmax, worst)
+           SELECT s.id, m.t, 6, 1000.1 + s.id / 7.0, 6 * (1000.3 + s.id / 7.0),
+           1000.7 + s.id / 7.0, 0 FROM series s CROSS JOIN m WHERE m.t < $now_ms - 120000
+           ORDER BY m.t, s.id;
+           INSERT OR IGNORE INTO rollup_hour(series_id, t_ms, n, vmin, vsum, vmax, worst)
+           SELECT series_id, t_ms / 3600000 * 3600000, sum(n), min(vmin), sum(vsum), max(vmax), 0
+           FROM rollup_minute_$d WHERE t_ms < $hour_cut GROUP BY 1, 2 ORDER BY 1, 2"
+    done
     # the hours are folded up to there; the later ones are read from the minutes
     q "INSERT INTO store_meta(key, value) VALUES('rollup_hour_done_ms',
        $now_ms / 3600000 * 3600000 - 3600000)
        ON CONFLICT(key) DO UPDATE SET value = excluded.value"
     q "PRAGMA wal_checkpoint(TRUNCATE)" >/dev/null
 fi
-aged_rows=$(q "SELECT count(*) FROM rollup")
 aged_size=$(q "SELECT page_count * page_size FROM pragma_page_count(), pragma_page_size()")
 
 "$D" --config "$HS_TMP/site.ini" --log-level warning 2>"$HS_TMP/daemon.log" &
@@ -98,6 +107,7 @@ size() { q "SELECT (page_count - freelist_count) * page_size FROM pragma_page_co
             pragma_freelist_count(), pragma_page_size()"; }
 counts() { q "SELECT (SELECT count(*) FROM sample) || ' ' || (SELECT count(*) FROM pond_state)
               || ' ' || (SELECT count(*) FROM rollup WHERE step_s = 60)"; }
+aged_rows=$(q "SELECT count(*) FROM rollup") # the daemon's start put the aged days in the view
 sqlio >/dev/null # what the start wrote is in the file: the end's checkpoint copies the window's
 w0=$(wb); s0=$(size); c0=($(counts)); t0=$(date +%s)
 sleep "$secs" # the measured period
@@ -125,12 +135,12 @@ echo "storage: samples counted in the rollups since the start: $real"
 if [ "$age_days" -gt 0 ]; then
     # bytes per rollup row as stored (pages of the rollup table and its key)
     per_row=$(q "SELECT sum(pgsize) / (SELECT count(*) FROM rollup) FROM dbstat
-                 WHERE name IN ('rollup_minute', 'rollup_hour')" 2>/dev/null)
+                 WHERE name GLOB 'rollup_minute_[0-9]*' OR name = 'rollup_hour'" 2>/dev/null)
     [ -n "$per_row" ] && echo "storage: $per_row bytes per rollup row on disk"
 fi
 # What the operators' page reads: one pond's day at 5-minute steps from the
-# 1-minute rollups (kept in time order, so the day of every series is read
-# and filtered) and its week at 1-hour steps.
+# 1-minute rollups (kept in time order, one table a day, so the day of
+# every series is read and filtered) and its week at 1-hour steps.
 pond=$(q "SELECT name FROM pond ORDER BY name LIMIT 1")
 for view in "1d 5min" "7d 1h"; do
     set -- $view
@@ -142,8 +152,8 @@ for view in "1d 5min" "7d 1h"; do
 done
 # Not inside the window: the daily fold of the minutes into hours (the
 # last aged day's hours are taken out, then folded again the daemon's way)
-# and, at the steady state, retention deleting a day of 1-minute rollups
-# (108 series x 1440 rows; the history here is aged only two days).
+# and, at the steady state, retention dropping a day's table of 1-minute
+# rollups (108 series x 1440 rows; the history here is aged only two days).
 if [ "$age_days" -gt 1 ]; then
     day_end=$(q "SELECT max(t_ms) + 3600000 FROM rollup_hour")
     day_start=$((day_end - 86400000))
@@ -152,16 +162,16 @@ if [ "$age_days" -gt 1 ]; then
     for ((h = day_start; h < day_end; h += 3600000)); do
         hours+=("INSERT INTO rollup_hour(series_id, t_ms, n, vmin, vsum, vmax, worst)
                  SELECT series_id, (t_ms / 3600000) * 3600000, sum(n), min(vmin), total(vsum),
-                 max(vmax), max(worst) FROM rollup_minute WHERE t_ms >= $h
+                 max(vmax), max(worst) FROM rollup_minute_$((h / 86400000)) WHERE t_ms >= $h
                  AND t_ms < $h + 3600000 GROUP BY series_id, t_ms / 3600000 ORDER BY series_id")
     done
     fold=$(sqlio "${hours[@]}")
-    first=$(q "SELECT min(t_ms) FROM rollup_minute")
-    deleted=$(q "SELECT count(*) FROM rollup_minute WHERE t_ms < $first + 86400000")
-    ret=$(sqlio "DELETE FROM rollup_minute WHERE t_ms < $first + 86400000")
+    full_day=$((now_ms / 86400000 - 1)) # aged whole
+    deleted=$(q "SELECT count(*) FROM rollup_minute_$full_day")
+    ret=$(sqlio "DROP TABLE rollup_minute_$full_day")
     total=$(( per_day_w + per_day_c + (fold + ret) * 1024 ))
-    echo "storage: the daily fold into hours $fold KiB; retention of a day of 1-minute rollups" \
-         "($deleted rows) $ret KiB"
+    echo "storage: the daily fold into hours $fold KiB; retention dropping a day of 1-minute" \
+         "rollups ($deleted rows) $ret KiB"
     echo "storage: per day at the steady state: $(( total / 1048576 )) MiB" \
          "= $(( total / 1000000 )) MB written (goal <= 50 MB)"
 fi
